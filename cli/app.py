@@ -1,0 +1,93 @@
+"""The ``cyclewright`` command: group, command discovery and error policy.
+
+Error policy: bad input prints one line ``error: ...`` on stderr and exits
+with status 2; an internal failure prints one line and exits with 1 (set
+``CYCLEWRIGHT_DEBUG=1`` for the traceback); success exits 0.
+"""
+
+from __future__ import annotations
+
+import importlib
+import os
+import pkgutil
+import sys
+
+import click
+
+from . import commands as _commands_pkg
+from .errors import USER_ERRORS
+
+__all__ = ["cli", "main"]
+
+_EPILOG = """\b
+Examples:
+  cyclewright maps
+  cyclewright solve 3x+5 11100
+  cyclewright orbit 3x+1 27
+Maps are named by catalog name (see `cyclewright maps`), by ax+b shorthand
+(3x+7, 5x-1) or from a TOML file given with --maps FILE.
+"""
+
+
+def _version() -> str:
+    try:
+        from importlib.metadata import version
+
+        return version("cyclewright")
+    except Exception:  # pragma: no cover - running from a source tree
+        return "0+unknown"
+
+
+@click.group(
+    context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
+    epilog=_EPILOG,
+)
+@click.version_option(_version(), prog_name="cyclewright")
+def cli() -> None:
+    """cyclewright: exact cycles, counting, certified searches and comparisons for Collatz-type maps."""
+
+
+def _register() -> None:
+    for info in sorted(pkgutil.iter_modules(_commands_pkg.__path__), key=lambda i: i.name):
+        mod = importlib.import_module(f"{_commands_pkg.__name__}.{info.name}")
+        for cmd in getattr(mod, "COMMANDS", ()):
+            cli.add_command(cmd)
+
+
+_register()
+
+
+def main(argv: list[str] | None = None) -> None:
+    """Run the CLI with the project's exit-code policy (0 ok, 1 internal, 2 bad input)."""
+    args = sys.argv[1:] if argv is None else list(argv)
+    user_errors = USER_ERRORS()
+    try:
+        cli.main(args=args, prog_name="cyclewright", standalone_mode=False)
+    except click.exceptions.NoArgsIsHelpError as exc:
+        click.echo(exc.ctx.get_help() if exc.ctx else str(exc))
+        sys.exit(0)
+    except click.exceptions.Exit as exc:
+        sys.exit(exc.exit_code)
+    except click.exceptions.Abort:
+        click.echo("error: interrupted", err=True)
+        sys.exit(130)
+    except click.ClickException as exc:
+        msg = " ".join(exc.format_message().split())
+        click.echo(f"error: {msg}", err=True)
+        sys.exit(2)
+    except user_errors as exc:
+        msg = " ".join(str(exc).split())
+        click.echo(f"error: {msg}", err=True)
+        sys.exit(2)
+    except KeyboardInterrupt:
+        click.echo("error: interrupted", err=True)
+        sys.exit(130)
+    except BrokenPipeError:
+        sys.exit(0)
+    except Exception as exc:
+        if os.environ.get("CYCLEWRIGHT_DEBUG"):
+            raise
+        msg = " ".join(str(exc).split())
+        click.echo(f"error: internal failure: {type(exc).__name__}: {msg}", err=True)
+        sys.exit(1)
+    sys.exit(0)

@@ -1,0 +1,1 @@
+"""Commands of the cyclewright CLI; each module exposes ``COMMANDS``."""

@@ -1,0 +1,163 @@
+"""Rendering results: JSON documents, rich tables, CSV.
+
+Conventions (shared by every command)
+-------------------------------------
+- JSON: one document on stdout; integers stay JSON integers (any size);
+  rationals become ``"p/q"`` strings (``"5"`` when integral); floats only
+  where a value is a rate or a plot coordinate.
+- Tables: rich tables on stdout; progress and warnings on stderr.
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import enum
+import io
+import json
+import math
+import os
+import sys
+from collections.abc import Iterable, Mapping, Sequence
+from fractions import Fraction
+from pathlib import Path
+
+__all__ = [
+    "jsonable",
+    "emit_json",
+    "stdout_console",
+    "stderr_console",
+    "make_table",
+    "short",
+    "write_csv",
+]
+
+
+def jsonable(obj):
+    """Convert results to JSON-ready data (see module docstring for the conventions).
+
+    >>> jsonable({"q": Fraction(19, 5), "n": 2**70, "t": (1, 2)})
+    {'q': '19/5', 'n': 1180591620717411303424, 't': [1, 2]}
+    """
+    if obj is None or isinstance(obj, (bool, str)):
+        return obj
+    if isinstance(obj, int):
+        return int(obj)
+    if isinstance(obj, Fraction):
+        return str(obj)
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, enum.Enum):
+        return jsonable(obj.value)
+    if isinstance(obj, Path):
+        return str(obj)
+    if isinstance(obj, Mapping):
+        return {str(k): jsonable(v) for k, v in obj.items()}
+    if hasattr(obj, "to_dict") and callable(obj.to_dict):
+        return jsonable(obj.to_dict())
+    if dataclasses.is_dataclass(obj) and not isinstance(obj, type):
+        return jsonable({f.name: getattr(obj, f.name) for f in dataclasses.fields(obj)})
+    if isinstance(obj, (list, tuple, set, frozenset)):
+        return [jsonable(v) for v in obj]
+    tname = type(obj).__name__
+    if tname == "mpz":
+        return int(obj)
+    if tname == "mpq":
+        return str(Fraction(int(obj.numerator), int(obj.denominator)))
+    if hasattr(obj, "item"):  # numpy scalars
+        return jsonable(obj.item())
+    return str(obj)
+
+
+def emit_json(obj, stream=None) -> None:
+    """Print ``obj`` as one JSON document."""
+    stream = stream or sys.stdout
+    stream.write(json.dumps(jsonable(obj), indent=2) + "\n")
+
+
+def _console(stream):
+    from rich.console import Console
+
+    tty = stream.isatty()
+    width = None if tty else int(os.environ.get("COLUMNS", "160"))
+    return Console(file=stream, width=width, highlight=False, soft_wrap=False, no_color=not tty)
+
+
+def stdout_console():
+    """A rich console on stdout (plain text when not a terminal)."""
+    return _console(sys.stdout)
+
+
+def stderr_console():
+    """A rich console on stderr, for progress and warnings."""
+    return _console(sys.stderr)
+
+
+def short(value, digits: int = 40) -> str:
+    """Human text for a value; very long integers are elided with their digit count.
+
+    >>> short(Fraction(19, 5))
+    '19/5'
+    >>> short(3**100, digits=20)
+    '515377520732011331036461129765621272702107522001 (48 digits)'
+    >>> short(3**100, digits=10)
+    '51537…22001 (48 digits)'
+    """
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if value is None:
+        return "-"
+    if isinstance(value, float):
+        return f"{value:.6g}"
+    text = str(value)
+    n = len(text.lstrip("-"))
+    if isinstance(value, (int, Fraction)) and n > digits:
+        if isinstance(value, int) and n <= 2 * digits + 8:
+            return f"{text} ({n} digits)"
+        keep = max(digits // 2, 5)
+        return f"{text[:keep]}…{text[-keep:]} ({n} digits)"
+    return text
+
+
+def make_table(
+    title: str | None, columns: Sequence[str], rows: Iterable[Sequence], caption: str | None = None
+):
+    """A rich table with the given header and rows (cells rendered with :func:`short`)."""
+    from rich.table import Table
+
+    t = Table(
+        title=title, caption=caption, show_lines=False, title_justify="left", caption_justify="left"
+    )
+    for c in columns:
+        t.add_column(c, overflow="fold")
+    for row in rows:
+        t.add_row(*[v if isinstance(v, str) else short(v) for v in row])
+    return t
+
+
+def write_csv(path_or_stream, columns: Sequence[str], rows: Iterable[Sequence]) -> None:
+    """Write rows as CSV (values through :func:`jsonable`; lists joined with spaces)."""
+
+    def cell(v):
+        v = jsonable(v)
+        if isinstance(v, list):
+            return " ".join(str(x) for x in v)
+        if v is None:
+            return ""
+        return v
+
+    if isinstance(path_or_stream, (str, os.PathLike)):
+        with open(path_or_stream, "w", newline="") as fh:
+            write_csv(fh, columns, rows)
+        return
+    w = csv.writer(path_or_stream, lineterminator="\n")
+    w.writerow(columns)
+    for row in rows:
+        w.writerow([cell(v) for v in row])
+
+
+def csv_text(columns: Sequence[str], rows: Iterable[Sequence]) -> str:
+    """CSV as a string (see :func:`write_csv`)."""
+    buf = io.StringIO()
+    write_csv(buf, columns, rows)
+    return buf.getvalue()

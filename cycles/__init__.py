@@ -1,0 +1,47 @@
+"""cycles: the mathematics of cyclewright.
+
+The public API is re-exported here and loaded lazily, so that importing
+``cycles`` stays cheap (the compiled kernels load only when a scan runs).
+
+>>> import maps, cycles
+>>> cycles.solve(maps.get("3x+1"), "10").integral
+True
+"""
+
+from __future__ import annotations
+
+import importlib
+
+# public name -> module that defines it
+_EXPORTS = {
+    "Label": "labels",
+    "EXACT": "labels",
+    "CERTIFIED": "labels",
+    "PROVED": "labels",
+    "HEURISTIC": "labels",
+    "HEURISTIC_CAUTION": "labels",
+    "parse_itinerary": "itinerary",
+    "format_itinerary": "itinerary",
+    "composite": "itinerary",
+    "ItineraryError": "itinerary",
+    "solve": "solver",
+    "RationalCycle": "solver",
+    "orbit": "orbit",
+    "Orbit": "orbit",
+    "brent": "orbit",
+}
+
+__all__ = sorted(_EXPORTS)
+
+
+def __getattr__(name: str):
+    module = _EXPORTS.get(name)
+    if module is None:
+        raise AttributeError(f"module 'cycles' has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"cycles.{module}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return sorted(set(globals()) | set(_EXPORTS))
