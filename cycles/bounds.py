@@ -459,7 +459,7 @@ def _estimate(st: _Setup, lam: float) -> float:
     betas = [(b / a, c) for a, b, c in st.S]
     tot = sum(abs(bb) * c for bb, c in betas)
     hi = tot / abs(lam) + float(st.beta_max) + 1.0
-    lo = float(st.beta_max) + 1e-12 if not st.growth else 1e-12
+    lo = float(st.beta_max) * (1 + 1e-9) + 1e-12 if not st.growth else 1e-12
 
     def g(M: float) -> float:
         return sum(c * math.log1p(bb / M) for bb, c in betas) - lam
@@ -511,25 +511,33 @@ def _integer_bound(st: _Setup, lam: float) -> int:
     return lo
 
 
-def _iv_of(iv, q: Interval):
-    """An mpmath interval enclosing the rational interval ``q``."""
-    lo = iv.mpf(q.lo.numerator) / q.lo.denominator
-    hi = iv.mpf(q.hi.numerator) / q.hi.denominator
-    return iv.mpf([lo.a, hi.b])
+def _lam_at(iv, st: _Setup, content: tuple[int, ...]):
+    """Λ = k ln d - sum c_r ln a_r as an mpmath interval at the current precision."""
+    lam = st.k * iv.log(iv.mpf(st.d))
+    for (a, _b), c in zip(st.branches, content):
+        if c and a != 1:
+            lam -= c * iv.log(iv.mpf(a))
+    return lam
+
+
+def _start_prec(st: _Setup) -> int:
+    """Bits needed to see Λ through the cancellation of k ln d against ln A, plus margin."""
+    lam = abs(_log_ratio_float(st.d**st.k, st.A)) or 2.0**-60
+    size = max(st.k * math.log2(st.d), 1.0)
+    return int(96 + max(0.0, math.log2(size) - math.log2(lam)))
 
 
 def _real_interval(st: _Setup, content: tuple[int, ...], M: int) -> Interval:
     """Certified enclosure of M* inside [M, M+1] by interval arithmetic."""
-    lam_iv = _log_form(st.d, st.branches, content, 64)
+    prec = _start_prec(st)
     if len(st.S) == 1:
         a, b, c = st.S[0]
-        prec = 128
         while True:
             with _ivprec(prec) as iv:
-                lam = _iv_of(iv, lam_iv)
+                lam = _lam_at(iv, st, content)
                 val = (iv.mpf(b) / a) / (iv.exp(lam / c) - 1)
                 out = _iv_to_interval(val)
-            if out.width * 2**40 <= max(out.hi, 1) or prec > 8192:
+            if out.width * 2**40 <= max(out.hi, 1) or prec > 16384:
                 break
             prec *= 2
         lo = max(out.lo, Fraction(M))
@@ -541,7 +549,7 @@ def _real_interval(st: _Setup, content: tuple[int, ...], M: int) -> Interval:
     lo, hi = Fraction(M), Fraction(M + 1)
     for _ in range(48):
         mid = (lo + hi) / 2
-        sign = _certified_sign_g(st, lam_iv, mid)
+        sign = _certified_sign_g(st, content, mid, prec)
         if sign is None:
             break
         if (sign > 0) == st.growth:
@@ -551,16 +559,16 @@ def _real_interval(st: _Setup, content: tuple[int, ...], M: int) -> Interval:
     return Interval(lo, hi)
 
 
-def _certified_sign_g(st: _Setup, lam_iv: Interval, M: Fraction) -> int | None:
-    """Sign of g(M) = sum c ln(1 + β/M) - Λ, certified, or None if undecided at 4096 bits."""
-    prec = 96
-    while prec <= 4096:
+def _certified_sign_g(st: _Setup, content, M: Fraction, prec: int) -> int | None:
+    """Sign of g(M) = sum c ln(1 + β/M) - Λ, certified, or None if undecided at 8 x prec bits."""
+    top = 8 * prec
+    while prec <= top:
         with _ivprec(prec) as iv:
             Mi = iv.mpf(M.numerator) / M.denominator
             tot = iv.mpf(0)
             for a, b, c in st.S:
                 tot += c * iv.log(1 + iv.mpf(b) / (a * Mi))
-            g = _iv_to_interval(tot - _iv_of(iv, lam_iv))
+            g = _iv_to_interval(tot - _lam_at(iv, st, content))
         if g.lo > 0:
             return 1
         if g.hi < 0:
@@ -769,10 +777,6 @@ def _prime_exponents(d: int, branches: tuple, content: tuple[int, ...]) -> dict[
             for p, v in _factor(abs(a)):
                 e[p] = e.get(p, 0) - c * v
     return {p: v for p, v in e.items() if v}
-
-
-def _floor_fraction_from_iv(x, iv_lo=True) -> Fraction:
-    return _iv_to_interval(x).lo
 
 
 def _laurent_log_lower(p1: int, b1: int, p2: int, b2: int) -> Fraction:
