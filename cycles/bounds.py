@@ -545,8 +545,17 @@ def _real_interval(st: _Setup, content: tuple[int, ...], M: int) -> Interval:
         if lo > hi:  # pragma: no cover - would contradict the exact integer test
             raise AssertionError("certified interval disagrees with the exact integer bound")
         return Interval(lo, hi)
-    # General content: bisection on [M, M+1] with certified signs of g.
+    # General content: a high-precision root of g, then two certified signs around it;
+    # bisection with certified signs if that fails.
     lo, hi = Fraction(M), Fraction(M + 1)
+    root = _root_estimate(st, content, M, prec)
+    if root is not None and root > 0:
+        eps = max(root, Fraction(1)) / 2**44
+        a_, b_ = max(lo, root - eps), min(hi, root + eps)
+        sa = _certified_sign_g(st, content, a_, prec)
+        sb = _certified_sign_g(st, content, b_, prec)
+        if sa is not None and sb is not None and sa != sb and (sa > 0) == st.growth:
+            return Interval(a_, b_)
     for _ in range(48):
         mid = (lo + hi) / 2
         sign = _certified_sign_g(st, content, mid, prec)
@@ -557,6 +566,60 @@ def _real_interval(st: _Setup, content: tuple[int, ...], M: int) -> Interval:
         else:
             hi = mid
     return Interval(lo, hi)
+
+
+def _root_estimate(st: _Setup, content, M: int, prec: int) -> Fraction | None:
+    """The root of g(M) = sum c ln(1 + β/M) - Λ in [M, M+1], to about prec bits (not certified)."""
+    import mpmath
+
+    old = mpmath.mp.prec
+    try:
+        mpmath.mp.prec = prec
+        lam = st.k * mpmath.log(st.d)
+        for (a, _b), c in zip(st.branches, content):
+            if c and a != 1:
+                lam -= c * mpmath.log(a)
+        terms = [(mpmath.mpf(b) / a, c) for a, b, c in st.S]
+
+        def g(x):
+            return mpmath.fsum(c * mpmath.log1p(bb / x) for bb, c in terms) - lam
+
+        lo = mpmath.mpf(M)
+        if not st.growth:
+            bm = mpmath.mpf(st.beta_max.numerator) / st.beta_max.denominator
+            lo = max(lo, bm * (1 + mpmath.mpf(2) ** -40))
+        lo = max(lo, mpmath.mpf(2) ** -60)
+        hi = mpmath.mpf(M + 1)
+
+        def dg(x):
+            return -mpmath.fsum(c * bb / (x * (x + bb)) for bb, c in terms)
+
+        # Newton from the middle, kept inside [lo, hi] (g is monotone there); bisection
+        # steps whenever Newton would leave the bracket.
+        x = (lo + hi) / 2
+        tol = mpmath.mpf(2) ** (-prec + 8)
+        for _ in range(200):
+            gx = g(x)
+            if (gx > 0) == st.growth:
+                lo = x
+            else:
+                hi = x
+            step = gx / dg(x)
+            nx = x - step
+            if not (lo < nx < hi):
+                nx = (lo + hi) / 2
+            if abs(nx - x) <= tol * nx or hi - lo <= tol * hi:
+                x = nx
+                break
+            x = nx
+        lo = hi = x
+        man, exp = ((lo + hi) / 2).man_exp
+        man, exp = int(man), int(exp)
+        return Fraction(man << exp) if exp >= 0 else Fraction(man, 1 << -exp)
+    except (ValueError, ZeroDivisionError, ArithmeticError):
+        return None
+    finally:
+        mpmath.mp.prec = old
 
 
 def _certified_sign_g(st: _Setup, content, M: Fraction, prec: int) -> int | None:
@@ -614,7 +677,9 @@ def minimum_bound(m: Map, content_or_type, side: str = "positive") -> MinimumBou
     return _bound_of_content(m, content, side)
 
 
-def _bound_of_content(m: Map, content: tuple[int, ...], side: str) -> MinimumBound:
+def _bound_of_content(
+    m: Map, content: tuple[int, ...], side: str, with_interval: bool = True
+) -> MinimumBound:
     st = _setup(m, content, side)
     label = m.label
     formula = _formula(m, content, st)
@@ -653,7 +718,7 @@ def _bound_of_content(m: Map, content: tuple[int, ...], side: str) -> MinimumBou
         )
     lam = _log_ratio_float(st.d**st.k, st.A)
     M = _integer_bound(st, lam)
-    interval = _real_interval(st, content, M)
+    interval = _real_interval(st, content, M) if with_interval else None
     reason = (
         "relevant offsets (times the side's sign) are >= 0: the product of (1 + b_r/(a_r n_i)) "
         "over the cycle equals d^k/A and is at most prod (1 + b_r/(a_r m))^{c_r}"
@@ -1183,7 +1248,7 @@ def _largest(m: Map, k_lo: int, k_hi: int, side: str) -> LargestBound:
     for M_hi, _k, content in cands:
         if best_bound is not None and M_hi < best + 1:
             break
-        b = _bound_of_content(m, content, side)
+        b = _bound_of_content(m, content, side, with_interval=False)
         checks += 1
         if not (b.applies and b.possible):
             continue
@@ -1195,6 +1260,8 @@ def _largest(m: Map, k_lo: int, k_hi: int, side: str) -> LargestBound:
             best = b.integer
             best_bound = b
             best_content = content
+    if best_bound is not None:
+        best_bound = _bound_of_content(m, best_content, side)  # with its certified interval
     return LargestBound(
         label,
         side,
@@ -1231,7 +1298,8 @@ def _candidates_halving(m: Map, k_lo: int, k_hi: int, side: str):
         xs = np.ceil(q) - 1 if growth else np.floor(q) + 1
         # near-integer k/t: decide a^x vs 2^k exactly
         frac = q - np.floor(q)
-        near = np.nonzero((frac < 1e-9) | (frac > 1 - 1e-9))[0]
+        tol = 1e-9 + 1e-12 * ks  # |error of q| <= k * 2^-50 with room to spare
+        near = np.nonzero((frac < tol) | (frac > 1 - tol))[0]
         for i in near:
             k = int(ks[i])
             if growth:  # largest x with a^x < 2^k
