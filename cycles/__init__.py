@@ -32,7 +32,6 @@ _EXPORTS = {
     "necklace_count": "necklaces",
     "lyndon_count": "necklaces",
     "word_count": "necklaces",
-    "necklaces": "necklaces",
     "lyndon_words": "necklaces",
     "necklace_numerators": "necklaces",
     "type_content": "necklaces",

@@ -6,6 +6,7 @@ import math
 import os
 import sys
 import tempfile
+import time
 from pathlib import Path
 
 import click
@@ -16,7 +17,7 @@ from maps import MapError, parse_int_range
 
 from ..errors import BadInput
 from ..options import json_option, maps_option, resolve_map
-from ..render import emit_json, make_table, short, stdout_console, write_csv
+from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
 from .count_cmd import parse_count
 
 __all__ = ["COMMANDS", "plot_sweep"]
@@ -123,7 +124,7 @@ def sweep_cmd(
             raise BadInput(f"{what} {path} exists; use --force to overwrite it")
     if plot_path and not plot_path.lower().endswith(".png"):
         raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
-    s = sweep(m, xs, extra, side, limit=limit)
+    s = sweep(m, xs, extra, side, limit=limit, progress=_progress())
     # Outputs are written only after the whole sweep succeeded.
     if csv_path:
         cols = s.columns
@@ -142,12 +143,36 @@ def sweep_cmd(
     _print_human(s, max_rows, csv_path, plot_path)
 
 
+def _progress():
+    """Row counter on stderr (only when it is a terminal), at most a few updates a second."""
+    if not sys.stderr.isatty():
+        return None
+    con = stderr_console()
+    last = [0.0]
+
+    def cb(done: int, total: int) -> None:
+        now = time.monotonic()
+        if done == total or now - last[0] > 0.25:
+            last[0] = now
+            con.print(f"sweep: {done:,} / {total:,} types", end="\r")
+
+    return cb
+
+
+def _public_mode(tmp: str) -> None:
+    # mkstemp creates 0600 files; give the result the usual permissions (umask applies)
+    um = os.umask(0)
+    os.umask(um)
+    os.chmod(tmp, 0o666 & ~um)
+
+
 def _atomic_write(path: str, writer) -> None:
     target = Path(path)
     fd, tmp = tempfile.mkstemp(dir=target.parent or Path("."), prefix=f".{target.name}.")
     try:
         with os.fdopen(fd, "w", newline="") as fh:
             writer(fh)
+        _public_mode(tmp)
         os.replace(tmp, target)
     except BaseException:
         if os.path.exists(tmp):
@@ -298,6 +323,7 @@ def plot_sweep(s, path: str) -> None:
     os.close(fd)
     try:
         fig.savefig(tmp, format="png")
+        _public_mode(tmp)
         os.replace(tmp, target)
     except BaseException:
         if os.path.exists(tmp):
