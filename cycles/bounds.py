@@ -220,14 +220,6 @@ def resolve_content(m: Map, content_or_type) -> tuple[int, ...]:
 
 
 # ------------------------------------------------------------------ log form
-def _A_of(m: Map, content: Sequence[int]) -> int:
-    A = 1
-    for (a, _b), c in zip(m.branches, content):
-        if c:
-            A *= a**c
-    return A
-
-
 def log_form(m: Map, content_or_type, *, rel_bits: int = 64) -> Interval:
     """``Λ = k ln d - sum_r c_r ln a_r`` (that is ``ln(d^k / A)``) as a certified interval.
 
@@ -963,7 +955,7 @@ def _linear_form_bound(d: int, branches: tuple, content: tuple[int, ...]) -> Lin
         for (a, _b), c in zip(branches, content):
             if c and abs(a) != 1:
                 ea += c * _log_base_exact(abs(a), base)
-        if ea and (d**k > base**ea) != (d**k < base**ea):
+        if ea and d**k != base**ea:
             best = _laurent_log_lower(d, k, base, ea)
             return LinearFormBound(
                 f"{k} ln {d} - {ea} ln {base}",

@@ -99,6 +99,7 @@ DEFAULT_SWEEP_LIMIT = 10**4
 
 _BYTES_PER_LISTED = 240  # an IntegerCycle without its strings, CPython, measured roughly
 _SECONDS_PER_LETTER = 2e-7  # enumeration cost per necklace letter on a 2020s CPU (rough)
+_MAX_SECONDS = 86400.0  # enumerations estimated above a day are refused
 
 
 # ------------------------------------------------------------------ results
@@ -424,13 +425,16 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
 
     Memory: the search itself needs O(k); the worst case is that every
     necklace is an integer cycle and is listed, ``240 + 2k`` bytes each.
+    Time: about ``2e-7 (1 + k/2000)`` seconds per letter (rough; numerators
+    have about ``k`` bits).
 
     >>> mem, secs = enumeration_estimate(10**6, 30)
     >>> mem
     300000000
     """
     per = _BYTES_PER_LISTED + 2 * k
-    return necklaces * per, necklaces * k * _SECONDS_PER_LETTER
+    # numerators have about k bits: big-integer steps slow down for long words
+    return necklaces * per, necklaces * k * _SECONDS_PER_LETTER * (1 + k / 2000)
 
 
 def _check_limit(limit) -> int:
@@ -464,8 +468,8 @@ def count(
     limit : int
         Enumerate the necklaces when there are at most this many
         (default ``10**6``). A limit that would let the enumeration list
-        more integer cycles than half the memory holds is refused
-        (:class:`~cycles.errors.InputError`, with the estimate).
+        more integer cycles than half the memory holds, or run for more than
+        a day, is refused (:class:`~cycles.errors.InputError`, with the estimate).
     progress : callable(done, total), optional
         Called during the enumeration every 65536 necklaces.
 
@@ -545,6 +549,11 @@ def _count_content(
                 f"enumerating {neck:.3g} necklaces (allowed by the limit {_fmt_count(limit)}) could need up to "
                 f"{_fmt_bytes(mem)} to list integer cycles (budget {_fmt_bytes(budget)}) and about "
                 f"{_fmt_seconds(secs)}; lower the limit"
+            )
+        if secs > _MAX_SECONDS:
+            raise InputError(
+                f"enumerating {neck:.3g} necklaces of length {kk} (allowed by the limit "
+                f"{_fmt_count(limit)}) would take about {_fmt_seconds(secs)}; lower the limit"
             )
         smallest, largest, cycles, unrealized = _enumerate(m, c, D, neck, progress)
         cand = largest // abs(D) if largest is not None else 0
