@@ -358,7 +358,11 @@ def _resolve(m: Map, k, x, content) -> tuple[int, ...]:
                 raise InputError(
                     f"the content {list(c)} sums to {sum(c)}, not to the length k = {k}"
                 )
-        if x is not None and d == 2 and c[1] != x:
+        if x is not None and d != 2:
+            raise InputError(
+                f"x (odd steps) applies to two-branch maps; this map has divisor {d}: give the content only"
+            )
+        if x is not None and c[1] != x:
             raise InputError(f"the content has {c[1]} steps on residue 1, not x = {x}")
         return c
     if d != 2:
