@@ -16,6 +16,8 @@ from ..render import emit_json, make_table, short, stdout_console
 
 # Results above this many decimal digits are refused (1e100000 and the like).
 _MAX_DIGITS = 100_000
+# The floor's work grows with the digits of N (continued fraction terms, precision).
+_MAX_FLOOR_DIGITS = 1000
 
 _POWER = re.compile(r"^(\d+)\s*(?:\^|\*\*)\s*(\d+)$")
 _TIMES_POWER = re.compile(r"^(\d+)\s*\*\s*(\d+)\s*(?:\^|\*\*)\s*(\d+)$")
@@ -113,6 +115,11 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
     """
     m = resolve_map(map_spec, map_files)
     n = parse_big_int(verified_to, "--verified-to", minimum=0)
+    if len(str(n)) > _MAX_FLOOR_DIGITS:
+        raise BadInput(
+            f"--verified-to has {len(str(n))} digits; the floor accepts at most "
+            f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
+        )
     if not 0 <= next_types <= 1000:
         raise BadInput(f"--next must be between 0 and 1000, got {next_types}")
     sides = ["positive", "negative"] if side == "both" else [side]
@@ -170,12 +177,9 @@ def _print_floor(con, r) -> None:
     ]
     con.print(make_table(None, ["quantity", "value", "label"], rows))
     if r.next_possible:
+        con.print("next possible types (proved; no other type has a length in between):")
         con.print(
-            make_table(
-                "next possible types (proved: no others in between)",
-                ["length k", "odd steps x"],
-                [[k, x] for k, x in r.next_possible],
-            )
+            make_table(None, ["length k", "odd steps x"], [[k, x] for k, x in r.next_possible])
         )
     con.print(f"result (proved, given the condition): {r.statement}")
 
