@@ -49,6 +49,16 @@ _EXPORTS = {
     "IntegerCycle": "counting",
     "sweep": "counting",
     "Sweep": "counting",
+    "functional_graph": "graph",
+    "FunctionalGraph": "graph",
+    "GraphCycle": "graph",
+    "floor": "floors",
+    "Floor": "floors",
+    "Approximant": "floors",
+    "continued_fraction_log": "floors",
+    "convergents": "floors",
+    "semiconvergents": "floors",
+    "simplest_fraction": "floors",
 }
 
 __all__ = sorted(_EXPORTS)
