@@ -29,6 +29,14 @@ _EXPORTS = {
     "orbit": "orbit",
     "Orbit": "orbit",
     "brent": "orbit",
+    "scan": "scan",
+    "ScanResult": "scan",
+    "FoundCycle": "scan",
+    "ScanProgress": "scan",
+    "ScanStore": "store",
+    "default_store_path": "store",
+    "SieveTable": "sieve",
+    "sieve_table": "sieve",
 }
 
 __all__ = sorted(_EXPORTS)
