@@ -21,6 +21,7 @@ from __future__ import annotations
 import multiprocessing
 import os
 import socket
+import time
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from urllib.parse import urlsplit
@@ -112,11 +113,20 @@ def _probe(address: str, timeout: float) -> None:
         raise InputError(f"{address!r} is not a scheduler address like tcp://HOST:PORT") from None
     if not host or not port:
         raise InputError(f"{address!r} is not a scheduler address like tcp://HOST:PORT")
+    deadline = time.monotonic() + timeout
     try:
-        with socket.create_connection((host, port), timeout=timeout):
-            pass
+        with socket.create_connection((host, port), timeout=timeout) as sock:
+            if parts.scheme == "tcp":
+                # A scheduler greets every new connection at once (its comm
+                # handshake); a port that accepts and stays silent is not one.
+                sock.settimeout(max(0.1, deadline - time.monotonic()))
+                if not sock.recv(1):
+                    raise ConnectionResetError("connection closed without a greeting")
     except OSError as exc:
-        why = "timed out" if isinstance(exc, socket.timeout) else (exc.strerror or str(exc))
+        if isinstance(exc, socket.timeout):
+            why = "no answer"
+        else:
+            why = exc.strerror or str(exc)
         raise InputError(
             f"cannot reach the Dask scheduler at {address} ({why}, timeout {timeout:g} s)"
         ) from None
@@ -172,7 +182,7 @@ class DaskExecutor:
         live = [self.client.submit(fn, t, pure=False) for _, t in zip(range(self.window), it)]
         if not live:
             return
-        queue = self._distributed.as_completed(live)
+        queue = self._distributed.as_completed(live, loop=self.client.loop)
         try:
             for fut in queue:
                 nxt = next(it, None)

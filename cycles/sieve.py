@@ -176,7 +176,7 @@ def safe_depth(m: Map, limit: int = MAX_DEPTH) -> int:
 
     >>> import maps
     >>> safe_depth(maps.get("3x+1")), safe_depth(maps.get("5x+1")), safe_depth(maps.get("181x+1"))
-    (24, 18, 6)
+    (24, 24, 8)
     """
     d = m.divisor
     amax = max(abs(a) for a in m.multipliers)
