@@ -185,11 +185,14 @@ def _fast_pass(
     sA,
     sC,
     sqmax,
+    qfast,
     cyc_s,
     cyc_len,
     hard_s,
 ):
     """Classify ``[lo, hi]`` until an output buffer fills.
+
+    ``qfast``: every class may jump for blocks ``q <= qfast`` (-1: not so).
 
     Returns ``(done, next_start, n_cycles, n_hard, n_jumped)``: when not done,
     every start below ``next_start`` is classified. Starts not listed as a
@@ -247,6 +250,34 @@ def _fast_pass(
             jlo = np.searchsorted(sc, first - base)
         if hi - base < dK - 1:
             jhi = np.searchsorted(sc, hi - base, side="right")
+        if d2 and q <= qfast:
+            # every class jumps and every jump fits int64 (the common case)
+            njump += jhi - jlo
+            for j in range(jlo, jhi):
+                s = base + sc[j]
+                v = sA[j] * q + sC[j]
+                if abs(v) > s:
+                    code, steps = _cont2(s, v, K, cap, tie, a0, b0, a1, b1, vm0, vm1, safe)
+                    if code == DROP:
+                        continue
+                elif v == s:
+                    code, steps = CYCLE, K
+                elif v != -s or tie:
+                    continue
+                else:
+                    code, steps = _cont2(s, v, K, cap, tie, a0, b0, a1, b1, vm0, vm1, safe)
+                    if code == DROP:
+                        continue
+                if code == CYCLE:
+                    cyc_s[ncyc] = s
+                    cyc_len[ncyc] = steps
+                    ncyc += 1
+                else:
+                    hard_s[nhard] = s
+                    nhard += 1
+                if s != hi and (ncyc == cyc_cap or nhard == hard_cap):
+                    return False, s + 1, ncyc, nhard, njump - (jhi - j - 1)
+            continue
         for j in range(jlo, jhi):
             s = base + sc[j]
             if sjump[j] and q <= sqmax[j]:
@@ -736,8 +767,11 @@ def classify_range(
         Step cap ``C`` (the cycle-length bound ``K`` in a census).
     tie : bool
         True on the positive side (``v = -s`` counts as a drop).
-    table : cycles.sieve.SieveTable, optional
-        Residue sieve and K-step jumps; its depth must not exceed ``cap``.
+    table : SieveTable or sequence of SieveTable, optional
+        Residue sieves with their K-step jumps (depths at most ``cap``). A
+        table of depth ``K`` serves the starts ``>= d^K``; with several
+        (:func:`cycles.sieve.sieve_levels`), each start uses the deepest one
+        that applies, and starts below the shallowest are iterated one by one.
 
     Returns
     -------
@@ -753,16 +787,34 @@ def classify_range(
     """
     if not 1 <= lo <= hi <= INT64_MAX:
         raise ValueError(f"range [{lo}, {hi}] is outside [1, 2^63 - 1]")
-    if table is not None and table.depth > cap:
-        raise ValueError("the sieve depth exceeds the step cap")
+    if table is None:
+        levels = []
+    elif hasattr(table, "depth"):
+        levels = [table]
+    else:
+        levels = list(table)
+    levels = sorted((t for t in levels if t.depth > 0), key=lambda t: t.depth)
+    if any(t.depth > cap for t in levels):
+        raise ValueError("a sieve depth exceeds the step cap")
     out = RangeOutcome(lo, hi)
+    # segment [bound_i, bound_{i+1} - 1] uses levels[i - 1] (none below the first bound)
+    bounds = [1] + [t.modulus for t in levels] + [INT64_MAX + 1]
+    for i in range(len(bounds) - 1):
+        a, b = max(lo, bounds[i]), min(hi, bounds[i + 1] - 1)
+        if a <= b:
+            _classify_segment(km, a, b, cap, tie, levels[i - 1] if i else None, out)
+    out.cycles.sort()
+    return out
+
+
+def _classify_segment(km, lo, hi, cap, tie, table, out: RangeOutcome) -> None:
     d = km.divisor
-    if table is None or table.depth == 0:
-        K, dK = 0, 1
-        sc = sjump = sA = sC = sqmax = _EMPTY
+    if table is None:
+        K, dK, qfast = 0, 1, -1
+        sc = sA = sC = sqmax = _EMPTY
         sjump = _EMPTY_B
     else:
-        K, dK = table.depth, table.modulus
+        K, dK, qfast = table.depth, table.modulus, table.qfast
         sc, sjump, sA, sC, sqmax = table.arrays()
     cyc_s = np.empty(_CYCLE_BUF, np.int64)
     cyc_len = np.empty(_CYCLE_BUF, np.int64)
@@ -788,6 +840,7 @@ def classify_range(
             sA,
             sC,
             sqmax,
+            int(qfast),
             cyc_s,
             cyc_len,
             hard_s,
@@ -816,9 +869,7 @@ def classify_range(
         if done:
             break
         pos = nxt
-    out.sieved = (hi - lo + 1) - iterated
-    out.cycles.sort()
-    return out
+    out.sieved += (hi - lo + 1) - iterated
 
 
 def _iterated_count(lo: int, hi: int, K: int, dK: int, table) -> int:

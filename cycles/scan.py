@@ -269,12 +269,12 @@ class ChunkOutcome:
 @functools.lru_cache(maxsize=16)
 def _side_tools(m: Map, side: str, cap: int):
     from .kernels import KernelMap
-    from .sieve import sieve_table
+    from .sieve import sieve_levels
 
     mm = m if side == "positive" else m.conjugate()
     km = KernelMap.from_map(mm)
-    table = sieve_table(mm, cap) if km is not None else None
-    return km, table
+    levels = sieve_levels(mm, cap) if km is not None else ()
+    return km, levels
 
 
 def _python_outcomes(m: Map, side: str, lo: int, hi: int, cap: int):
@@ -329,7 +329,7 @@ def run_chunk(task: ChunkTask) -> ChunkOutcome:
 
         out = classify_range(km, task.lo, task.hi, task.cap, task.side == "positive", table)
         drops, other, cyc, sieved = out.drops, out.other, out.cycles, out.sieved
-        depth = table.depth if table is not None else 0
+        depth = max((t.depth for t in table), default=0)
         opens_arr = np.array(out.open_starts, dtype=np.int64)
         esc_arr = np.array(out.open_escaped, dtype=bool)
     cycles = [verified_cycle(m, task.side, s, L).to_record() for s, L in cyc]

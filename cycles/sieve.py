@@ -6,6 +6,7 @@ Inside
   sieve, each with its exact ``K``-step composite (the jump) and whether the
   jump may be taken; built by :func:`sieve_table`.
 - :func:`sieve_table` -- build (and cache) the table of a map for a depth limit.
+- :func:`sieve_levels` -- a deep table and a shallow one for the starts below ``d^K``.
 - :func:`safe_depth` -- the largest depth whose construction provably fits int64.
 - :func:`jump_table` -- the exact composite of ``j`` steps for every residue
   mod ``d^j`` (plain Python integers; used by tests and for inspection).
@@ -83,6 +84,7 @@ from maps import Map
 __all__ = [
     "SieveTable",
     "sieve_table",
+    "sieve_levels",
     "safe_depth",
     "jump_table",
     "class_word",
@@ -240,6 +242,13 @@ class SieveTable:
     def arrays(self):
         return self.classes, self.jump, self.A, self.C, self.qmax
 
+    @functools.cached_property
+    def qfast(self) -> int:
+        """Largest ``q`` below which every class jumps and every jump fits int64 (-1: none)."""
+        if not self.depth or not self.survivors or not bool(self.jump.all()):
+            return -1
+        return int(self.qmax.min())
+
     @property
     def survivors(self) -> int:
         return int(self.classes.shape[0])
@@ -310,6 +319,22 @@ def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
     _walk(d, ma, mb, K, d**K, True, oc, oj, oA, oC, oq)
     order = np.argsort(oc, kind="stable")
     return SieveTable(m.key, K, d**K, oc[order], oj[order], oA[order], oC[order], oq[order])
+
+
+def sieve_levels(m: Map, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:
+    """The sieve of depth ``K`` (see :func:`sieve_table`) and one of depth ``K // 2``.
+
+    The deep table serves starts ``>= d^K``; the shallow one the starts in
+    ``[d^(K//2), d^K)``, which would otherwise be iterated one by one.
+
+    >>> import maps
+    >>> [t.depth for t in sieve_levels(maps.get("3x+1"))]
+    [12, 24]
+    """
+    deep = sieve_table(m, limit)
+    if deep.depth < 8:
+        return (deep,) if deep.depth else ()
+    return (sieve_table(m, deep.depth // 2), deep)
 
 
 def class_word(m: Map, c: int, K: int) -> tuple[int, ...]:

@@ -24,7 +24,7 @@ from cycles.kernels import (
     classify_range,
     classify_starts,
 )
-from cycles.sieve import class_word, jump_table, safe_depth, sieve_table
+from cycles.sieve import class_word, jump_table, safe_depth, sieve_levels, sieve_table
 from maps import Map
 
 _NAMES = {DROP: "drop", CYCLE: "cycle", OTHER: "other_cycle", OPEN: "open"}
@@ -56,7 +56,7 @@ def _kernel_outcomes(m: Map, side: str, lo: int, hi: int, cap: int, depth: int):
     """Per start: (outcome, steps) from one-start kernel calls, plus the range call."""
     mm = m if side == "positive" else m.conjugate()
     km = KernelMap.from_map(mm)
-    table = sieve_table(mm, min(cap, depth))
+    table = sieve_levels(mm, min(cap, depth))
     tie = side == "positive"
     per = {}
     for s in range(lo, hi + 1):
