@@ -66,24 +66,22 @@ class LocalExecutor:
         self.prepare = prepare
 
     def map_unordered(self, fn: Callable, tasks: Iterable) -> Iterator:
-        tasks = list(tasks)
-        if self.workers == 1 or len(tasks) <= 1:
-            for t in tasks:
+        it = iter(tasks)
+        head = [t for _, t in zip(range(2 * self.workers), it)]
+        if self.workers == 1 or len(head) <= 1:
+            for t in head:
+                yield fn(t)
+            for t in it:
                 yield fn(t)
             return
         if self.prepare is not None:
             self.prepare()
         methods = multiprocessing.get_all_start_methods()
         ctx = multiprocessing.get_context("fork" if "fork" in methods else None)
-        n = min(self.workers, len(tasks))
+        n = min(self.workers, len(head))
         pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         try:
-            it = iter(tasks)
-            pending = set()
-            for t in it:
-                pending.add(pool.submit(fn, t))
-                if len(pending) >= 2 * n:
-                    break
+            pending = {pool.submit(fn, t) for t in head}
             while pending:
                 done, pending = wait(pending, return_when=FIRST_COMPLETED)
                 for f in done:

@@ -85,6 +85,8 @@ __all__ = [
     "ChunkOutcome",
     "run_chunk",
     "plan_chunks",
+    "iter_chunks",
+    "count_chunks",
     "default_chunk_size",
     "DEFAULT_MAX_STEPS",
     "SIDES",
@@ -371,19 +373,42 @@ def default_chunk_size(m: Map) -> int:
     return 2**27 if m.drift_ratio() < 1 else 2**18
 
 
+def iter_chunks(start: int, to: int, chunk_size: int):
+    """The chunks of ``[start, to]`` on the grid of multiples of ``chunk_size``, lazily."""
+    lo = start
+    while lo <= to:
+        hi = min(to, (lo // chunk_size + 1) * chunk_size - 1)
+        yield (lo, hi)
+        lo = hi + 1
+
+
 def plan_chunks(start: int, to: int, chunk_size: int) -> list[tuple[int, int]]:
     """The chunks of ``[start, to]`` on the grid of multiples of ``chunk_size``.
 
     >>> plan_chunks(1, 25, 10)
     [(1, 9), (10, 19), (20, 25)]
     """
-    out = []
-    lo = start
-    while lo <= to:
-        hi = min(to, (lo // chunk_size + 1) * chunk_size - 1)
-        out.append((lo, hi))
-        lo = hi + 1
-    return out
+    return list(iter_chunks(start, to, chunk_size))
+
+
+def count_chunks(start: int, to: int, chunk_size: int) -> int:
+    """``len(plan_chunks(start, to, chunk_size))`` without listing them.
+
+    >>> count_chunks(1, 25, 10), count_chunks(10, 10, 10)
+    (3, 1)
+    """
+    return to // chunk_size - start // chunk_size + 1
+
+
+def _batches(start: int, to: int, chunk_size: int, size: int = 4096):
+    batch = []
+    for c in iter_chunks(start, to, chunk_size):
+        batch.append(c)
+        if len(batch) == size:
+            yield batch
+            batch = []
+    if batch:
+        yield batch
 
 
 # --------------------------------------------------------------------------- results
@@ -742,7 +767,6 @@ def scan(
     cap = max_cycle_length if max_cycle_length is not None else max_steps
     sides = SIDES if side == "both" else (side,)
     cs = chunk_size or default_chunk_size(m)
-    chunks = plan_chunks(start, to, cs)
 
     from .executors import make_executor
 
@@ -763,7 +787,6 @@ def scan(
                 max_steps,
                 max_cycle_length,
                 cs,
-                chunks,
                 progress,
                 t0,
             )
@@ -774,7 +797,7 @@ def scan(
         ex.close()
 
 
-def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, chunks, progress, t0) -> ScanResult:
+def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> ScanResult:
     branches = tuple(tuple(b) for b in m.branches)
     counts, cycles, ucount, uesc, ufirst, sieved, depth = {}, [], {}, {}, {}, {}, {}
     reused = 0
@@ -782,26 +805,33 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, chunks, progress, 
     total = to - start + 1
     for side in sides:
         sid = led.scan_id(side, max_steps, K)
-        done = led.finished(sid, chunks)
-        reused += len(done)
-        todo = [c for c in chunks if c not in done]
-        done_starts = sum(hi - lo + 1 for lo, hi in done)
-        unresolved = sum(r.counts["unresolved"] for r in done.values())
-        if todo:
+        # what the store already has (streamed: memory does not grow with the range)
+        done_starts = unresolved = n_done = 0
+        for batch in _batches(start, to, cs):
+            for r in led.finished(sid, batch).values():
+                n_done += 1
+                done_starts += r.hi - r.lo + 1
+                unresolved += r.counts["unresolved"]
+        reused += n_done
+
+        def todo(sid=sid, side=side):
+            for batch in _batches(start, to, cs):
+                have = led.finished(sid, batch)
+                for lo, hi in batch:
+                    if (lo, hi) not in have:
+                        yield ChunkTask(m.divisor, branches, side, lo, hi, cap, K is not None)
+
+        if done_starts < total:
             run_id = led.begin_run(sid, start, to, cs)
             status = "interrupted"
             try:
-                tasks = [
-                    ChunkTask(m.divisor, branches, side, lo, hi, cap, K is not None)
-                    for lo, hi in todo
-                ]
                 if progress is not None:
                     progress(
                         ScanProgress(
                             side, done_starts, total, unresolved, time.perf_counter() - t0, computed
                         )
                     )
-                for out in ex.map_unordered(run_chunk, tasks):
+                for out in ex.map_unordered(run_chunk, todo()):
                     led.record_chunk(
                         sid,
                         out.lo,
@@ -836,20 +866,27 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, chunks, progress, 
                     led.end_run(run_id, status)
                 except Exception:  # pragma: no cover - best effort while unwinding
                     pass
-        records = led.finished(sid, chunks)
-        if len(records) != len(chunks):  # pragma: no cover - defensive
-            raise RuntimeError("internal error: a chunk is missing from the store")
         c = dict.fromkeys(_COUNT_KEYS, 0)
-        for r in records.values():
-            for k in _COUNT_KEYS:
-                c[k] += r.counts[k]
-        counts[side] = c
-        sieved[side] = sum(r.sieved for r in records.values())
-        depth[side] = max((r.sieve_depth for r in records.values()), default=0)
-        cycles.extend(FoundCycle.from_record(rec) for rec in led.cycles(sid, start, to))
-        n_open, n_esc, first = led.unresolved_summary(sid, chunks, LISTED_UNRESOLVED)
+        n_sieved = n_depth = n_open = n_esc = 0
+        first: list[int] = []
+        for batch in _batches(start, to, cs):
+            records = led.finished(sid, batch)
+            if len(records) != len(batch):  # pragma: no cover - defensive
+                raise RuntimeError("internal error: a chunk is missing from the store")
+            for r in records.values():
+                for k in _COUNT_KEYS:
+                    c[k] += r.counts[k]
+                n_sieved += r.sieved
+                n_depth = max(n_depth, r.sieve_depth)
+            o, e, f = led.unresolved_summary(sid, batch, LISTED_UNRESOLVED - len(first))
+            n_open, n_esc = n_open + o, n_esc + e
+            first.extend(f)
         if n_open != c["unresolved"] + c["beyond_length"]:  # pragma: no cover - defensive
             raise RuntimeError("internal error: unresolved starts and counts disagree")
+        counts[side] = c
+        sieved[side] = n_sieved
+        depth[side] = n_depth
+        cycles.extend(FoundCycle.from_record(rec) for rec in led.cycles(sid, start, to))
         ucount[side] = c["unresolved"]
         uesc[side] = n_esc if c["unresolved"] else 0
         ufirst[side] = tuple(first) if c["unresolved"] else ()
@@ -870,7 +907,7 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, chunks, progress, 
         sieve_depth=depth,
         store_path=None if led.memory else str(led.path),
         chunk_size=cs,
-        chunks_total=len(chunks) * len(sides),
+        chunks_total=count_chunks(start, to, cs) * len(sides),
         chunks_reused=reused,
         seconds=time.perf_counter() - t0,
         computed=computed,
