@@ -515,12 +515,76 @@ def _brent(s, cap, d2, d, ma, mb, vmax, st, L, st2, L2):
 
 
 @njit(cache=True, nogil=True)
-def _resolve_one(s, cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, hist, L, st, st2, L2):
+def _big_jump(L, n, sign, d2, d, J, dJ, jA, jC):
+    """``J`` exact steps at once of ``sign * L[0:n]`` by its residue class mod ``d^J``.
+
+    ``T^J(q d^J + r) = A_J(r) q + T^J(r)`` for every integer ``q`` (the lemma of
+    :mod:`cycles.sieve`). Returns ``(r, n, sign)``; ``r`` is ``v mod d^J``.
+    """
+    if d2:
+        R = L[0] & (dJ - 1)
+        for k in range(n - 1):
+            L[k] = (L[k] >> J) | ((L[k + 1] << (32 - J)) & _MASK)
+        L[n - 1] = L[n - 1] >> J
+    else:
+        rem = 0
+        for k in range(n - 1, -1, -1):
+            cur = (rem << 32) | L[k]
+            qk = cur // dJ
+            L[k] = qk
+            rem = cur - qk * dJ
+        R = rem
+    while n > 1 and L[n - 1] == 0:
+        n -= 1
+    # v = q d^J + r with 0 <= r < d^J: for v = -M = -(Q d^J + R), q = -(Q + 1), r = d^J - R
+    r = R
+    if sign < 0 and R != 0:
+        r = dJ - R
+        k = 0
+        carry = 1
+        while carry != 0:
+            if k == n:
+                L[n] = 0
+                n += 1
+            t = L[k] + carry
+            L[k] = t & _MASK
+            carry = t >> 32
+            k += 1
+    a = jA[r]
+    c = jC[r]
+    aa = abs(a)
+    nsign = sign if a > 0 else -sign
+    carry = abs(c) if (c >= 0) == (nsign > 0) else -abs(c)
+    for k in range(n):
+        t = L[k] * aa + carry
+        L[k] = t & _MASK
+        carry = t >> 32
+    while carry != 0:
+        L[n] = carry & _MASK
+        carry >>= 32
+        n += 1
+    while n > 1 and L[n - 1] == 0:
+        n -= 1
+    return r, n, nsign
+
+
+@njit(cache=True, nogil=True)
+def _resolve_one(
+    s, cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, jt, jA, jC, jHA, jHB, jDI, hist, L, st, st2, L2
+):
     """Exact outcome of start ``s``: ``(code, steps, escaped)``.
 
     ``steps`` is the first-return length for CYCLE, ``mu + lam`` for OTHER.
     ``escaped`` says whether the orbit passed 2^63 in absolute value.
+    ``jt = (J, d^J, n, top)``: a big value of at least ``2^(64 + J ceil(log2 d))``
+    (``n`` limbs with top limb ``>= top``, or more limbs) takes ``J`` steps at
+    once (every value in between stays above 2^63, so no event can be
+    skipped); the residues mod p of the skipped values come from ``jHA, jHB, jDI``.
     """
+    J = jt[0]
+    dJ = jt[1]
+    nmin = jt[2]
+    topmin = jt[3]
     v = s
     big = False
     n = 0
@@ -528,7 +592,18 @@ def _resolve_one(s, cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, hist, L, st, st
     h = _modp(s)
     hist[0] = h
     escaped = False
-    for i in range(1, cap + 1):
+    i = 0
+    while i < cap:
+        if big and J > 0 and i + J <= cap and (n > nmin or (n == nmin and L[n - 1] >= topmin)):
+            r, n, sign = _big_jump(L, n, sign, d2, d, J, dJ, jA, jC)
+            base = r * J
+            h0 = h
+            for j in range(J):
+                h = _modp(_modp(jHA[base + j] * h0 + jHB[base + j]) * jDI[j + 1])
+                hist[i + 1 + j] = h
+            i += J
+            continue
+        i += 1
         if big:
             r, n, sign = _big_step(L, n, sign, d2, d, ma, mb)
             if _fits(L, n):
@@ -574,7 +649,27 @@ def _resolve_one(s, cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, hist, L, st, st
 
 @njit(cache=True, nogil=True)
 def _resolve_many(
-    starts, cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, nlimbs, out_code, out_len, out_esc
+    starts,
+    cap,
+    tie,
+    d2,
+    d,
+    ma,
+    mb,
+    vmax,
+    ha,
+    hb,
+    dinv,
+    jt,
+    jA,
+    jC,
+    jHA,
+    jHB,
+    jDI,
+    nlimbs,
+    out_code,
+    out_len,
+    out_esc,
 ):
     hist = np.empty(cap + 1, np.int64)
     st = np.zeros(3, np.int64)
@@ -583,7 +678,28 @@ def _resolve_many(
     L2 = np.zeros(nlimbs, np.int64)
     for k in range(starts.shape[0]):
         code, steps, esc = _resolve_one(
-            starts[k], cap, tie, d2, d, ma, mb, vmax, ha, hb, dinv, hist, L, st, st2, L2
+            starts[k],
+            cap,
+            tie,
+            d2,
+            d,
+            ma,
+            mb,
+            vmax,
+            ha,
+            hb,
+            dinv,
+            jt,
+            jA,
+            jC,
+            jHA,
+            jHB,
+            jDI,
+            hist,
+            L,
+            st,
+            st2,
+            L2,
         )
         out_code[k] = code
         out_len[k] = steps
@@ -609,6 +725,8 @@ class KernelMap:
         ``max |a_r|``.
     safe : int
         While ``|v| <= safe`` the next 8 steps cannot overflow int64.
+    jump : tuple
+        The multi-step jump table of the exact continuation (see :func:`_limb_jumps`).
     """
 
     divisor: int
@@ -620,6 +738,7 @@ class KernelMap:
     dinv: int
     amax: int
     safe: int
+    jump: tuple = ()
 
     @classmethod
     def from_map(cls, m) -> KernelMap | None:
@@ -650,7 +769,8 @@ class KernelMap:
         safe = int(vmax.min())
         for _ in range(_RUN - 1):
             safe = (safe - bmax) // amax
-        return cls(d, ma, mb, vmax, ha, hb, pow(d, -1, _HASH_P), amax, max(safe, -1))
+        dinv = pow(d, -1, _HASH_P)
+        return cls(d, ma, mb, vmax, ha, hb, dinv, amax, max(safe, -1), _limb_jumps(m, dinv))
 
     def limb_capacity(self, cap: int) -> int:
         """Limbs enough for any value the exact continuation reaches with step cap ``cap``.
@@ -661,6 +781,56 @@ class KernelMap:
         """
         growth = (self.amax + 1).bit_length()
         return (64 + (3 * cap + 4) * growth) // 32 + 4
+
+
+def _limb_jumps(m, dinv: int) -> tuple:
+    """Jump table for big values: ``J`` steps at once by the residue mod ``d^J`` (exact).
+
+    Returns ``(jt, jA, jC, jHA, jHB, jDI)``: ``jt = [J, d^J, n, top]``; for
+    each residue ``r``: ``A_J(r)`` and ``T^J(r)`` (both below 2^30 in absolute
+    value, so limb products fit int64); for each ``j <= J`` the composite
+    ``(A_j, B_j)`` mod ``p`` and ``d^-j mod p``. A magnitude of at least
+    ``2^T``, ``T = 64 + J ceil(log2 d)`` (``n`` limbs with top limb ``>= top``,
+    or more limbs), is at least ``2^64 d^J``, hence
+    ``|T^j(v)| >= |v| / d^j - max|b| > 2^63`` for ``j <= J``
+    (``|a v + b| >= |v| - |b|``): nothing skipped can be an event.
+    """
+    d = m.divisor
+    best = None
+    for J in range(2, 17):
+        dJ = d**J
+        if dJ > 4096:
+            break
+        rows = []
+        ok = True
+        for r in range(dJ):
+            A, B, v, pw = 1, 0, r, 1
+            steps = []
+            for _ in range(J):
+                a, b = m.branches[v % d]
+                A, B = a * A, a * B + b * pw
+                pw *= d
+                v = (a * v + b) // d
+                steps.append((A, B))
+            if abs(A) >= COEFF_LIMIT or abs(v) >= COEFF_LIMIT:
+                ok = False
+                break
+            rows.append((A, v, steps))
+        if not ok:
+            break
+        best = (J, dJ, rows)
+    if best is None:
+        z = np.zeros(1, np.int64)
+        return (np.zeros(4, np.int64), z, z, z, z, z)
+    J, dJ, rows = best
+    T = 64 + J * (d - 1).bit_length()  # (d - 1).bit_length() = ceil(log2 d)
+    nmin, topmin = T // 32 + 1, 1 << (T % 32)
+    jA = np.array([A for A, _, _ in rows], dtype=np.int64)
+    jC = np.array([c for _, c, _ in rows], dtype=np.int64)
+    jHA = np.array([A % _HASH_P for _, _, st in rows for A, _ in st], dtype=np.int64)
+    jHB = np.array([B % _HASH_P for _, _, st in rows for _, B in st], dtype=np.int64)
+    jDI = np.array([pow(dinv, j, _HASH_P) for j in range(J + 1)], dtype=np.int64)
+    return (np.array([J, dJ, nmin, topmin], dtype=np.int64), jA, jC, jHA, jHB, jDI)
 
 
 @dataclass
@@ -745,6 +915,7 @@ def classify_starts(km: KernelMap, starts, cap: int, tie: bool):
             km.hash_a,
             km.hash_b,
             int(km.dinv),
+            *km.jump,
             int(km.limb_capacity(cap)),
             code,
             steps,

@@ -126,6 +126,23 @@ def test_full_depth_sieve_region(name, lo, side):
     _check(maps.get(name), side, lo, lo + 200, 400, depth=24)
 
 
+@settings(max_examples=40, deadline=None)
+@given(valid_maps(), st.integers(1, TOP - 10), st.sampled_from([150, 400]), sides)
+def test_exact_continuation_with_limb_jumps(m, s, cap, side):
+    # The multi-limb path alone, long enough for orbits to grow far past 2^76,
+    # where it takes J steps at a time (negative values included).
+    sign = 1 if side == "positive" else -1
+    mm = m if side == "positive" else m.conjugate()
+    km = KernelMap.from_map(mm)
+    starts = list(range(s, s + 5))
+    code, steps, _ = classify_starts(km, starts, cap, side == "positive")
+    for x, c, n in zip(starts, code, steps):
+        outcome, ref_steps = reference.classify(m, sign * x, cap)
+        assert _NAMES[int(c)] == outcome, (m, side, x, cap)
+        if outcome in ("cycle", "other_cycle"):
+            assert int(n) == ref_steps
+
+
 @pytest.mark.parametrize("name", ["3x+1", "5x+1", "181x+1"])
 def test_top_of_the_range(name):
     _check(maps.get(name), "positive", TOP - 60, TOP, 150, depth=24)
