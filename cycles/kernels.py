@@ -61,6 +61,7 @@ References
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -725,8 +726,8 @@ class KernelMap:
         ``max |a_r|``.
     safe : int
         While ``|v| <= safe`` the next 8 steps cannot overflow int64.
-    jump : tuple
-        The multi-step jump table of the exact continuation (see :func:`_limb_jumps`).
+    branches : tuple
+        The branches as given (the jump table :attr:`jump` is built from them).
     """
 
     divisor: int
@@ -738,7 +739,12 @@ class KernelMap:
     dinv: int
     amax: int
     safe: int
-    jump: tuple = ()
+    branches: tuple = ()
+
+    @functools.cached_property
+    def jump(self) -> tuple:
+        """The multi-step jump table of the exact continuation (built on first use)."""
+        return _limb_jumps(self.divisor, self.branches, self.dinv)
 
     @classmethod
     def from_map(cls, m) -> KernelMap | None:
@@ -770,7 +776,7 @@ class KernelMap:
         for _ in range(_RUN - 1):
             safe = (safe - bmax) // amax
         dinv = pow(d, -1, _HASH_P)
-        return cls(d, ma, mb, vmax, ha, hb, dinv, amax, max(safe, -1), _limb_jumps(m, dinv))
+        return cls(d, ma, mb, vmax, ha, hb, dinv, amax, max(safe, -1), tuple(m.branches))
 
     def limb_capacity(self, cap: int) -> int:
         """Limbs enough for any value the exact continuation reaches with step cap ``cap``.
@@ -783,7 +789,7 @@ class KernelMap:
         return (64 + (3 * cap + 4) * growth) // 32 + 4
 
 
-def _limb_jumps(m, dinv: int) -> tuple:
+def _limb_jumps(d: int, branches, dinv: int) -> tuple:
     """Jump table for big values: ``J`` steps at once by the residue mod ``d^J`` (exact).
 
     Returns ``(jt, jA, jC, jHA, jHB, jDI)``: ``jt = [J, d^J, n, top]``; for
@@ -795,7 +801,6 @@ def _limb_jumps(m, dinv: int) -> tuple:
     ``|T^j(v)| >= |v| / d^j - max|b| > 2^63`` for ``j <= J``
     (``|a v + b| >= |v| - |b|``): nothing skipped can be an event.
     """
-    d = m.divisor
     best = None
     for J in range(2, 17):
         dJ = d**J
@@ -807,7 +812,7 @@ def _limb_jumps(m, dinv: int) -> tuple:
             A, B, v, pw = 1, 0, r, 1
             steps = []
             for _ in range(J):
-                a, b = m.branches[v % d]
+                a, b = branches[v % d]
                 A, B = a * A, a * B + b * pw
                 pw *= d
                 v = (a * v + b) // d

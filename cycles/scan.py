@@ -343,7 +343,8 @@ def run_chunk(task: ChunkTask) -> ChunkOutcome:
         "unresolved": 0 if task.length_bound else n_open,
         "beyond_length": n_open if task.length_bound else 0,
     }
-    assert sum(counts.values()) == task.hi - task.lo + 1
+    if sum(counts.values()) != task.hi - task.lo + 1:  # pragma: no cover - defensive
+        raise RuntimeError(f"internal error: counts of chunk [{task.lo}, {task.hi}] do not add up")
     return ChunkOutcome(
         task.side,
         task.lo,
