@@ -1069,10 +1069,15 @@ def _iterated_count(lo: int, hi: int, K: int, dK: int, table) -> int:
     return total
 
 
-def warm_up() -> None:
-    """Compile (or load from the cache) every kernel, e.g. before forking workers."""
+def warm_up(hard: bool = True) -> None:
+    """Compile (or load from the cache) the kernels, e.g. before forking workers.
+
+    ``hard=False`` loads only the fast pass; the exact continuation then
+    loads on first use (maps like 3x+1 never need it on small ranges).
+    """
     import maps
 
     km = KernelMap.from_map(maps.get("3x+1"))
     classify_range(km, 1, 50, 100, True)
-    classify_starts(km, [2**62 + 1], 20, True)
+    if hard:
+        classify_starts(km, [2**62 + 1], 20, True)

@@ -637,7 +637,7 @@ def _prepare_parent(m: Map, sides, cap: int) -> Callable[[], None]:
     def prepare() -> None:
         from .kernels import warm_up
 
-        warm_up()
+        warm_up(hard=False)
         for s in sides:
             _side_tools(m, s, cap)
 

@@ -233,3 +233,15 @@ def test_bad_input(kw, text):
     to = kw.pop("to")
     with pytest.raises(InputError, match=text):
         scan(maps.get("3x+1"), to, store=False, **kw)
+
+
+def test_huge_coefficients_use_the_exact_python_path():
+    # a = 2^40 + 1 is beyond the compiled path's limits; results equal the reference
+    m = maps.get("1099511627777x+1")
+    r = scan(m, 60, store=False, workers=1, max_steps=50, side="both")
+    for side, sign in (("positive", 1), ("negative", -1)):
+        ref = [classify(m, sign * s, 50)[0] for s in range(1, 61)]
+        assert r.counts[side]["drops"] == ref.count("drop")
+        assert r.counts[side]["unresolved"] == ref.count("open")
+        assert list(r.minima[side]) == [sign * s for s in range(1, 61) if ref[s - 1] == "cycle"]
+    assert r.sieve_depth == {"positive": 0, "negative": 0}
