@@ -60,7 +60,9 @@ References
 from __future__ import annotations
 
 import functools
+import sys
 import time
+import types
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -914,3 +916,20 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
         computed=computed,
         executor=ex.describe(),
     )
+
+
+class _CallableModule(types.ModuleType):
+    """This module, callable as :func:`scan`.
+
+    ``cycles.scan`` names both the function (re-exported lazily by the
+    package) and this submodule; once the submodule has been imported directly
+    (``from cycles.scan import ScanResult``), Python binds the package
+    attribute to the module. Making the module callable keeps
+    ``cycles.scan(m, to)`` and ``from cycles import scan`` working either way.
+    """
+
+    def __call__(self, *args, **kwargs) -> ScanResult:
+        return scan(*args, **kwargs)
+
+
+sys.modules[__name__].__class__ = _CallableModule

@@ -245,3 +245,21 @@ def test_huge_coefficients_use_the_exact_python_path():
         assert r.counts[side]["unresolved"] == ref.count("open")
         assert list(r.minima[side]) == [sign * s for s in range(1, 61) if ref[s - 1] == "cycle"]
     assert r.sieve_depth == {"positive": 0, "negative": 0}
+
+
+def test_cycles_scan_is_callable_after_a_submodule_import():
+    # importing cycles.scan (the module) first binds the package attribute to it;
+    # it must still work as the function
+    import subprocess
+    import sys
+
+    code = (
+        "import cycles.scan as mod, cycles, maps\n"
+        "from cycles import scan\n"
+        "r = scan(maps.get('3x+1'), 100, store=False, workers=1, side='negative')\n"
+        "assert cycles.scan(maps.get('3x+1'), 100, store=False, workers=1).minima == {'positive': (1,)}\n"
+        "print(r.minima['negative'])\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=300)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip() == "(-1, -5, -17)"
