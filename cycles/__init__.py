@@ -59,6 +59,14 @@ _EXPORTS = {
     "convergents": "floors",
     "semiconvergents": "floors",
     "simplest_fraction": "floors",
+    "scan": "scan",
+    "ScanResult": "scan",
+    "FoundCycle": "scan",
+    "ScanProgress": "scan",
+    "ScanStore": "store",
+    "default_store_path": "store",
+    "SieveTable": "sieve",
+    "sieve_table": "sieve",
 }
 
 __all__ = sorted(_EXPORTS)
