@@ -49,6 +49,14 @@ _EXPORTS = {
     "IntegerCycle": "counting",
     "sweep": "counting",
     "Sweep": "counting",
+    "scan": "scan",
+    "ScanResult": "scan",
+    "FoundCycle": "scan",
+    "ScanProgress": "scan",
+    "ScanStore": "store",
+    "default_store_path": "store",
+    "SieveTable": "sieve",
+    "sieve_table": "sieve",
 }
 
 __all__ = sorted(_EXPORTS)
