@@ -876,3 +876,28 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, chunks, progress, 
         computed=computed,
         executor=ex.describe(),
     )
+
+
+def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
+    """The verified cycle record of the cycle whose minimum is ``x0`` (any sign, 0 allowed)."""
+    if x0 == 0:
+        x, elems, word = 0, [], []
+        for _ in range(length):
+            elems.append(x)
+            word.append(x % m.divisor)
+            x = m.step(x)
+        if x != 0:
+            raise RuntimeError(f"internal error: 0 does not return after {length} steps")
+        cont = word_content(word, m.divisor)
+        return FoundCycle(
+            "zero", 0, length, cont[1] if m.divisor == 2 else None, cont, format_itinerary(word, m.divisor),
+            tuple(elems), is_primitive(word), lagarias_primitive(m, elems), m.divisor**length - _A(m, word),
+        )
+    return verified_cycle(m, "positive" if x0 > 0 else "negative", abs(x0), length)
+
+
+def _A(m: Map, word) -> int:
+    A = 1
+    for r in word:
+        A *= m.branches[r].multiplier
+    return A
