@@ -57,6 +57,10 @@ _EXPORTS = {
     "verify_certificate": "certificate",
     "write_certificate": "certificate",
     "integral_cycles_by_itinerary": "wordsearch",
+    "compare": "compare",
+    "Comparison": "compare",
+    "predictions": "compare",
+    "excursions": "excursions",
     "scan": "scan",
     "ScanResult": "scan",
     "FoundCycle": "scan",
@@ -65,6 +69,16 @@ _EXPORTS = {
     "default_store_path": "store",
     "SieveTable": "sieve",
     "sieve_table": "sieve",
+    "functional_graph": "graph",
+    "FunctionalGraph": "graph",
+    "GraphCycle": "graph",
+    "floor": "floors",
+    "Floor": "floors",
+    "Approximant": "floors",
+    "continued_fraction_log": "floors",
+    "convergents": "floors",
+    "semiconvergents": "floors",
+    "simplest_fraction": "floors",
 }
 
 __all__ = sorted(_EXPORTS)

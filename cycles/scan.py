@@ -603,6 +603,8 @@ def _open_store(store, m: Map) -> tuple[ScanStore, bool]:
     if store is None:
         return ScanStore(default_store_path(m), m, create_dirs=True), True
     if isinstance(store, (str, Path)):
+        if Path(store).is_dir():  # a directory of stores, one per map definition
+            return ScanStore(Path(store) / default_store_path(m).name, m), True
         return ScanStore(store, m), True
     raise InputError(f"store must be a path, a ScanStore, None (default) or False, got {store!r}")
 
