@@ -59,7 +59,10 @@ def _critical_series(sweep):
         if key in seen:  # only the first (critical) length of each content
             continue
         seen.add(key)
-        slot = per_x.setdefault(r.off_zero, {"necklaces": 0, "candidates": 0, "heuristic": 0.0, "cycles": 0, "known": True})
+        slot = per_x.setdefault(
+            r.off_zero,
+            {"necklaces": 0, "candidates": 0, "heuristic": 0.0, "cycles": 0, "known": True},
+        )
         slot["necklaces"] += r.necklaces
         cand = r.candidates if r.candidates is not None else r.candidates_bound
         slot["candidates"] += cand or 0
@@ -90,16 +93,37 @@ def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
     for ax, p in zip(flat, profiles):
         s = sweeps.get(p.map.label)
         if s is None:
-            ax.text(0.5, 0.5, "no sweep\n(not a map with a critical line)", ha="center", va="center", fontsize=8)
+            ax.text(
+                0.5,
+                0.5,
+                "no sweep\n(not a map with a critical line)",
+                ha="center",
+                va="center",
+                fontsize=8,
+            )
             ax.set_title(p.map.label, fontsize=9)
             continue
         xs, series = _critical_series(s)
         ax.plot(xs, [log10(v["necklaces"]) for v in series], label="necklaces (exact)", lw=1.3)
-        ax.plot(xs, [log10(v["candidates"]) for v in series], label="candidates (proved/exact)", lw=1.1, ls="--")
-        ax.plot(xs, [log10(v["heuristic"]) for v in series], label="necklaces/|D| (heuristic)", lw=0.9, ls=":")
+        ax.plot(
+            xs,
+            [log10(v["candidates"]) for v in series],
+            label="candidates (proved/exact)",
+            lw=1.1,
+            ls="--",
+        )
+        ax.plot(
+            xs,
+            [log10(v["heuristic"]) for v in series],
+            label="necklaces/|D| (heuristic)",
+            lw=0.9,
+            ls=":",
+        )
         cyc = [(x, log10(v["cycles"])) for x, v in zip(xs, series) if v["known"] and v["cycles"]]
         if cyc:
-            ax.scatter(*zip(*cyc), marker="*", s=40, color="k", zorder=3, label="integer cycles (exact)")
+            ax.scatter(
+                *zip(*cyc), marker="*", s=40, color="k", zorder=3, label="integer cycles (exact)"
+            )
         ax.set_title(p.map.label, fontsize=9)
         ax.grid(alpha=0.3)
         ax.tick_params(labelsize=7)

@@ -110,7 +110,9 @@ class Predictions:
     map: Map
     max_length: int
     rows: tuple[TypeRow, ...]
-    totals: dict  # side -> {"types", "necklaces", "candidates", "heuristic", "found", "bound_applies"}
+    totals: (
+        dict  # side -> {"types", "necklaces", "candidates", "heuristic", "found", "bound_applies"}
+    )
 
     def to_dict(self) -> dict:
         return {
@@ -118,8 +120,12 @@ class Predictions:
             "max_length": self.max_length,
             "rows": [r.to_dict() for r in self.rows],
             "totals": self.totals,
-            "labels": {"found": CERTIFIED.value, "necklaces": EXACT.value, "candidates": PROVED.value,
-                       "heuristic": HEURISTIC.value},
+            "labels": {
+                "found": CERTIFIED.value,
+                "necklaces": EXACT.value,
+                "candidates": PROVED.value,
+                "heuristic": HEURISTIC.value,
+            },
         }
 
 
@@ -167,7 +173,9 @@ def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_0
     d = m.divisor
     n_types = math.comb(K + d, d)
     if n_types > max_types:
-        raise InputError(f"{m.label}: predictions up to length {K} would visit {n_types} types (limit {max_types})")
+        raise InputError(
+            f"{m.label}: predictions up to length {K} would visit {n_types} types (limit {max_types})"
+        )
     found: dict[tuple[str, tuple[int, ...]], int] = {}
     for cyc in c.cycles:
         if cyc.minimum == 0:
@@ -176,23 +184,46 @@ def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_0
         key = (side, tuple(cyc.content))
         found[key] = found.get(key, 0) + 1
     rows = []
-    for (side, content), nfound in sorted(found.items(), key=lambda kv: (kv[0][0] != "positive", sum(kv[0][1]), kv[0][1])):
+    for (side, content), nfound in sorted(
+        found.items(), key=lambda kv: (kv[0][0] != "positive", sum(kv[0][1]), kv[0][1])
+    ):
         tc = count(m, content=dict(enumerate(content)), limit=limit)
         if tc.candidates is not None:
             cand, clabel = tc.candidates, (EXACT.value if tc.enumerated else PROVED.value)
         else:
             cand, clabel = None, "n/a"
         if cand is not None and nfound > cand:  # pragma: no cover - a theorem; a bug if it fires
-            raise AssertionError(f"{m.label}: {nfound} cycles of type {content} but only {cand} candidates")
+            raise AssertionError(
+                f"{m.label}: {nfound} cycles of type {content} but only {cand} candidates"
+            )
         heur = Fraction(tc.necklaces, abs(tc.denominator)) if tc.denominator else None
-        rows.append(TypeRow(side, content, nfound, tc.necklaces, tc.primitive_necklaces, tc.denominator,
-                            cand, clabel, heur))
+        rows.append(
+            TypeRow(
+                side,
+                content,
+                nfound,
+                tc.necklaces,
+                tc.primitive_necklaces,
+                tc.denominator,
+                cand,
+                clabel,
+                heur,
+            )
+        )
     totals = {}
     for side in c.sides:
         heur: list[float] = []
-        t = {"types": 0, "necklaces": 0, "primitive_necklaces": 0, "candidates": 0, "heuristic": 0.0,
-             "found": 0, "bound_applies": True,
-             "types_without_bound": 0, "necklaces_without_bound": 0}
+        t = {
+            "types": 0,
+            "necklaces": 0,
+            "primitive_necklaces": 0,
+            "candidates": 0,
+            "heuristic": 0.0,
+            "found": 0,
+            "bound_applies": True,
+            "types_without_bound": 0,
+            "necklaces_without_bound": 0,
+        }
         for k in range(1, K + 1):
             dk = d**k
             for content in _contents(d, k):
@@ -218,8 +249,12 @@ def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_0
                 heur.append(nk / abs(D))
         t["heuristic"] = math.fsum(heur)  # a model's expectation: a float is enough
         t["found"] = sum(v for (s, _), v in found.items() if s == side)
-        t["labels"] = {"necklaces": EXACT.value, "candidates": PROVED.value, "heuristic": HEURISTIC.value,
-                       "found": CERTIFIED.value}
+        t["labels"] = {
+            "necklaces": EXACT.value,
+            "candidates": PROVED.value,
+            "heuristic": HEURISTIC.value,
+            "found": CERTIFIED.value,
+        }
         totals[side] = t
     return Predictions(m, K, tuple(rows), totals)
 
@@ -259,14 +294,26 @@ class MapProfile:
             "census_cycles": len([x for x in c.cycles if x.minimum != 0]) if c else None,
             "census_minima": [x.minimum for x in c.cycles if x.minimum != 0] if c else None,
             "census_lengths": [x.length for x in c.cycles if x.minimum != 0] if c else None,
-            "census_primitive": [x.minimum for x in c.cycles if x.minimum != 0 and x.lagarias_primitive] if c else None,
+            "census_primitive": [
+                x.minimum for x in c.cycles if x.minimum != 0 and x.lagarias_primitive
+            ]
+            if c
+            else None,
             "census_method": c.method if c else self.census_note,
             "scan_to": self.scan_to,
             "drop_share": float(pos.drop_share) if pos else None,
             "unresolved_share": float(pos.open_share) if pos else None,
-            "cycles_met": sorted({v for e in self.excursions.values() for v in self.extras.get("met", {}).get(e.side, [])}),
+            "cycles_met": sorted(
+                {
+                    v
+                    for e in self.excursions.values()
+                    for v in self.extras.get("met", {}).get(e.side, [])
+                }
+            ),
             "largest_peak": max((e.peak for e in self.excursions.values()), default=None),
-            "largest_peak_start": max(self.excursions.values(), key=lambda e: e.peak).peak_start if self.excursions else None,
+            "largest_peak_start": max(self.excursions.values(), key=lambda e: e.peak).peak_start
+            if self.excursions
+            else None,
             "peak_passed_2^62": any(e.peak_overflowed for e in self.excursions.values()),
         }
         for side in ("positive", "negative"):
@@ -278,16 +325,30 @@ class MapProfile:
         row["k"] = tc.length if tc is not None else None
         row["necklaces_at_x"] = tc.necklaces if tc is not None else None
         row["candidates_at_x"] = tc.candidates if tc is not None else None
-        row["heuristic_at_x"] = float(Fraction(tc.necklaces, abs(tc.denominator))) if tc is not None and tc.denominator else None
-        row["integer_cycles_at_x"] = len(tc.integer_cycles) if tc is not None and tc.integer_cycles is not None else None
+        row["heuristic_at_x"] = (
+            float(Fraction(tc.necklaces, abs(tc.denominator)))
+            if tc is not None and tc.denominator
+            else None
+        )
+        row["integer_cycles_at_x"] = (
+            len(tc.integer_cycles) if tc is not None and tc.integer_cycles is not None else None
+        )
         row["labels"] = {
-            "drift": EXACT.value, "critical_ratio": EXACT.value, "rho": EXACT.value,
-            "census_cycles": CERTIFIED.value, "census_minima": CERTIFIED.value,
-            "drop_share": EXACT.value, "unresolved_share": EXACT.value, "cycles_met": EXACT.value,
-            "largest_peak": EXACT.value, "floor_positive_length": PROVED.value, "floor_negative_length": PROVED.value,
+            "drift": EXACT.value,
+            "critical_ratio": EXACT.value,
+            "rho": EXACT.value,
+            "census_cycles": CERTIFIED.value,
+            "census_minima": CERTIFIED.value,
+            "drop_share": EXACT.value,
+            "unresolved_share": EXACT.value,
+            "cycles_met": EXACT.value,
+            "largest_peak": EXACT.value,
+            "floor_positive_length": PROVED.value,
+            "floor_negative_length": PROVED.value,
             "necklaces_at_x": EXACT.value,
             "candidates_at_x": (EXACT.value if tc is not None and tc.enumerated else PROVED.value),
-            "heuristic_at_x": HEURISTIC.value, "integer_cycles_at_x": EXACT.value,
+            "heuristic_at_x": HEURISTIC.value,
+            "integer_cycles_at_x": EXACT.value,
         }
         return row
 
@@ -298,7 +359,9 @@ class MapProfile:
             "excursions": {s: e.to_dict() for s, e in self.excursions.items()},
             "floors": {s: (f.to_dict() if f is not None else None) for s, f in self.floors.items()},
             "floor_notes": self.floor_notes,
-            "critical_count": self.critical_count.to_dict() if self.critical_count is not None else None,
+            "critical_count": self.critical_count.to_dict()
+            if self.critical_count is not None
+            else None,
             "predictions": self.predictions.to_dict() if self.predictions else None,
         }
 
@@ -423,5 +486,7 @@ def compare(
                 preds = predictions(m, c, limit=count_limit)
             except InputError:
                 preds = None
-        profiles.append(MapProfile(m, c, cnote, exc_, to, floors, fnotes, tc, tnote, preds, {"met": met}))
+        profiles.append(
+            MapProfile(m, c, cnote, exc_, to, floors, fnotes, tc, tnote, preds, {"met": met})
+        )
     return Comparison(tuple(profiles), max_length, to, odd)

@@ -132,11 +132,15 @@ class Excursions:
             "drop_share": self.drop_share,
             "open_share": self.open_share,
             "mean_stopping_time": self.mean_stopping_time,
-            "labels": {k: EXACT.value for k in ("peak", "stopped", "capped", "overflowed", "drop_share")},
+            "labels": {
+                k: EXACT.value for k in ("peak", "stopped", "capped", "overflowed", "drop_share")
+            },
         }
 
 
-def excursions(m: Map, to: int, *, start: int = 1, side: str = "positive", cap: int = 10_000) -> Excursions:
+def excursions(
+    m: Map, to: int, *, start: int = 1, side: str = "positive", cap: int = 10_000
+) -> Excursions:
     """Follow every start of ``start..to`` until it drops below its start.
 
     Parameters
@@ -179,6 +183,17 @@ def excursions(m: Map, to: int, *, start: int = 1, side: str = "positive", cap: 
     )
     mean = Fraction(int(ttime), int(stopped)) if stopped else None
     return Excursions(
-        m, side, start, to, cap, int(best), int(bstart), bool(best >= _LIMIT), int(stopped), int(returned),
-        int(capped), int(over), mean,
+        m,
+        side,
+        start,
+        to,
+        cap,
+        int(best),
+        int(bstart),
+        bool(best >= _LIMIT),
+        int(stopped),
+        int(returned),
+        int(capped),
+        int(over),
+        mean,
     )

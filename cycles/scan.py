@@ -892,8 +892,16 @@ def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
             raise RuntimeError(f"internal error: 0 does not return after {length} steps")
         cont = word_content(word, m.divisor)
         return FoundCycle(
-            "zero", 0, length, cont[1] if m.divisor == 2 else None, cont, format_itinerary(word, m.divisor),
-            tuple(elems), is_primitive(word), lagarias_primitive(m, elems), m.divisor**length - _A(m, word),
+            "zero",
+            0,
+            length,
+            cont[1] if m.divisor == 2 else None,
+            cont,
+            format_itinerary(word, m.divisor),
+            tuple(elems),
+            is_primitive(word),
+            lagarias_primitive(m, elems),
+            m.divisor**length - _A(m, word),
         )
     return verified_cycle(m, "positive" if x0 > 0 else "negative", abs(x0), length)
 

@@ -17,7 +17,9 @@ from cycles.floors import floor
 
 @pytest.fixture(scope="module")
 def cmp():
-    return compare([maps.get("3x+1"), maps.get("5x+1")], max_length=16, to=2000, odd=8, store=False, workers=1)
+    return compare(
+        [maps.get("3x+1"), maps.get("5x+1")], max_length=16, to=2000, odd=8, store=False, workers=1
+    )
 
 
 def test_rows_agree_with_individual_analyses(cmp):
@@ -36,7 +38,10 @@ def test_rows_agree_with_individual_analyses(cmp):
     assert r1["census_minima"] == [1, -1, -5, -17]  # Lagarias 1985 survey (from memory)
     r5 = cmp.profiles[1].row()
     assert r5["census_minima"][:3] == [1, 13, 17]  # OEIS A259207 (13), 1 and 17 from memory
-    assert r5["floor_positive_length"] is None and "unresolved" in cmp.profiles[1].floor_notes["positive"]
+    assert (
+        r5["floor_positive_length"] is None
+        and "unresolved" in cmp.profiles[1].floor_notes["positive"]
+    )
 
 
 def test_drift_values(cmp):
@@ -56,7 +61,7 @@ def test_found_never_exceeds_candidates(name):
     for row in p.rows:
         if row.candidates is not None:
             assert row.found <= row.candidates, row
-    for side, tot in p.totals.items():
+    for tot in p.totals.values():
         if tot["bound_applies"]:
             assert tot["found"] <= tot["candidates"]
 
@@ -71,8 +76,28 @@ def test_excursion_record():
 def test_compare_cli(tmp_path):
     png = tmp_path / "c.png"
     csv = tmp_path / "c.csv"
-    out = run_cli("compare", "3x+1", "3x+k", "--k", "5..7", "--max-length", "12", "--to", "500", "--odd", "6",
-                  "--workers", "1", "--store", str(tmp_path / "stores"), "--plot", str(png), "--csv", str(csv), "--json")
+    out = run_cli(
+        "compare",
+        "3x+1",
+        "3x+k",
+        "--k",
+        "5..7",
+        "--max-length",
+        "12",
+        "--to",
+        "500",
+        "--odd",
+        "6",
+        "--workers",
+        "1",
+        "--store",
+        str(tmp_path / "stores"),
+        "--plot",
+        str(png),
+        "--csv",
+        str(csv),
+        "--json",
+    )
     assert out.returncode == 0, out.stderr
     doc = json.loads(out.stdout)
     assert [m["row"]["map"] for m in doc["maps"]] == ["3x+1", "3x+5", "3x+7"]
