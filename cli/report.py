@@ -32,13 +32,12 @@ __all__ = ["Table", "Figure", "Section", "Report", "slug"]
 
 
 def slug(text: str) -> str:
-    """A file-name-safe stem: ``"sweep 3x+1"`` -> ``"sweep-3xp1"``.
+    """A file-name-safe stem: ``"sweep 3x+1"`` -> ``"sweep-3xp1"`` (``+`` becomes ``p``).
 
     >>> slug("census 3x-1 (both sides)")
-    'census-3xm1-both-sides'
+    'census-3x-1-both-sides'
     """
-    t = text.replace("+", "p").replace("-", "m") if re.search(r"\d[x]|x[+-]", text) else text
-    t = re.sub(r"[^A-Za-z0-9]+", "-", t).strip("-").lower()
+    t = re.sub(r"[^A-Za-z0-9]+", "-", text.replace("+", "p")).strip("-").lower()
     return t or "item"
 
 

@@ -149,6 +149,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "max_length": (_int(1, 10**7), 20),
         "to": (_int(1, 2**62), 10**5),
         "odd": (_int(1, 100_000), 20),
+        "max_steps": (_int(1, 10**6), 500),
         "plot": (_bool, True),
     },
     "graph": {

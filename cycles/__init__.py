@@ -11,6 +11,8 @@ True
 from __future__ import annotations
 
 import importlib
+import sys
+import types
 
 # public name -> module that defines it
 _EXPORTS = {
@@ -49,6 +51,24 @@ _EXPORTS = {
     "IntegerCycle": "counting",
     "sweep": "counting",
     "Sweep": "counting",
+    "census": "census",
+    "Census": "census",
+    "census_family": "census",
+    "verify_certificate": "certificate",
+    "write_certificate": "certificate",
+    "integral_cycles_by_itinerary": "wordsearch",
+    "compare": "compare",
+    "Comparison": "compare",
+    "predictions": "compare",
+    "excursions": "excursions",
+    "scan": "scan",
+    "ScanResult": "scan",
+    "FoundCycle": "scan",
+    "ScanProgress": "scan",
+    "ScanStore": "store",
+    "default_store_path": "store",
+    "SieveTable": "sieve",
+    "sieve_table": "sieve",
     "functional_graph": "graph",
     "FunctionalGraph": "graph",
     "GraphCycle": "graph",
@@ -59,14 +79,6 @@ _EXPORTS = {
     "convergents": "floors",
     "semiconvergents": "floors",
     "simplest_fraction": "floors",
-    "scan": "scan",
-    "ScanResult": "scan",
-    "FoundCycle": "scan",
-    "ScanProgress": "scan",
-    "ScanStore": "store",
-    "default_store_path": "store",
-    "SieveTable": "sieve",
-    "sieve_table": "sieve",
 }
 
 __all__ = sorted(_EXPORTS)
@@ -79,6 +91,23 @@ def __getattr__(name: str):
     value = getattr(importlib.import_module(f"cycles.{module}"), name)
     globals()[name] = value
     return value
+
+
+class _Package(types.ModuleType):
+    """Keeps ``cycles.orbit``, ``cycles.scan``, ``cycles.census`` bound to the functions.
+
+    The import system binds a loaded submodule as an attribute of its package;
+    where a public function shares its module's name, the function wins (import
+    the module's other names with ``from cycles.scan import ...``).
+    """
+
+    def __setattr__(self, name: str, value) -> None:
+        if isinstance(value, types.ModuleType) and _EXPORTS.get(name) == name:
+            return
+        super().__setattr__(name, value)
+
+
+sys.modules[__name__].__class__ = _Package
 
 
 def __dir__():

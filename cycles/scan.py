@@ -60,9 +60,7 @@ References
 from __future__ import annotations
 
 import functools
-import sys
 import time
-import types
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -631,6 +629,8 @@ def _open_store(store, m: Map) -> tuple[ScanStore, bool]:
     if store is None:
         return ScanStore(default_store_path(m), m, create_dirs=True), True
     if isinstance(store, (str, Path)):
+        if Path(store).is_dir():  # a directory of stores, one per map definition
+            return ScanStore(Path(store) / default_store_path(m).name, m), True
         return ScanStore(store, m), True
     raise InputError(f"store must be a path, a ScanStore, None (default) or False, got {store!r}")
 
@@ -918,18 +918,34 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
     )
 
 
-class _CallableModule(types.ModuleType):
-    """This module, callable as :func:`scan`.
+def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
+    """The verified cycle record of the cycle whose minimum is ``x0`` (any sign, 0 allowed)."""
+    if x0 == 0:
+        x, elems, word = 0, [], []
+        for _ in range(length):
+            elems.append(x)
+            word.append(x % m.divisor)
+            x = m.step(x)
+        if x != 0:
+            raise RuntimeError(f"internal error: 0 does not return after {length} steps")
+        cont = word_content(word, m.divisor)
+        return FoundCycle(
+            "zero",
+            0,
+            length,
+            cont[1] if m.divisor == 2 else None,
+            cont,
+            format_itinerary(word, m.divisor),
+            tuple(elems),
+            is_primitive(word),
+            lagarias_primitive(m, elems),
+            m.divisor**length - _A(m, word),
+        )
+    return verified_cycle(m, "positive" if x0 > 0 else "negative", abs(x0), length)
 
-    ``cycles.scan`` names both the function (re-exported lazily by the
-    package) and this submodule; once the submodule has been imported directly
-    (``from cycles.scan import ScanResult``), Python binds the package
-    attribute to the module. Making the module callable keeps
-    ``cycles.scan(m, to)`` and ``from cycles import scan`` working either way.
-    """
 
-    def __call__(self, *args, **kwargs) -> ScanResult:
-        return scan(*args, **kwargs)
-
-
-sys.modules[__name__].__class__ = _CallableModule
+def _A(m: Map, word) -> int:
+    A = 1
+    for r in word:
+        A *= m.branches[r].multiplier
+    return A

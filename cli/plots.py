@@ -1,0 +1,154 @@
+"""Plots for comparisons and studies (matplotlib, Agg backend, written atomically).
+
+Every plot's legend names the label of what it draws (exact, proved,
+heuristic); plotted values are floats (log10 of exact integers), for display.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import tempfile
+from pathlib import Path
+
+__all__ = ["save_figure", "plot_comparison", "log10"]
+
+
+def log10(n) -> float:
+    """log10 of a positive integer or float, exact-enough for plotting big integers; nan for <= 0."""
+    if n is None:
+        return float("nan")
+    if isinstance(n, int):
+        if n <= 0:
+            return float("nan")
+        if n.bit_length() > 1000:
+            shift = n.bit_length() - 900
+            return math.log10(n >> shift) + shift * math.log10(2)
+        return math.log10(n)
+    n = float(n)
+    return math.log10(n) if n > 0 else float("nan")
+
+
+def save_figure(fig, path: str | os.PathLike) -> Path:
+    """Save ``fig`` as PNG to ``path`` atomically (no metadata that changes between runs)."""
+    import matplotlib.pyplot as plt
+
+    target = Path(path)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".png")
+    os.close(fd)
+    try:
+        fig.savefig(tmp, format="png", metadata={"Software": None})
+        os.chmod(tmp, 0o644)
+        os.replace(tmp, target)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+    finally:
+        plt.close(fig)
+    return target
+
+
+def _critical_series(sweep):
+    """Per x: necklaces, bound-based candidates, heuristic, integer cycles (first length of each x)."""
+    per_x: dict[int, dict] = {}
+    seen: set = set()
+    for r in sweep.rows:
+        key = (r.off_zero, tuple(r.content[1:]))
+        if key in seen:  # only the first (critical) length of each content
+            continue
+        seen.add(key)
+        slot = per_x.setdefault(
+            r.off_zero,
+            {"necklaces": 0, "candidates": 0, "heuristic": 0.0, "cycles": 0, "known": True},
+        )
+        slot["necklaces"] += r.necklaces
+        cand = r.candidates if r.candidates is not None else r.candidates_bound
+        slot["candidates"] += cand or 0
+        slot["heuristic"] += float(r.heuristic)
+        if r.integer_cycles is None:
+            slot["known"] = False
+        else:
+            slot["cycles"] += len(r.integer_cycles)
+    xs = sorted(per_x)
+    return xs, [per_x[x] for x in xs]
+
+
+def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
+    """One panel per map on shared axes (necklaces, candidates, integer cycles along the
+    critical line), and a last panel with the escape share and the drift of each map."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    profiles = list(comparison.profiles)
+    n = len(profiles) + 1
+    cols = min(3, n)
+    rows = math.ceil(n / cols)
+    fig, axes = plt.subplots(rows, cols, figsize=(4.2 * cols, 3.3 * rows), dpi=100, squeeze=False)
+    flat = [ax for row in axes for ax in row]
+    shared = None
+    for ax, p in zip(flat, profiles):
+        s = sweeps.get(p.map.label)
+        if s is None:
+            ax.text(
+                0.5,
+                0.5,
+                "no sweep\n(not a map with a critical line)",
+                ha="center",
+                va="center",
+                fontsize=8,
+            )
+            ax.set_title(p.map.label, fontsize=9)
+            continue
+        xs, series = _critical_series(s)
+        ax.plot(xs, [log10(v["necklaces"]) for v in series], label="necklaces (exact)", lw=1.3)
+        ax.plot(
+            xs,
+            [log10(v["candidates"]) for v in series],
+            label="candidates (proved/exact)",
+            lw=1.1,
+            ls="--",
+        )
+        ax.plot(
+            xs,
+            [log10(v["heuristic"]) for v in series],
+            label="necklaces/|D| (heuristic)",
+            lw=0.9,
+            ls=":",
+        )
+        cyc = [(x, log10(v["cycles"])) for x, v in zip(xs, series) if v["known"] and v["cycles"]]
+        if cyc:
+            ax.scatter(
+                *zip(*cyc), marker="*", s=40, color="k", zorder=3, label="integer cycles (exact)"
+            )
+        ax.set_title(p.map.label, fontsize=9)
+        ax.grid(alpha=0.3)
+        ax.tick_params(labelsize=7)
+        if shared is None:
+            shared = ax
+        else:
+            ax.sharey(shared)
+            ax.sharex(shared)
+    if shared is not None:
+        shared.legend(fontsize=6, loc="upper left")
+        shared.set_ylabel("log10 count", fontsize=8)
+    last = flat[len(profiles)]
+    labels = [p.map.label for p in profiles]
+    esc = [p.row()["unresolved_share"] or 0.0 for p in profiles]
+    drift = [p.map.drift() for p in profiles]
+    pos = range(len(profiles))
+    last.bar([i - 0.2 for i in pos], esc, width=0.4, label="share of starts unresolved (exact)")
+    last.bar([i + 0.2 for i in pos], drift, width=0.4, label="drift per step (exact formula)")
+    last.axhline(0, color="k", lw=0.6)
+    last.set_xticks(list(pos))
+    last.set_xticklabels(labels, rotation=60, fontsize=6)
+    last.set_title("escape and drift", fontsize=9)
+    last.legend(fontsize=6)
+    for ax in flat[len(profiles) + 1 :]:
+        ax.axis("off")
+    fig.suptitle("Along the critical line: x (odd steps / steps off residue 0)", fontsize=10)
+    fig.tight_layout()
+    return save_figure(fig, path)

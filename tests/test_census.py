@@ -1,0 +1,154 @@
+"""Certified census: published cycle lists, the two methods against each other, certificates."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+import maps
+from cycles.census import census, census_family, parse_family
+from cycles.certificate import load_certificate, verify_certificate, write_certificate
+from cycles.errors import InputError
+
+
+def _pos(c):
+    return c.minima_on("positive")
+
+
+def test_3x5_up_to_length_30():
+    # OEIS A226607 (k = 5): 1, 19, 23, 187, 347 primitive; plus the non-primitive 5
+    c = census(maps.get("3x+5"), 30, side="positive", store=False, workers=1)
+    assert _pos(c) == (1, 5, 19, 23, 187, 347)
+    assert [x.minimum for x in c.cycles if x.minimum > 0 and not x.lagarias_primitive] == [5]
+    assert c.plans["positive"].method == "bound-scan"
+
+
+def test_3x13_up_to_length_30():
+    # OEIS A226607 (k = 13): 1, 131, 211, 227, 251, 259, 283, 287, 319; plus 13 = 13 * {1, 2}
+    c = census(maps.get("3x+13"), 30, side="positive", store=False, workers=1)
+    assert _pos(c) == (1, 13, 131, 211, 227, 251, 259, 283, 287, 319)
+
+
+def test_3x1_both_sides_up_to_10000():
+    # Lagarias 1985 survey; Steiner 1977 for circuits: only the cycles through 1, -1, -5, -17
+    c = census(maps.get("3x+1"), 10_000, store=False, workers=1)
+    assert c.minima == (0, 1, -1, -5, -17)
+    assert all(p.method == "bound-scan" for p in c.plans.values())
+    assert c.plans["positive"].scan_to >= c.plans["positive"].bound > 10**6
+
+
+@pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
+def test_method_1_equals_method_2_up_to_24(name):
+    # common practice, no source: two independent certifications must agree
+    m = maps.get(name)
+    K = 24
+    words = census(m, K, method="itineraries", store=False, workers=1)
+    try:
+        bound = census(m, K, method="bound-scan", store=False, workers=1)
+    except InputError as exc:
+        assert "does not apply" in str(exc)  # offsets of mixed sign: only method 2 applies
+        return
+    assert bound.minima == words.minima
+    for a, b in zip(bound.cycles, words.cycles):
+        assert a.elements == b.elements and a.itinerary == b.itinerary
+
+
+def test_auto_cross_checks_small_lengths():
+    c = census(maps.get("3x+7"), 12, store=False, workers=1)
+    assert c.cross_checked and "cross-checked" in c.method
+    # OEIS A226607 (k = 7): 5 primitive, 7 = 7 * {1, 2} (1 is no cycle: 1 -> 5)
+    assert _pos(c) == (5, 7)
+
+
+def test_mixed_sign_offsets_use_itineraries():
+    c = census(maps.get("mod3-4x"), 14, store=False)
+    assert {p.method for p in c.plans.values()} == {"itineraries"}
+    assert c.minima == (0, 1, -1)
+
+
+def test_bad_input():
+    with pytest.raises(InputError, match="at least 1|>= 1"):
+        census(maps.get("3x+1"), 0, store=False)
+    with pytest.raises(InputError, match=r"needs a scan of 1\.\.\d+ .* beyond the limit"):
+        census(maps.get("3x+1"), 100_000, store=False, max_scan=10**6)
+    with pytest.raises(InputError, match="no applicable method"):
+        census(maps.get("mod3-4x"), 60, store=False)
+
+
+def test_family():
+    # OEIS A226607: k = 1: 1; k = 5: 1, 19, 23; k = 7: 5; k = 11: 1 (3x+11 has the cycle 1 -> 7 -> 16 -> 8 ...)
+    fam = census_family("3x+k", range(1, 8), 20, store=False, workers=1)
+    rows = {r["k"]: r["primitive_minima"] for r in fam.table()}
+    assert rows == {1: [1], 5: [1, 19, 23], 7: [5]}
+    assert parse_family("5x-k") == (5, -1)
+    with pytest.raises(InputError):
+        parse_family("3x+2")
+
+
+# --------------------------------------------------------------------- certificates
+@pytest.fixture
+def cert(tmp_path):
+    c = census(maps.get("3x+5"), 30, side="positive", store=False, workers=1)
+    path = tmp_path / "c.json"
+    write_certificate(c, path)
+    return path
+
+
+def _edit(path, fn):
+    doc = json.loads(path.read_text())
+    fn(doc)
+    path.write_text(json.dumps(doc))
+
+
+def test_certificate_verifies(cert):
+    v = verify_certificate(cert)
+    assert v.ok, v.problems
+    assert v.rescanned
+    doc = load_certificate(cert)
+    assert doc["map"]["key"] == maps.get("3x+5").key and doc["count"] == len(doc["cycles"])
+
+
+def test_certificate_refuses_overwrite(cert):
+    c = census(maps.get("3x+5"), 10, side="positive", store=False, workers=1)
+    with pytest.raises(InputError, match="refusing to overwrite"):
+        write_certificate(c, cert)
+
+
+def test_tampered_cycle_removed(cert):
+    def drop(doc):
+        doc["cycles"] = [c for c in doc["cycles"] if c["minimum"] != 187]
+        doc["count"] -= 1
+
+    _edit(cert, drop)
+    v = verify_certificate(cert)
+    assert not v.ok
+    assert any("minimum 187" in p and "missing" in p for p in v.problems)
+
+
+def test_tampered_element_changed(cert):
+    def change(doc):
+        doc["cycles"][2]["elements"][1] += 2
+
+    _edit(cert, change)
+    v = verify_certificate(cert, rescan=False)
+    assert any("element 1" in p and "was changed" in p for p in v.problems)
+
+
+def test_tampered_range_shrunk(cert):
+    def shrink(doc):
+        doc["scanned"][0]["to"] = 100
+
+    _edit(cert, shrink)
+    v = verify_certificate(cert, rescan=False)
+    assert any("shorter than the proved bound requires" in p for p in v.problems)
+
+
+def test_not_a_certificate(tmp_path):
+    p = tmp_path / "x.json"
+    p.write_text('{"hello": 1}')
+    with pytest.raises(InputError, match="not a census certificate"):
+        verify_certificate(p)
+    p.write_text("garbage")
+    with pytest.raises(InputError, match="not JSON"):
+        verify_certificate(p)

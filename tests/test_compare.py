@@ -1,0 +1,107 @@
+"""Comparison of maps: rows agree with the individual analyses; predictions never beat the theorem."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+from conftest import run_cli
+
+import maps
+from cycles.census import census
+from cycles.compare import compare, critical_ratio, predictions
+from cycles.counting import count
+from cycles.excursions import excursions
+from cycles.floors import floor
+
+
+@pytest.fixture(scope="module")
+def cmp():
+    return compare(
+        [maps.get("3x+1"), maps.get("5x+1")], max_length=16, to=2000, odd=8, store=False, workers=1
+    )
+
+
+def test_rows_agree_with_individual_analyses(cmp):
+    # common practice, no source: the comparison must only re-present the individual results
+    for p in cmp.profiles:
+        m = p.map
+        r = p.row()
+        c = census(m, 16, store=False, workers=1)
+        assert r["census_minima"] == [x.minimum for x in c.cycles if x.minimum != 0]
+        tc = count(m, r["k"], 8)
+        assert (r["necklaces_at_x"], r["candidates_at_x"]) == (tc.necklaces, tc.candidates)
+        e = excursions(m, 2000, cap=1000)
+        assert r["largest_peak"] >= e.peak
+    r1 = cmp.profiles[0].row()
+    assert r1["floor_positive_length"] == floor(maps.get("3x+1"), 2000, "positive").least_length
+    assert r1["census_minima"] == [1, -1, -5, -17]  # Lagarias 1985 survey (from memory)
+    r5 = cmp.profiles[1].row()
+    assert r5["census_minima"][:3] == [1, 13, 17]  # OEIS A259207 (13), 1 and 17 from memory
+    assert (
+        r5["floor_positive_length"] is None
+        and "unresolved" in cmp.profiles[1].floor_notes["positive"]
+    )
+
+
+def test_drift_values(cmp):
+    # common practice, no source: (1/2) ln(3/4) and (1/2) ln(5/4) per divided step
+    r1, r5 = (p.row() for p in cmp.profiles)
+    assert round(r1["drift"], 4) == -0.1438 and r1["drift_exact"] == "(1/2) ln(3/4)"
+    assert round(r5["drift"], 4) == 0.1116 and r5["drift_exact"] == "(1/2) ln(5/4)"
+    assert critical_ratio(maps.get("5x+1"))[1] == "log_2 5"
+
+
+@pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
+def test_found_never_exceeds_candidates(name):
+    # a theorem (distinct cycles have distinct minima, all multiples of |D| up to the largest numerator)
+    m = maps.get(name)
+    c = census(m, 14, store=False, workers=1)
+    p = predictions(m, c)
+    for row in p.rows:
+        if row.candidates is not None:
+            assert row.found <= row.candidates, row
+    for tot in p.totals.values():
+        if tot["bound_applies"]:
+            assert tot["found"] <= tot["candidates"]
+
+
+def test_excursion_record():
+    # Oliveira e Silva 1999 (from memory): below 10^6 the largest 3x+1 excursion starts at 704511,
+    # peak 56991483520 in the undivided map, i.e. 28495741760 in the divided one
+    e = excursions(maps.get("3x+1"), 10**6)
+    assert (e.peak_start, 2 * e.peak) == (704511, 56991483520)
+
+
+def test_compare_cli(tmp_path):
+    png = tmp_path / "c.png"
+    csv = tmp_path / "c.csv"
+    out = run_cli(
+        "compare",
+        "3x+1",
+        "3x+k",
+        "--k",
+        "5..7",
+        "--max-length",
+        "12",
+        "--to",
+        "500",
+        "--odd",
+        "6",
+        "--workers",
+        "1",
+        "--store",
+        str(tmp_path / "stores"),
+        "--plot",
+        str(png),
+        "--csv",
+        str(csv),
+        "--json",
+    )
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert [m["row"]["map"] for m in doc["maps"]] == ["3x+1", "3x+5", "3x+7"]
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert csv.read_text().splitlines()[0].startswith("map,definition")
+    again = run_cli("compare", "3x+1", "--plot", str(png))
+    assert again.returncode == 2 and "refusing to overwrite" in again.stderr
