@@ -13,7 +13,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(BIN)/cyclewright demo
+	$(BIN)/cyclewright demo --out demo-out
 
 test: $(STAMP)
 	$(BIN)/python -m pytest

@@ -50,3 +50,24 @@ def resolve_map(spec: str, map_files=()) -> Map:
         return catalog_for(map_files).get(spec)
     except MapError as exc:
         raise BadInput(str(exc)) from None
+
+
+def parse_int(text, what: str, *, minimum: int | None = None, maximum: int | None = None) -> int:
+    """An integer option written as ``1000000``, ``10^9``, ``2^63-1``, ``3*2^40`` or ``1e9``.
+
+    Bad input becomes a one-line :class:`BadInput` naming the option.
+
+    >>> parse_int("2^40", "--verified-to")
+    1099511627776
+    """
+    from .numbers import int_expression
+
+    try:
+        value = int_expression(text)
+    except ValueError as exc:
+        raise BadInput(f"{what} {exc}") from None
+    if minimum is not None and value < minimum:
+        raise BadInput(f"{what} must be at least {minimum}, got {text!r}")
+    if maximum is not None and value > maximum:
+        raise BadInput(f"{what} must be at most {maximum}, got {text!r}")
+    return value

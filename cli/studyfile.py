@@ -38,6 +38,8 @@ from pathlib import Path
 from maps import Map, MapError, load_catalog, load_map_file, parse_int_range
 from maps.mapfile import map_from_table
 
+from .numbers import int_expression
+
 if sys.version_info >= (3, 11):
     import tomllib
 else:  # pragma: no cover
@@ -53,26 +55,14 @@ class StudyError(ValueError):
 # ---------------------------------------------------------------- parameter kinds
 def _int(lo: int | None = None, hi: int | None = None) -> Callable[[object], int]:
     def check(v):
-        if isinstance(v, str):
-            t = v.strip().replace("_", "")
-            try:
-                if "^" in t:
-                    base, exp = t.split("^", 1)
-                    v = int(base) ** int(exp)
-                elif "e" in t.lower() and "." not in t:
-                    mant, exp = t.lower().split("e", 1)
-                    v = int(mant) * 10 ** int(exp)
-                else:
-                    v = int(t)
-            except ValueError:
-                raise ValueError(f"must be an integer, got {v!r}") from None
-        if isinstance(v, bool) or not isinstance(v, int):
+        if isinstance(v, bool) or not isinstance(v, (int, str)):
             raise ValueError(f"must be an integer, got {v!r}")
-        if lo is not None and v < lo:
+        value = int_expression(v)  # raises ValueError with the reason
+        if lo is not None and value < lo:
             raise ValueError(f"must be an integer >= {lo}, got {v}")
-        if hi is not None and v > hi:
+        if hi is not None and value > hi:
             raise ValueError(f"must be an integer <= {hi}, got {v}")
-        return v
+        return value
 
     return check
 

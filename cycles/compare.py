@@ -280,7 +280,8 @@ class MapProfile:
         cr = critical_ratio(m)
         r = rho(m)
         c = self.census
-        pos = self.excursions.get("positive")
+        counts = self.extras.get("scan_counts", {}).get("positive")
+        total = sum(counts.values()) if counts else 0
         row = {
             "map": m.label,
             "definition": m.formula(),
@@ -301,8 +302,9 @@ class MapProfile:
             else None,
             "census_method": c.method if c else self.census_note,
             "scan_to": self.scan_to,
-            "drop_share": float(pos.drop_share) if pos else None,
-            "unresolved_share": float(pos.open_share) if pos else None,
+            # shares of the positive starts 1..N as classified by the scan (exact counts; floats shown)
+            "drop_share": counts["drops"] / total if total else None,
+            "unresolved_share": counts["unresolved"] / total if total else None,
             "cycles_met": sorted(
                 {
                     v
@@ -357,6 +359,7 @@ class MapProfile:
             "row": self.row(),
             "census": self.census.to_dict() if self.census else None,
             "excursions": {s: e.to_dict() for s, e in self.excursions.items()},
+            "scan_counts": self.extras.get("scan_counts", {}),
             "floors": {s: (f.to_dict() if f is not None else None) for s, f in self.floors.items()},
             "floor_notes": self.floor_notes,
             "critical_count": self.critical_count.to_dict()
@@ -450,6 +453,7 @@ def compare(
         say(f"{m.label}: excursions and scan to {to}")
         exc_ = {}
         met = {}
+        scan_counts = {}
         floors, fnotes = {}, {}
         for side in ("positive", "negative"):
             try:
@@ -459,6 +463,7 @@ def compare(
                 continue
             sr = scan(m, to, side=side, max_steps=cap, store=store, workers=workers)
             met[side] = list(sr.minima.get(side, ()))
+            scan_counts[side] = {k: int(v) for k, v in sr.counts[side].items()}
             unresolved = sr.unresolved_count.get(side, 0)
             if unresolved:
                 floors[side] = None
@@ -487,6 +492,18 @@ def compare(
             except InputError:
                 preds = None
         profiles.append(
-            MapProfile(m, c, cnote, exc_, to, floors, fnotes, tc, tnote, preds, {"met": met})
+            MapProfile(
+                m,
+                c,
+                cnote,
+                exc_,
+                to,
+                floors,
+                fnotes,
+                tc,
+                tnote,
+                preds,
+                {"met": met, "scan_counts": scan_counts},
+            )
         )
     return Comparison(tuple(profiles), max_length, to, odd)

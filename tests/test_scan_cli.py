@@ -165,7 +165,8 @@ def test_parse_bound():
     assert parse_bound("10^10+10^8", "--to") == 10**10 + 10**8
     assert parse_bound("1_000", "--to") == 1000
     assert parse_bound("2^63-1", "--to") == 2**63 - 1
-    for bad in ("1.5e3", "10^-2", "", "x"):
+    assert parse_bound("1.5e3", "--to") == 1500
+    for bad in ("1.55e1", "10^-2", "", "x"):
         with pytest.raises(BadInput):
             parse_bound(bad, "--to")
 

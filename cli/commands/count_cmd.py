@@ -11,30 +11,15 @@ from cycles.counting import DEFAULT_LIMIT, count
 from cycles.labels import HEURISTIC_CAUTION
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console
 
 __all__ = ["COMMANDS", "parse_count", "parse_content"]
 
 
 def parse_count(text: str, what: str) -> int:
-    """A non-negative integer written as ``1000000``, ``10^6``, ``1e6`` or ``1_000_000``."""
-    t = str(text).strip().replace("_", "")
-    try:
-        value = int(t)
-    except ValueError:
-        value = None
-        m = re.fullmatch(r"(\d+)\^(\d+)", t) or re.fullmatch(r"(\d+)[eE](\d+)", t)
-        if m:
-            base, exp = int(m.group(1)), int(m.group(2))
-            if exp > 10000:
-                raise BadInput(f"{what} {text!r} is absurdly large") from None
-            value = base**exp if "^" in t else base * 10**exp
-    if value is None:
-        raise BadInput(f"{what} must be an integer (like 1000000, 10^6 or 1e6), got {text!r}")
-    if value < 0:
-        raise BadInput(f"{what} must be at least 0, got {value}")
-    return value
+    """A non-negative integer option (``1000000``, ``10^6``, ``1e6``)."""
+    return parse_int(text, what, minimum=0)
 
 
 def parse_content(text: str) -> dict[int, int]:

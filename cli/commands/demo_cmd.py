@@ -1,58 +1,74 @@
-"""``cyclewright demo``: a short built-in tour of what the workbench computes."""
+"""``cyclewright demo``: run the demo study (scenarios/demo.toml) and point at its report."""
 
 from __future__ import annotations
 
+import json
+from pathlib import Path
+
 import click
 
-from cycles.orbit import orbit
-from cycles.solver import solve
+from ..errors import BadInput
+from ..render import make_table, stdout_console
+from ..study import run_study
+from ..studyfile import StudyError, load_study
 
-from ..options import catalog_for
-from ..render import make_table, short, stdout_console
+DEMO = Path(__file__).resolve().parents[2] / "scenarios" / "demo.toml"
 
 
-@click.command("demo", epilog="\b\nExample:\n  cyclewright demo")
-def demo_cmd() -> None:
-    """A short demonstration on built-in defaults: maps, an orbit, solved cycles."""
+@click.command(
+    "demo",
+    epilog="\b\nExamples:\n  cyclewright demo\n  cyclewright demo --out /tmp/demo-report --workers 2",
+)
+@click.option(
+    "--out",
+    default="demo-out",
+    show_default=True,
+    type=click.Path(file_okay=False),
+    help="Output directory of the report.",
+)
+@click.option(
+    "--workers", type=int, default=None, help="Scan worker processes (default: all cores)."
+)
+def demo_cmd(out, workers) -> None:
+    """Run the built-in demo study: seven maps counted, censused, scanned, floored and compared."""
+    if not DEMO.is_file():
+        raise BadInput(f"the demo study {DEMO} is missing (run from a source checkout)")
+    if workers is not None and workers < 1:
+        raise BadInput(f"--workers must be at least 1, got {workers}")
+    try:
+        study = load_study(DEMO)
+        summary = run_study(study, out, workers=workers)
+    except StudyError as exc:
+        raise BadInput(str(exc)) from None
     con = stdout_console()
-    cat = catalog_for(())
+    con.print(f"[bold]{study.title}[/bold]")
+    rows = json.loads((Path(out) / "compare.json").read_text())["rows"]
     con.print(
         make_table(
-            "Catalogue",
-            ["name", "definition", "drift/step"],
-            [[m.name, m.formula(), f"{m.drift():+.4f}"] for m in cat],
-        )
-    )
-    m = cat.get("3x+1")
-    o = orbit(m, 27)
-    con.print(
-        f"orbit of 27 under 3x+1 (exact): {o.steps} divided steps, "
-        f"{o.undivided_total_steps} undivided, peak {o.undivided_peak}, stopping time {o.stopping_time}"
-    )
-    rows = []
-    for name, word in [
-        ("3x+1", "10"),
-        ("3x+1", "1^3 0^2"),
-        ("3x+5", "11100"),
-        ("3x+7", "1100"),
-        ("mod3-4x", "12"),
-    ]:
-        c = solve(cat.get(name), word)
-        rows.append(
+            "Highlights (from this run's data files)",
             [
-                name,
-                word,
-                c.denominator,
-                "{" + ", ".join(short(e) for e in c.elements) + "}",
-                c.integral,
-            ]
+                "map",
+                "drift/step",
+                "cycles <= K [certified]",
+                "minima",
+                "unresolved share <= N",
+                "floor + / -  [proved]",
+            ],
+            [
+                [
+                    r["map"],
+                    f"{r['drift']:+.4f}",
+                    r["census_cycles"],
+                    ", ".join(map(str, r["census_minima"] or [])),
+                    f"{r['unresolved_share']:.4f}",
+                    f"{r['floor_positive_length'] or '-'} / {r['floor_negative_length'] or '-'}",
+                ]
+                for r in rows
+            ],
         )
+    )
     con.print(
-        make_table(
-            "Rational cycles of itineraries (exact)",
-            ["map", "itinerary", "D", "cycle", "integral"],
-            rows,
-        )
+        f"report: {summary['report']}  (HTML: {summary['html']}); data files, plots and certificates beside it"
     )
 
 

@@ -2,68 +2,17 @@
 
 from __future__ import annotations
 
-import re
-from fractions import Fraction
-
 import click
 
 from cycles.errors import InputError
 from cycles.floors import floor
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, make_table, short, stdout_console
 
-# Results above this many decimal digits are refused (1e100000 and the like).
-_MAX_DIGITS = 100_000
 # The floor's work grows with the digits of N (continued fraction terms, precision).
 _MAX_FLOOR_DIGITS = 1000
-
-_POWER = re.compile(r"^(\d+)\s*(?:\^|\*\*)\s*(\d+)$")
-_TIMES_POWER = re.compile(r"^(\d+)\s*\*\s*(\d+)\s*(?:\^|\*\*)\s*(\d+)$")
-
-
-def parse_big_int(text: str, what: str, *, minimum: int | None = None) -> int:
-    """An integer written as ``1099511627776``, ``1_000``, ``2^68``, ``2**68``, ``3*2^40``,
-    ``1e20`` or ``1.5e9`` (exact: no float is involved).
-
-    >>> parse_big_int("2^68", "N")
-    295147905179352825856
-    >>> parse_big_int("1.5e9", "N"), parse_big_int("3*2^4", "N")
-    (1500000000, 48)
-    """
-    t = str(text).strip().replace("_", "")
-    neg = t.startswith("-")
-    body = t[1:].strip() if neg else t
-    value: int | None = None
-    if re.fullmatch(r"\d+", body):
-        value = int(body)
-    else:
-        mt = _TIMES_POWER.match(body)
-        mp = _POWER.match(body)
-        if mt or mp:
-            c, b, e = mt.groups() if mt else ("1",) + mp.groups()
-            base, exp = int(b), int(e)
-            if base > 1 and exp * len(str(base)) > _MAX_DIGITS:
-                raise BadInput(f"{what} {text!r} is too large")
-            value = int(c) * base**exp
-        elif re.fullmatch(r"\d+(\.\d+)?[eE]\+?\d+", body):
-            mant, exp = re.split(r"[eE]\+?", body)
-            if int(exp) > _MAX_DIGITS:
-                raise BadInput(f"{what} {text!r} is too large")
-            q = Fraction(mant) * 10 ** int(exp)
-            if q.denominator != 1:
-                raise BadInput(f"{what} must be an integer, got {text!r}")
-            value = int(q)
-    if value is None:
-        raise BadInput(
-            f"{what} must be an integer (like 1000000, 2^40, 3*2^40 or 1e20), got {text!r}"
-        )
-    if neg:
-        value = -value
-    if minimum is not None and value < minimum:
-        raise BadInput(f"{what} must be at least {minimum}, got {text!r}")
-    return value
 
 
 @click.command(
@@ -114,7 +63,7 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
     raised until certain).
     """
     m = resolve_map(map_spec, map_files)
-    n = parse_big_int(verified_to, "--verified-to", minimum=0)
+    n = parse_int(verified_to, "--verified-to", minimum=0)
     if len(str(n)) > _MAX_FLOOR_DIGITS:
         raise BadInput(
             f"--verified-to has {len(str(n))} digits; the floor accepts at most "

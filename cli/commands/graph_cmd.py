@@ -13,9 +13,8 @@ from cycles.graph import (
 )
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console
-from .floor_cmd import parse_big_int
 
 
 def _check_output(path: str | None, option: str, force: bool) -> Path | None:
@@ -101,13 +100,13 @@ def graph_cmd(
     basins count the starts that fall into each.
     """
     m = resolve_map(map_spec, map_files)
-    n_to = parse_big_int(to, "--to", minimum=1)
-    n_from = parse_big_int(start, "--from", minimum=1)
-    steps = parse_big_int(max_steps, "--max-steps", minimum=1)
+    n_to = parse_int(to, "--to", minimum=1)
+    n_from = parse_int(start, "--from", minimum=1)
+    steps = parse_int(max_steps, "--max-steps", minimum=1)
     ceil = (
         None
         if str(ceiling).strip().lower() == "none"
-        else parse_big_int(ceiling, "--ceiling", minimum=1)
+        else parse_int(ceiling, "--ceiling", minimum=1)
     )
     if n_to < n_from:
         raise BadInput(f"empty range: --from {n_from} is above --to {n_to}")

@@ -7,7 +7,7 @@ import click
 from cycles.orbit import DEFAULT_MAX_STEPS, orbit
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, short, stdout_console
 
 
@@ -41,10 +41,10 @@ def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_js
     Negative N is allowed (its stopping time compares absolute values).
     """
     m = resolve_map(map_spec, map_files)
-    n = _parse_int(start, "N")
+    n = parse_int(start, "N")
     if max_steps < 1:
         raise BadInput(f"--max-steps must be at least 1, got {max_steps}")
-    ceil = None if ceiling is None else _parse_int(ceiling, "--ceiling")
+    ceil = None if ceiling is None else parse_int(ceiling, "--ceiling")
     if ceil is not None and ceil < abs(n):
         raise BadInput(f"--ceiling {ceil} is below |N| = {abs(n)}")
     o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
@@ -71,27 +71,6 @@ def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_js
         + " ".join(short(v) for v in vals)
         + (" ..." if len(o.values) > len(vals) else "")
     )
-
-
-def _parse_int(text: str, what: str) -> int:
-    t = text.strip().replace("_", "")
-    try:
-        return int(t)
-    except ValueError:
-        pass
-    low = t.lower()
-    if "e" in low or "^" in low:
-        try:
-            if "^" in low:
-                base, exp = low.split("^", 1)
-                return int(base) ** int(exp)
-            mant, exp = low.split("e", 1)
-            if "." in mant:
-                raise ValueError
-            return int(mant) * 10 ** int(exp)
-        except ValueError:
-            pass
-    raise BadInput(f"{what} must be an integer (like 27, -17, 10^9 or 1e9), got {text!r}")
 
 
 COMMANDS = [orbit_cmd]

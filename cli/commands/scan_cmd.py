@@ -10,7 +10,7 @@ import click
 from cycles.scan import DEFAULT_MAX_STEPS, scan
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console
 
 _EPILOG = """\b
@@ -33,47 +33,8 @@ so an interrupted scan resumes where it stopped.
 
 
 def parse_bound(text: str, what: str) -> int:
-    """An integer like ``1000``, ``10^9``, ``1e9``, ``2^63-1``, ``10^10+10^8`` or ``1_000``.
-
-    >>> parse_bound("10^9", "--to"), parse_bound("2^63-1", "--to"), parse_bound("3e5+7", "--to")
-    (1000000000, 9223372036854775807, 300007)
-    """
-    t = text.strip().replace("_", "").replace(" ", "")
-    if not t:
-        raise BadInput(f"{what} must be an integer, got {text!r}")
-    total = 0
-    sign = 1
-    term = ""
-    for ch in t + "+":
-        if ch in "+-" and term and term[-1] not in "eE^":
-            total += sign * _term(term, what, text)
-            sign = 1 if ch == "+" else -1
-            term = ""
-        elif ch in "+-" and not term:
-            sign = sign * (1 if ch == "+" else -1)
-        else:
-            term += ch
-    return total
-
-
-def _term(term: str, what: str, text: str) -> int:
-    low = term.lower()
-    try:
-        if "^" in low:
-            base, exp = low.split("^", 1)
-            if int(exp) < 0:
-                raise ValueError
-            return int(base) ** int(exp)
-        if "e" in low:
-            mant, exp = low.split("e", 1)
-            if "." in mant or int(exp) < 0:
-                raise ValueError
-            return int(mant) * 10 ** int(exp)
-        return int(low)
-    except ValueError:
-        raise BadInput(
-            f"{what} must be an integer (like 1000, 10^9, 1e9 or 2^63-1), got {text!r}"
-        ) from None
+    """An integer like ``1000``, ``10^9``, ``1e9``, ``2^63-1`` or ``10^10+10^8``."""
+    return parse_int(text, what)
 
 
 class _Progress:
