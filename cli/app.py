@@ -38,23 +38,39 @@ def _version() -> str:
         return "0+unknown"
 
 
+class _LazyGroup(click.Group):
+    """Loads a command's module only when that command runs (start-up stays light).
+
+    Command ``NAME`` lives in ``cli/commands/NAME_cmd.py`` and is listed in its ``COMMANDS``.
+    """
+
+    def list_commands(self, ctx: click.Context) -> list[str]:
+        names = [i.name[: -len("_cmd")] for i in pkgutil.iter_modules(_commands_pkg.__path__) if i.name.endswith("_cmd")]
+        return sorted(set(names) | set(self.commands))
+
+    def get_command(self, ctx: click.Context, name: str):
+        if name in self.commands:
+            return self.commands[name]
+        module = f"{_commands_pkg.__name__}.{name}_cmd"
+        try:
+            mod = importlib.import_module(module)
+        except ModuleNotFoundError as exc:
+            if exc.name == module:
+                return None
+            raise
+        for cmd in getattr(mod, "COMMANDS", ()):
+            self.add_command(cmd)
+        return self.commands.get(name)
+
+
 @click.group(
+    cls=_LazyGroup,
     context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
     epilog=_EPILOG,
 )
 @click.version_option(_version(), prog_name="cyclewright")
 def cli() -> None:
     """cyclewright: exact cycles, counting, certified searches and comparisons for Collatz-type maps."""
-
-
-def _register() -> None:
-    for info in sorted(pkgutil.iter_modules(_commands_pkg.__path__), key=lambda i: i.name):
-        mod = importlib.import_module(f"{_commands_pkg.__name__}.{info.name}")
-        for cmd in getattr(mod, "COMMANDS", ()):
-            cli.add_command(cmd)
-
-
-_register()
 
 
 def main(argv: list[str] | None = None) -> None:
