@@ -45,7 +45,11 @@ class _LazyGroup(click.Group):
     """
 
     def list_commands(self, ctx: click.Context) -> list[str]:
-        names = [i.name[: -len("_cmd")] for i in pkgutil.iter_modules(_commands_pkg.__path__) if i.name.endswith("_cmd")]
+        names = [
+            i.name[: -len("_cmd")]
+            for i in pkgutil.iter_modules(_commands_pkg.__path__)
+            if i.name.endswith("_cmd")
+        ]
         return sorted(set(names) | set(self.commands))
 
     def get_command(self, ctx: click.Context, name: str):
