@@ -8,10 +8,11 @@ from __future__ import annotations
 
 import math
 import os
-import tempfile
 from pathlib import Path
 
-__all__ = ["save_figure", "plot_comparison", "log10"]
+from .files import save_figure
+
+__all__ = ["plot_comparison", "log10"]
 
 
 def log10(n) -> float:
@@ -27,27 +28,6 @@ def log10(n) -> float:
         return math.log10(n)
     n = float(n)
     return math.log10(n) if n > 0 else float("nan")
-
-
-def save_figure(fig, path: str | os.PathLike) -> Path:
-    """Save ``fig`` as PNG to ``path`` atomically (no metadata that changes between runs)."""
-    import matplotlib.pyplot as plt
-
-    target = Path(path)
-    target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".png")
-    os.close(fd)
-    try:
-        fig.savefig(tmp, format="png", metadata={"Software": None})
-        os.chmod(tmp, 0o644)
-        os.replace(tmp, target)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-    finally:
-        plt.close(fig)
-    return target
 
 
 def _critical_series(sweep):

@@ -104,4 +104,4 @@ def test_compare_cli(tmp_path):
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert csv.read_text().splitlines()[0].startswith("map,definition")
     again = run_cli("compare", "3x+1", "--plot", str(png))
-    assert again.returncode == 2 and "refusing to overwrite" in again.stderr
+    assert again.returncode == 2 and "already exists" in again.stderr

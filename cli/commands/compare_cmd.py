@@ -15,6 +15,7 @@ from cycles.labels import HEURISTIC_CAUTION
 from maps import MapError, parse_int_range, parse_shorthand
 
 from ..errors import BadInput
+from ..files import check_output
 from ..options import json_option, maps_option, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
 from .count_cmd import parse_count
@@ -145,9 +146,8 @@ def compare_cmd(
         raise BadInput("--max-length, --to and --odd must be at least 1")
     if workers is not None and workers < 1:
         raise BadInput(f"--workers must be at least 1, got {workers}")
-    for p in (csv_path, plot_path):
-        if p and p != "-" and Path(p).exists():
-            raise BadInput(f"{p} exists; refusing to overwrite it")
+    check_output(csv_path, "--csv")
+    check_output(plot_path, "--plot")
     ms = resolve_maps(map_specs, k_range, map_files, all_k)
     if store:
         try:

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
 from cycles.graph import (
@@ -13,22 +11,9 @@ from cycles.graph import (
 )
 
 from ..errors import BadInput
+from ..files import check_output
 from ..options import json_option, maps_option, parse_int, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console
-
-
-def _check_output(path: str | None, option: str, force: bool) -> Path | None:
-    if path is None:
-        return None
-    p = Path(path)
-    if p.exists() and not force:
-        raise BadInput(f"{option} {path} already exists (use --force to replace it)")
-    if p.exists() and p.is_dir():
-        raise BadInput(f"{option} {path} is a directory")
-    parent = p.parent if str(p.parent) else Path(".")
-    if not parent.is_dir():
-        raise BadInput(f"{option} {path}: directory {parent} does not exist")
-    return p
 
 
 @click.command(
@@ -113,10 +98,10 @@ def graph_cmd(
     if ceil is not None and ceil < n_to:
         raise BadInput(f"--ceiling {ceil} is below --to {n_to}")
     outputs = {
-        "graphml": _check_output(graphml, "--graphml", force),
-        "gexf": _check_output(gexf, "--gexf", force),
-        "dot": _check_output(dot, "--dot", force),
-        "plot": _check_output(plot, "--plot", force),
+        "graphml": check_output(graphml, "--graphml", force),
+        "gexf": check_output(gexf, "--gexf", force),
+        "dot": check_output(dot, "--dot", force),
+        "plot": check_output(plot, "--plot", force),
     }
     names = [p for p in outputs.values() if p is not None]
     if len({p.resolve() for p in names}) != len(names):

@@ -3,11 +3,8 @@
 from __future__ import annotations
 
 import math
-import os
 import sys
-import tempfile
 import time
-from pathlib import Path
 
 import click
 
@@ -16,6 +13,7 @@ from cycles.labels import HEURISTIC_CAUTION
 from maps import MapError, parse_int_range
 
 from ..errors import BadInput
+from ..files import atomic_write, check_output, save_figure
 from ..options import json_option, maps_option, resolve_map
 from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
 from .count_cmd import parse_count
@@ -120,8 +118,7 @@ def sweep_cmd(
     if as_json and csv_path == "-":
         raise BadInput("--json and --csv - both write to stdout; give --csv a file name")
     for path, what in ((csv_path, "--csv"), (plot_path, "--plot")):
-        if path and path != "-" and Path(path).exists() and not force:
-            raise BadInput(f"{what} {path} exists; use --force to overwrite it")
+        check_output(path, what, force)
     if plot_path and not plot_path.lower().endswith(".png"):
         raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
     s = sweep(m, xs, extra, side, limit=limit, progress=_progress())
@@ -132,7 +129,7 @@ def sweep_cmd(
         if csv_path == "-":
             write_csv(sys.stdout, cols, rows)
         else:
-            _atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
+            atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
     if plot_path:
         plot_sweep(s, plot_path)
     if as_json:
@@ -157,27 +154,6 @@ def _progress():
             con.print(f"sweep: {done:,} / {total:,} types", end="\r")
 
     return cb
-
-
-def _public_mode(tmp: str) -> None:
-    # mkstemp creates 0600 files; give the result the usual permissions (umask applies)
-    um = os.umask(0)
-    os.umask(um)
-    os.chmod(tmp, 0o666 & ~um)
-
-
-def _atomic_write(path: str, writer) -> None:
-    target = Path(path)
-    fd, tmp = tempfile.mkstemp(dir=target.parent or Path("."), prefix=f".{target.name}.")
-    try:
-        with os.fdopen(fd, "w", newline="") as fh:
-            writer(fh)
-        _public_mode(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
 
 
 def _pick_rows(n: int, max_rows: int) -> list[int]:
@@ -316,21 +292,7 @@ def plot_sweep(s, path: str) -> None:
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8)
     fig.tight_layout()
-    target = Path(path)
-    fd, tmp = tempfile.mkstemp(
-        dir=target.parent or Path("."), prefix=f".{target.name}.", suffix=".png"
-    )
-    os.close(fd)
-    try:
-        fig.savefig(tmp, format="png")
-        _public_mode(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-    finally:
-        plt.close(fig)
+    save_figure(fig, path)
 
 
 COMMANDS = [sweep_cmd]

@@ -1,0 +1,64 @@
+"""Output files: checked before any work, written atomically, never silently replaced."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from collections.abc import Callable
+from pathlib import Path
+
+from .errors import BadInput
+
+__all__ = ["check_output", "atomic_write", "save_figure"]
+
+
+def check_output(path: str | None, option: str, force: bool = False) -> Path | None:
+    """Refuse (one-line :class:`BadInput`) an output path that exists (unless ``force``),
+    is a directory, or whose directory does not exist. ``None`` and ``-`` (stdout) pass."""
+    if path is None or path == "-":
+        return None
+    p = Path(path)
+    if p.exists() and p.is_dir():
+        raise BadInput(f"{option} {path} is a directory")
+    if p.exists() and not force:
+        raise BadInput(f"{option} {path} already exists (use --force to replace it)")
+    parent = p.parent if str(p.parent) else Path(".")
+    if not parent.is_dir():
+        raise BadInput(f"{option} {path}: directory {parent} does not exist")
+    return p
+
+
+def _public_mode(tmp: str) -> None:
+    # mkstemp creates 0600 files; give the result the usual permissions (umask applies)
+    um = os.umask(0)
+    os.umask(um)
+    os.chmod(tmp, 0o666 & ~um)
+
+
+def atomic_write(path: str | os.PathLike, writer: Callable, *, binary: bool = False) -> Path:
+    """Write through ``writer(fh)`` into a temporary file beside ``path``, then rename it over."""
+    target = Path(path)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.")
+    try:
+        with os.fdopen(fd, "wb" if binary else "w", **({} if binary else {"newline": ""})) as fh:
+            writer(fh)
+        _public_mode(tmp)
+        os.replace(tmp, target)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+    return target
+
+
+def save_figure(fig, path: str | os.PathLike) -> Path:
+    """Save a matplotlib figure as PNG, atomically, without run-dependent metadata, and close it."""
+    import matplotlib.pyplot as plt
+
+    try:
+        return atomic_write(
+            path, lambda fh: fig.savefig(fh, format="png", metadata={"Software": None}), binary=True
+        )
+    finally:
+        plt.close(fig)
