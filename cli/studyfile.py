@@ -126,7 +126,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "census": {
         "max_length": (_int(1, 10**7), 30),
         "side": (SIDE, "both"),
-        "method": (_choice("auto", "bound-scan", "itineraries"), "auto"),
+        "method": (_choice("auto", "bound-scan", "itineraries", "necklaces", "both"), "auto"),
         "family": (_str, ""),
         "k": (_range_text, "1..1"),
     },

@@ -40,7 +40,7 @@ from .counting import count, critical_lengths, rho
 from .errors import InputError
 from .excursions import Excursions, excursions
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
-from .necklaces import lyndon_count, necklace_count
+from .necklaces import contents_of_length, lyndon_count, necklace_count
 
 __all__ = ["compare", "Comparison", "MapProfile", "predictions", "Predictions", "critical_ratio"]
 
@@ -127,16 +127,6 @@ class Predictions:
                 "heuristic": HEURISTIC.value,
             },
         }
-
-
-def _contents(d: int, k: int):
-    """All contents (c_0..c_{d-1}) summing to k."""
-    if d == 1:
-        yield (k,)
-        return
-    for c0 in range(k, -1, -1):
-        for rest in _contents(d - 1, k - c0):
-            yield (c0,) + rest
 
 
 def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_000) -> Predictions:
@@ -226,7 +216,7 @@ def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_0
         }
         for k in range(1, K + 1):
             dk = d**k
-            for content in _contents(d, k):
+            for content in contents_of_length(d, k):
                 A = 1
                 for a, ci in zip(m.multipliers, content):
                     A *= a**ci

@@ -69,7 +69,22 @@ __all__ = [
     "necklaces",
     "lyndon_words",
     "necklace_numerators",
+    "contents_of_length",
 ]
+
+
+def contents_of_length(d: int, k: int):
+    """Every content ``(c_0, ..., c_{d-1})`` with ``sum c = k`` (residue 0 count descending).
+
+    >>> list(contents_of_length(2, 2))
+    [(2, 0), (1, 1), (0, 2)]
+    """
+    if d == 1:
+        yield (k,)
+        return
+    for c0 in range(k, -1, -1):
+        for rest in contents_of_length(d - 1, k - c0):
+            yield (c0,) + rest
 
 
 def type_content(k: int, x: int) -> tuple[int, int]:

@@ -54,6 +54,16 @@ def test_method_1_equals_method_2_up_to_24(name):
         assert a.elements == b.elements and a.itinerary == b.itinerary
 
 
+@pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
+def test_necklace_method_equals_itinerary_method(name):
+    # two forms of method 2 (Sawada 2003 fixed-content generation vs meet in the middle) must agree
+    m = maps.get(name)
+    a = census(m, 13, method="necklaces", store=False)
+    b = census(m, 13, method="itineraries", store=False)
+    assert a.minima == b.minima
+    assert [c.elements for c in a.cycles] == [c.elements for c in b.cycles]
+
+
 def test_auto_cross_checks_small_lengths():
     c = census(maps.get("3x+7"), 12, store=False, workers=1)
     assert c.cross_checked and "cross-checked" in c.method

@@ -41,7 +41,8 @@ def _progress():
         "  cyclewright census mod3-4x --max-length 16 --method itineraries\n"
         '  cyclewright census "3x+k" --k 1..200 --max-length 30\n'
         "\b\nMethods: bound-scan (proved bound on cycle minima + exhaustive scan),\n"
-        "itineraries (all words by meet in the middle), both (cross-check), auto."
+        "itineraries (all words by meet in the middle), necklaces (every primitive\n"
+        "necklace, small K), both (cross-check), auto."
     ),
 )
 @click.argument("map_spec", metavar="MAP")
@@ -53,7 +54,7 @@ def _progress():
 )
 @click.option(
     "--method",
-    type=click.Choice(["auto", "bound-scan", "itineraries", "both"]),
+    type=click.Choice(["auto", "bound-scan", "itineraries", "necklaces", "both"]),
     default="auto",
     show_default=True,
 )
