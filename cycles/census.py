@@ -47,7 +47,7 @@ References
    Acta Arithmetica 56 (1990) 33-53 (primitive cycles).
 .. [3] R. P. Steiner, "A theorem on the Syracuse problem", Proc. 7th
    Manitoba Conference on Numerical Mathematics (1977) 553-559 (circuits).
-.. [5] J. Sawada, "A fast algorithm to generate necklaces with fixed content",
+.. [4] J. Sawada, "A fast algorithm to generate necklaces with fixed content",
    Theoretical Computer Science 301 (2003) 477-489.
 """
 
