@@ -105,3 +105,57 @@ def test_compare_cli(tmp_path):
     assert csv.read_text().splitlines()[0].startswith("map,definition")
     again = run_cli("compare", "3x+1", "--plot", str(png))
     assert again.returncode == 2 and "already exists" in again.stderr
+
+
+def test_compare_rows_agree_with_the_individual_commands(tmp_path):
+    # common practice, no source: compare must re-present what census, floor and count print
+    out = run_cli(
+        "compare",
+        "3x+1",
+        "5x+1",
+        "--max-length",
+        "14",
+        "--to",
+        "1000",
+        "--odd",
+        "7",
+        "--workers",
+        "1",
+        "--store",
+        str(tmp_path / "st"),
+        "--json",
+    )
+    assert out.returncode == 0, out.stderr
+    rows = {m["row"]["map"]: m["row"] for m in json.loads(out.stdout)["maps"]}
+    for name in ("3x+1", "5x+1"):
+        row = rows[name]
+        cen = json.loads(
+            run_cli(
+                "census",
+                name,
+                "--max-length",
+                "14",
+                "--workers",
+                "1",
+                "--store",
+                str(tmp_path / f"c-{name}.sqlite"),
+                "--json",
+            ).stdout
+        )
+        assert row["census_minima"] == [c["minimum"] for c in cen["cycles"] if c["minimum"] != 0]
+        cnt = json.loads(run_cli("count", name, "-k", str(row["k"]), "-x", "7", "--json").stdout)
+        assert (row["necklaces_at_x"], row["candidates_at_x"]) == (
+            cnt["necklaces"],
+            cnt["candidates"],
+        )
+    fl = json.loads(
+        run_cli("floor", "3x+1", "--verified-to", "1000", "--side", "both", "--json").stdout
+    )
+    by_side = {f["side"]: f["least_length"] for f in fl["floors"]}
+    assert (rows["3x+1"]["floor_positive_length"], rows["3x+1"]["floor_negative_length"]) == (
+        by_side["positive"],
+        by_side["negative"],
+    )
+    assert (
+        rows["5x+1"]["floor_positive_length"] is None
+    )  # unresolved starts: no verified range, no floor
