@@ -324,6 +324,7 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
 def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     from cycles.census import census, census_family
     from cycles.certificate import write_certificate
+    from cycles.errors import InputError
 
     p = spec.params
     K = p["max_length"]
@@ -375,11 +376,7 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             c = census(
                 m, K, side=p["side"], method=p["method"], store=ctx.stores, workers=ctx.workers
             )
-        except Exception as exc:  # an InputError explains why (no method applies...)
-            from cycles.errors import InputError
-
-            if not isinstance(exc, InputError):
-                raise
+        except InputError as exc:  # no applicable method, a range beyond reach...: say why, go on
             sec.paragraphs.append(f"{m.label}: {exc}")
             continue
         cert = ctx.out / f"{ctx.name('certificate', m.label, str(K))}.json"
