@@ -1,6 +1,6 @@
 """``python -m cli`` runs the ``cyclewright`` command."""
 
-from cli.app import main
+from cli.app import run
 
 if __name__ == "__main__":
-    main()
+    run()

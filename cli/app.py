@@ -7,6 +7,7 @@ with status 2; an internal failure prints one line and exits with 1 (set
 
 from __future__ import annotations
 
+import atexit
 import importlib
 import os
 import pkgutil
@@ -17,7 +18,7 @@ import click
 from . import commands as _commands_pkg
 from .errors import USER_ERRORS
 
-__all__ = ["cli", "main"]
+__all__ = ["cli", "main", "run"]
 
 _EPILOG = """\b
 Examples:
@@ -111,3 +112,37 @@ def main(argv: list[str] | None = None) -> None:
         click.echo(f"error: internal failure: {type(exc).__name__}: {msg}", err=True)
         sys.exit(1)
     sys.exit(0)
+
+
+def run() -> None:
+    """Console entry point: :func:`main`, then a quick exit of the process.
+
+    Tearing down an interpreter that has loaded the compiled kernels takes
+    about 0.2 s (numba's and LLVM's objects are freed one by one) and does
+    nothing the command needs: by the time :func:`main` returns, every store
+    transaction is committed and every output file written and closed. So
+    the exit handlers run, the standard streams are flushed, and the process
+    ends with ``os._exit``. Code that calls :func:`main` (tests, notebooks)
+    keeps the normal exit.
+    """
+    try:
+        main()
+        code = 0
+    except SystemExit as exc:
+        if exc.code is None:
+            code = 0
+        elif isinstance(exc.code, int):
+            code = exc.code
+        else:
+            print(exc.code, file=sys.stderr)
+            code = 1
+    try:
+        atexit._run_exitfuncs()  # what a normal exit runs first (pools, logging)
+    except Exception:  # pragma: no cover - an exit handler failing must not hide the result
+        pass
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):  # closed or broken pipe: nothing more to say
+            pass
+    os._exit(code)

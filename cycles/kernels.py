@@ -167,6 +167,150 @@ def _contg(s, v, i, cap, tie, d, ma, mb, vmax, safe):
     return _HARD, i
 
 
+@njit(cache=True, nogil=True, inline="always")
+def _up2(v, a0, b0, a1, b1):
+    """One step of a d = 2 map with non-negative coefficients (a select, no branch)."""
+    o = v & 1
+    return ((a1 if o else a0) * v + (b1 if o else b0)) >> 1
+
+
+@njit(cache=True, nogil=True)
+def _settle2(s, v, i, cap, tie, a0, b0, a1, b1, vm0, vm1, safe):
+    """The outcome of a lane that stopped at ``v = T^i(s)`` (an event, the cap or the ceiling)."""
+    if v <= s:
+        return (CYCLE if v == s else DROP), i
+    return _cont2(s, v, i, cap, tie, a0, b0, a1, b1, vm0, vm1, safe)
+
+
+@njit(cache=True, nogil=True)
+def _lanes2(
+    q,
+    jlo,
+    jhi,
+    dK,
+    K,
+    sc,
+    sA,
+    sC,
+    cap,
+    tie,
+    a0,
+    b0,
+    a1,
+    b1,
+    vm0,
+    vm1,
+    safe,
+    cyc_s,
+    cyc_len,
+    ncyc,
+    hard_s,
+    nhard,
+):
+    """Survivors ``jlo <= j < jhi`` of block ``q``, four orbits at a time.
+
+    For d = 2 maps whose coefficients are all non-negative (``a_r >= 1``,
+    ``b_r >= 0``), every value of a positive orbit is positive, so the only
+    events are ``v < s`` (drop) and ``v = s`` (return); ``v = -s`` cannot
+    occur. One orbit's steps form a chain of dependent multiplications; four
+    independent orbits advanced together keep the processor's units busy. A
+    lane stops at an event, at the cap or before a value could pass the
+    int64 ceiling (``vm`` is the smaller branch limit); the last two hand the
+    orbit, at the exact step reached, to :func:`_cont2`, which decides it
+    (or marks it hard) exactly as the one-orbit path would. The caller
+    guarantees room in the buffers for ``jhi - jlo`` entries. Returns the new
+    ``(ncyc, nhard)``.
+    """
+    vm = vm0 if vm0 < vm1 else vm1
+    base = q * dK
+    j = jlo
+    s0 = s1 = s2 = s3 = 0
+    v0 = v1 = v2 = v3 = 0
+    i0 = i1 = i2 = i3 = 0
+    act0 = act1 = act2 = act3 = False
+    while True:
+        # fill the idle lanes with the next survivors that do not decide at their landing value
+        for lane in range(4):
+            if (
+                (lane == 0 and act0)
+                or (lane == 1 and act1)
+                or (lane == 2 and act2)
+                or (lane == 3 and act3)
+            ):
+                continue
+            while j < jhi:
+                s = base + sc[j]
+                v = sA[j] * q + sC[j]
+                j += 1
+                if v > s:
+                    if lane == 0:
+                        s0, v0, i0, act0 = s, v, K, True
+                    elif lane == 1:
+                        s1, v1, i1, act1 = s, v, K, True
+                    elif lane == 2:
+                        s2, v2, i2, act2 = s, v, K, True
+                    else:
+                        s3, v3, i3, act3 = s, v, K, True
+                    break
+                if v == s:
+                    cyc_s[ncyc] = s
+                    cyc_len[ncyc] = K
+                    ncyc += 1
+        if not (act0 or act1 or act2 or act3):
+            return ncyc, nhard
+        # idle lanes (only at the end of the block) sit on a value that stops the loop at once
+        if not act0:
+            s0, v0, i0 = 0, 0, 0
+        if not act1:
+            s1, v1, i1 = 0, 0, 0
+        if not act2:
+            s2, v2, i2 = 0, 0, 0
+        if not act3:
+            s3, v3, i3 = 0, 0, 0
+        while v0 <= vm and v1 <= vm and v2 <= vm and v3 <= vm:
+            v0 = _up2(v0, a0, b0, a1, b1)
+            v1 = _up2(v1, a0, b0, a1, b1)
+            v2 = _up2(v2, a0, b0, a1, b1)
+            v3 = _up2(v3, a0, b0, a1, b1)
+            i0 += 1
+            i1 += 1
+            i2 += 1
+            i3 += 1
+            if v0 <= s0 or v1 <= s1 or v2 <= s2 or v3 <= s3:
+                break
+            if i0 >= cap or i1 >= cap or i2 >= cap or i3 >= cap:
+                break
+        for lane in range(4):
+            if lane == 0:
+                if not act0 or (v0 > s0 and v0 <= vm and i0 < cap):
+                    continue
+                s, v, i = s0, v0, i0
+                act0 = False
+            elif lane == 1:
+                if not act1 or (v1 > s1 and v1 <= vm and i1 < cap):
+                    continue
+                s, v, i = s1, v1, i1
+                act1 = False
+            elif lane == 2:
+                if not act2 or (v2 > s2 and v2 <= vm and i2 < cap):
+                    continue
+                s, v, i = s2, v2, i2
+                act2 = False
+            else:
+                if not act3 or (v3 > s3 and v3 <= vm and i3 < cap):
+                    continue
+                s, v, i = s3, v3, i3
+                act3 = False
+            code, steps = _settle2(s, v, i, cap, tie, a0, b0, a1, b1, vm0, vm1, safe)
+            if code == CYCLE:
+                cyc_s[ncyc] = s
+                cyc_len[ncyc] = steps
+                ncyc += 1
+            elif code != DROP:
+                hard_s[nhard] = s
+                nhard += 1
+
+
 @njit(cache=True, nogil=True)
 def _fast_pass(
     lo,
@@ -187,6 +331,7 @@ def _fast_pass(
     sC,
     sqmax,
     qfast,
+    lanes,
     cyc_s,
     cyc_len,
     hard_s,
@@ -194,6 +339,9 @@ def _fast_pass(
     """Classify ``[lo, hi]`` until an output buffer fills.
 
     ``qfast``: every class may jump for blocks ``q <= qfast`` (-1: not so).
+    ``lanes``: such blocks go to :func:`_lanes2` (d = 2, coefficients
+    non-negative, ``K < cap``; the buffers then hold at least one block's
+    survivors).
 
     Returns ``(done, next_start, n_cycles, n_hard, n_jumped)``: when not done,
     every start below ``next_start`` is classified. Starts not listed as a
@@ -251,6 +399,37 @@ def _fast_pass(
             jlo = np.searchsorted(sc, first - base)
         if hi - base < dK - 1:
             jhi = np.searchsorted(sc, hi - base, side="right")
+        if lanes and q <= qfast:
+            if ncyc + (jhi - jlo) > cyc_cap or nhard + (jhi - jlo) > hard_cap:
+                # no room for a whole block: every start below this one is classified
+                nxt = base if base > first else first
+                return False, nxt, ncyc, nhard, njump
+            njump += jhi - jlo
+            ncyc, nhard = _lanes2(
+                q,
+                jlo,
+                jhi,
+                dK,
+                K,
+                sc,
+                sA,
+                sC,
+                cap,
+                tie,
+                a0,
+                b0,
+                a1,
+                b1,
+                vm0,
+                vm1,
+                safe,
+                cyc_s,
+                cyc_len,
+                ncyc,
+                hard_s,
+                nhard,
+            )
+            continue
         if d2 and q <= qfast:
             # every class jumps and every jump fits int64 (the common case)
             njump += jhi - jlo
@@ -983,6 +1162,21 @@ def classify_range(
     return out
 
 
+def _lanes_apply(km: KernelMap, K: int, cap: int, qfast: int) -> bool:
+    """Whether the blocks of a depth-``K`` sieve run in four-orbit lanes (:func:`_lanes2`).
+
+    d = 2, every multiplier at least 1 and every offset non-negative (values
+    stay positive), a jump shorter than the cap, and every class jumping.
+    """
+    return bool(
+        km.divisor == 2
+        and 0 < K < cap
+        and qfast >= 0
+        and int(km.multipliers.min()) >= 1
+        and int(km.offsets.min()) >= 0
+    )
+
+
 def _classify_segment(km, lo, hi, cap, tie, table, out: RangeOutcome) -> None:
     d = km.divisor
     if table is None:
@@ -992,9 +1186,11 @@ def _classify_segment(km, lo, hi, cap, tie, table, out: RangeOutcome) -> None:
     else:
         K, dK, qfast = table.depth, table.modulus, table.qfast
         sc, sjump, sA, sC, sqmax = table.arrays()
-    cyc_s = np.empty(_CYCLE_BUF, np.int64)
-    cyc_len = np.empty(_CYCLE_BUF, np.int64)
-    hard_s = np.empty(_HARD_BUF, np.int64)
+    lanes = _lanes_apply(km, K, cap, qfast)
+    room = max(_CYCLE_BUF, sc.shape[0]) if lanes else _CYCLE_BUF
+    cyc_s = np.empty(room, np.int64)
+    cyc_len = np.empty(room, np.int64)
+    hard_s = np.empty(max(_HARD_BUF, room), np.int64)
     pos = lo
     iterated = 0
     while True:
@@ -1017,6 +1213,7 @@ def _classify_segment(km, lo, hi, cap, tie, table, out: RangeOutcome) -> None:
             sC,
             sqmax,
             int(qfast),
+            lanes,
             cyc_s,
             cyc_len,
             hard_s,
@@ -1028,6 +1225,7 @@ def _classify_segment(km, lo, hi, cap, tie, table, out: RangeOutcome) -> None:
             out.cycles.append((int(cyc_s[k]), int(cyc_len[k])))
         hard_dropped = 0
         if nhard:
+            hard_s[:nhard].sort()  # the lanes finish out of order
             code, steps, esc = classify_starts(km, hard_s[:nhard], cap, tie)
             for k in range(nhard):
                 c = int(code[k])

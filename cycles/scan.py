@@ -268,14 +268,28 @@ class ChunkOutcome:
     version: str
 
 
+def _side_tools(m: Map, side: str, cap: int, hi: int):
+    """The kernel form of the side's map and the sieve tables worth building for starts up to ``hi``.
+
+    Below ``d^(K/2)`` (``K`` the deepest safe sieve depth) every start is
+    iterated one by one anyway, so small scans skip building the tables.
+    Skipping a table never changes a result, only the speed.
+    """
+    from .sieve import safe_depth
+
+    mm = m if side == "positive" else m.conjugate()
+    need = hi >= mm.divisor ** max(1, safe_depth(mm, cap) // 2)
+    return _side_tables(m, side, cap, need)
+
+
 @functools.lru_cache(maxsize=16)
-def _side_tools(m: Map, side: str, cap: int):
+def _side_tables(m: Map, side: str, cap: int, need: bool):
     from .kernels import KernelMap
     from .sieve import sieve_levels
 
     mm = m if side == "positive" else m.conjugate()
     km = KernelMap.from_map(mm)
-    levels = sieve_levels(mm, cap) if km is not None else ()
+    levels = sieve_levels(mm, cap) if km is not None and need else ()
     return km, levels
 
 
@@ -318,7 +332,7 @@ def run_chunk(task: ChunkTask) -> ChunkOutcome:
     """
     t0 = time.perf_counter()
     m = Map(task.divisor, [tuple(b) for b in task.branches])
-    km, table = _side_tools(m, task.side, task.cap)
+    km, table = _side_tools(m, task.side, task.cap, task.hi)
     if km is None:
         drops, other, cyc, opens, esc, sieved = _python_outcomes(
             m, task.side, task.lo, task.hi, task.cap
@@ -635,13 +649,13 @@ def _open_store(store, m: Map) -> tuple[ScanStore, bool]:
     raise InputError(f"store must be a path, a ScanStore, None (default) or False, got {store!r}")
 
 
-def _prepare_parent(m: Map, sides, cap: int) -> Callable[[], None]:
+def _prepare_parent(m: Map, sides, cap: int, to: int) -> Callable[[], None]:
     def prepare() -> None:
         from .kernels import warm_up
 
         warm_up(hard=False)
         for s in sides:
-            _side_tools(m, s, cap)
+            _side_tools(m, s, cap, to)
 
     return prepare
 
@@ -774,7 +788,7 @@ def scan(
     from .executors import make_executor
 
     ex = make_executor(
-        executor, workers=workers, scheduler=scheduler, prepare=_prepare_parent(m, sides, cap)
+        executor, workers=workers, scheduler=scheduler, prepare=_prepare_parent(m, sides, cap, to)
     )
     try:
         led, opened = _open_store(store, m)

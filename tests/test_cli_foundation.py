@@ -27,6 +27,25 @@ def test_python_dash_m_cli_and_console_script():
     assert res.returncode == 0 and "{1, 2}" in res.stdout
 
 
+def test_console_entry_flushes_everything_before_its_quick_exit(tmp_path):
+    # cli.app.run ends the process with os._exit after main(): piped output
+    # must arrive whole, the exit status must be main's, and the store committed.
+    store = tmp_path / "s.sqlite"
+    out = run_cli("orbit", "3x+1", "27", "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)  # the whole document arrived
+    assert doc["values"][0] == 27 and doc["values"][-1] in (1, 2)
+    assert doc["undivided_total_steps"] == 111  # OEIS A006577: 27 takes 111 steps
+    assert doc["undivided_peak"] == 9232  # OEIS A025586: the peak of 27 is 9232
+    bad = run_cli("orbit", "3x+1", "0x")
+    assert bad.returncode == 2 and bad.stderr.startswith("error: ") and not bad.stdout
+    first = run_cli("scan", "3x+1", "--to", "3000", "--json", "--store", str(store))
+    assert first.returncode == 0, first.stderr
+    again = run_cli("scan", "3x+1", "--to", "3000", "--json", "--store", str(store))
+    doc = json.loads(again.stdout)
+    assert doc["chunks"]["reused"] == 1 and doc["minima"]["positive"] == [1]
+
+
 def test_solve_run_length_and_rational_json():
     out = run_cli("solve", "3x+1", "1^3", "0^2", "--json")
     doc = json.loads(out.stdout)
