@@ -72,9 +72,14 @@ References
 
 from __future__ import annotations
 
+import contextlib
 import functools
+import hashlib
+import os
+import tempfile
 from dataclasses import dataclass
 from fractions import Fraction
+from pathlib import Path
 
 import numpy as np
 from numba import njit
@@ -289,6 +294,13 @@ def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
     negative side. The depth never exceeds ``limit``; pass the step cap (or
     the cycle-length bound) so that a proved drop is a drop within the cap.
 
+    Tables of depth 16 and more are kept in the user cache directory
+    (``$CYCLEWRIGHT_CACHE_DIR`` overrides; ``CYCLEWRIGHT_NO_CACHE=1`` turns
+    it off), keyed on the map's canonical hash, the depth limit and a hash of
+    this module's source, so a changed construction never reads an old
+    table. A cached file that does not read back whole and consistent is
+    rebuilt.
+
     Examples
     --------
     >>> import maps
@@ -299,6 +311,19 @@ def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
     K = safe_depth(m, min(limit, MAX_DEPTH))
     if K <= 0:
         return _empty(m.key)
+    cache = _cache_file(m, K) if K >= _CACHE_MIN_DEPTH else None
+    if cache is not None:
+        table = _cache_read(cache, m, K)
+        if table is not None:
+            return table
+        table = _build(m, K)
+        _cache_write(cache, table)
+        return table
+    return _build(m, K)
+
+
+def _build(m: Map, K: int) -> SieveTable:
+    """Walk the classes (:func:`_walk`): the table of the largest depth ``<= K`` with few enough survivors."""
     d = m.divisor
     ma = np.array(m.multipliers, dtype=np.int64)
     mb = np.array(m.offsets, dtype=np.int64)
@@ -319,6 +344,78 @@ def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
     _walk(d, ma, mb, K, d**K, True, oc, oj, oA, oC, oq)
     order = np.argsort(oc, kind="stable")
     return SieveTable(m.key, K, d**K, oc[order], oj[order], oA[order], oC[order], oq[order])
+
+
+# --------------------------------------------------------------------------- the table cache
+_CACHE_MIN_DEPTH = 16  # shallower tables take milliseconds to build
+_FIELDS = ("classes", "jump", "A", "C", "qmax")
+
+
+@functools.lru_cache(maxsize=1)
+def _source_hash() -> str:
+    """Hash of this module's source and the table limits: a changed construction gets new files."""
+    h = hashlib.sha256(Path(__file__).read_bytes())
+    h.update(f"{MAX_DEPTH} {MAX_MODULUS} {MAX_SURVIVORS}".encode())
+    return h.hexdigest()[:16]
+
+
+def _cache_file(m: Map, K: int) -> Path | None:
+    if os.environ.get("CYCLEWRIGHT_NO_CACHE"):
+        return None
+    env = os.environ.get("CYCLEWRIGHT_CACHE_DIR")
+    try:
+        if env:
+            root = Path(env)
+        else:
+            import platformdirs
+
+            root = Path(platformdirs.user_cache_dir("cyclewright"))
+    except Exception:  # pragma: no cover - no usable cache location: build every time
+        return None
+    return root / "sieve" / f"{m.key[:32]}-K{K}-{_source_hash()}.npz"
+
+
+def _cache_read(path: Path, m: Map, K: int) -> SieveTable | None:
+    """The cached table, or None when the file is missing, damaged or not this map's."""
+    try:
+        with np.load(path, allow_pickle=False) as z:  # zip CRCs catch damaged bytes
+            meta = z["meta"]
+            arrays = [z[f] for f in _FIELDS]
+        key, depth, modulus = str(meta[0]), int(meta[1]), int(meta[2])
+        n = arrays[0].shape[0]
+        ok = (
+            key == m.key
+            and modulus == m.divisor**depth
+            and 0 < depth <= K
+            and all(a.ndim == 1 and a.shape[0] == n for a in arrays)
+            and arrays[1].dtype == np.bool_
+            and all(a.dtype == np.int64 for i, a in enumerate(arrays) if i != 1)
+            and bool(np.all(arrays[0][1:] > arrays[0][:-1]))
+            and (n == 0 or (int(arrays[0][0]) >= 0 and int(arrays[0][-1]) < modulus))
+        )
+    except Exception:
+        return None
+    if not ok:
+        return None
+    return SieveTable(m.key, depth, modulus, *arrays)
+
+
+def _cache_write(path: Path, t: SieveTable) -> None:
+    """Write atomically (a temporary file renamed into place); failures only cost speed."""
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(dir=path.parent, suffix=".tmp")
+        try:
+            with os.fdopen(fd, "wb") as f:
+                meta = np.array([t.map_key, str(t.depth), str(t.modulus)])
+                np.savez(f, meta=meta, **dict(zip(_FIELDS, t.arrays())))
+            os.replace(tmp, path)
+        except BaseException:
+            with contextlib.suppress(OSError):
+                os.unlink(tmp)
+            raise
+    except OSError:
+        pass
 
 
 def sieve_levels(m: Map, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:

@@ -14,6 +14,7 @@ def _isolated_dirs(tmp_path, monkeypatch):
     # No test may read the developer's own maps or write into their data dir.
     monkeypatch.setenv("CYCLEWRIGHT_CONFIG_DIR", str(tmp_path / "config"))
     monkeypatch.setenv("CYCLEWRIGHT_DATA_DIR", str(tmp_path / "data"))
+    monkeypatch.setenv("CYCLEWRIGHT_CACHE_DIR", str(tmp_path / "cache"))
     monkeypatch.setenv("MPLBACKEND", "Agg")
     import maps.registry
 
