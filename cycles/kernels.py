@@ -169,7 +169,7 @@ def _contg(s, v, i, cap, tie, d, ma, mb, vmax, safe):
 
 @njit(cache=True, nogil=True, inline="always")
 def _up2(v, a0, b0, a1, b1):
-    """One step of a d = 2 map with non-negative coefficients (a select, no branch)."""
+    """One step of a d = 2 map (the branch chosen by a select, not a jump)."""
     o = v & 1
     return ((a1 if o else a0) * v + (b1 if o else b0)) >> 1
 
@@ -209,8 +209,8 @@ def _lanes2(
 ):
     """Survivors ``jlo <= j < jhi`` of block ``q``, four orbits at a time.
 
-    For d = 2 maps whose coefficients are all non-negative (``a_r >= 1``,
-    ``b_r >= 0``), every value of a positive orbit is positive, so the only
+    For d = 2 maps with ``a_r >= 1`` and ``a_r + b_r >= 1`` (3x+1, 3x-1,
+    5x+1, ...), every value of a positive orbit is positive, so the only
     events are ``v < s`` (drop) and ``v = s`` (return); ``v = -s`` cannot
     occur. One orbit's steps form a chain of dependent multiplications; four
     independent orbits advanced together keep the processor's units busy. A
@@ -339,9 +339,8 @@ def _fast_pass(
     """Classify ``[lo, hi]`` until an output buffer fills.
 
     ``qfast``: every class may jump for blocks ``q <= qfast`` (-1: not so).
-    ``lanes``: such blocks go to :func:`_lanes2` (d = 2, coefficients
-    non-negative, ``K < cap``; the buffers then hold at least one block's
-    survivors).
+    ``lanes``: such blocks go to :func:`_lanes2` (see :func:`_lanes_apply`;
+    the buffers then hold at least one block's survivors).
 
     Returns ``(done, next_start, n_cycles, n_hard, n_jumped)``: when not done,
     every start below ``next_start`` is classified. Starts not listed as a
@@ -1165,15 +1164,16 @@ def classify_range(
 def _lanes_apply(km: KernelMap, K: int, cap: int, qfast: int) -> bool:
     """Whether the blocks of a depth-``K`` sieve run in four-orbit lanes (:func:`_lanes2`).
 
-    d = 2, every multiplier at least 1 and every offset non-negative (values
-    stay positive), a jump shorter than the cap, and every class jumping.
+    d = 2, every multiplier ``a_r >= 1`` and ``a_r + b_r >= 1`` (then
+    ``a_r v + b_r >= a_r + b_r >= 1`` for every ``v >= 1``: values stay
+    positive), a jump shorter than the cap, and every class jumping.
     """
     return bool(
         km.divisor == 2
         and 0 < K < cap
         and qfast >= 0
         and int(km.multipliers.min()) >= 1
-        and int(km.offsets.min()) >= 0
+        and int((km.multipliers + km.offsets).min()) >= 1
     )
 
 

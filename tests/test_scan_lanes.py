@@ -1,6 +1,7 @@
 """The four-orbit lanes of the fast pass equal the plain exact reference.
 
-For d = 2 maps with non-negative coefficients the survivors of a sieve block
+For d = 2 maps with a_r >= 1 and a_r + b_r >= 1 (values stay positive) the
+survivors of a sieve block
 are followed four at a time (``cycles.kernels._lanes2``). The lanes finish
 out of order, stop at the cap or before the int64 ceiling and hand over to
 the one-orbit path; these tests aim at each of those exits and compare with
@@ -19,9 +20,9 @@ from cycles.kernels import KernelMap, _lanes_apply, classify_range
 from cycles.sieve import sieve_levels
 from maps import Map
 
-# d = 2 maps whose coefficients are all non-negative on the side scanned:
-# 3x+k positive sides, the conjugate of 3x-1 (negative side of 3x-1 is 3x+1),
-# 5x+1 and 7x+1 (orbits climb past 2^63), and an even branch other than n/2.
+# d = 2 maps with a_r >= 1 and a_r + b_r >= 1 on the side scanned: 3x+k,
+# 3x-1 (also the negative side of 3x+1), 5x+1 and 7x+1 (orbits climb past
+# 2^63), an even branch other than n/2, and a negative offset.
 LANE_MAPS = [
     maps.get("3x+1"),
     maps.get("3x+5"),
@@ -30,6 +31,9 @@ LANE_MAPS = [
     maps.get("7x+1"),
     Map(2, [(3, 0), (1, 1)]),  # n even -> 3n/2, n odd -> (n+1)/2
     Map(2, [(1, 2), (5, 3)]),
+    maps.get("3x-1"),
+    maps.get("3x+1").conjugate(),
+    Map(2, [(1, 0), (7, -5)]),
 ]
 
 
@@ -50,7 +54,7 @@ def _compare(m: Map, lo: int, hi: int, cap: int, depth: int) -> None:
 
 @settings(max_examples=40, deadline=None)
 @given(
-    st.sampled_from(LANE_MAPS[:3] + LANE_MAPS[5:]),
+    st.sampled_from(LANE_MAPS[:3] + LANE_MAPS[5:]),  # 5x+1, 7x+1: the next test
     st.integers(2**12, 2**44),
     st.integers(0, 300),
     st.sampled_from([9, 10, 12, 20, 1000]),
@@ -94,10 +98,13 @@ def test_cycles_found_in_lanes(name, expected):
 
 
 def test_lanes_only_where_they_apply():
-    # negative coefficients (3x-1 positive side) or d = 3: the one-orbit path
-    for m in (maps.get("3x-1"), maps.get("5x+1").conjugate()):
+    # a negative multiplier, or a_r + b_r < 1 (values may turn negative): one orbit at a time
+    for m in (maps.get("-3x+1"), Map(2, [(1, 0), (3, -5)])):
         t = sieve_levels(m, 8)[-1]
-        assert not _lanes_apply(KernelMap.from_map(m), t.depth, 1000, t.qfast)
+        assert not _lanes_apply(KernelMap.from_map(m), t.depth, 1000, max(t.qfast, 10))
+    for m in LANE_MAPS:
+        t = sieve_levels(m, 8)[-1]
+        assert _lanes_apply(KernelMap.from_map(m), t.depth, 1000, t.qfast)
     t = sieve_levels(maps.get("3x+1"), 8)[-1]
     km = KernelMap.from_map(maps.get("3x+1"))
     assert not _lanes_apply(km, t.depth, t.depth, t.qfast)  # no room below the cap
