@@ -11,6 +11,7 @@ import atexit
 import importlib
 import os
 import pkgutil
+import re
 import sys
 
 import click
@@ -64,8 +65,39 @@ class _LazyGroup(click.Group):
                 return None
             raise
         for cmd in getattr(mod, "COMMANDS", ()):
+            _accept_leading_minus(cmd)
             self.add_command(cmd)
         return self.commands.get(name)
+
+
+_NEGATIVE = re.compile(r"-\d")
+
+
+def _accept_leading_minus(cmd: click.Command) -> None:
+    """Let arguments start with ``-`` and a digit (the map ``-3x+1``, the start ``-17``).
+
+    click reads such a token as an option; with ``ignore_unknown_options`` it
+    keeps it as an argument instead. Any other unknown option is still
+    refused, before parsing, with click's own one-line message.
+    """
+    if getattr(cmd, "_minus_ok", False):
+        return
+    cmd.ignore_unknown_options = True
+    original = cmd.parse_args
+
+    def parse_args(ctx: click.Context, args: list[str]) -> list[str]:
+        known = {o for p in cmd.get_params(ctx) for o in (*p.opts, *p.secondary_opts)}
+        for token in args:
+            if token == "--":
+                break
+            if token.startswith("-") and token != "-" and not _NEGATIVE.match(token):
+                name = token.split("=", 1)[0]
+                if name not in known:
+                    raise click.NoSuchOption(name, ctx=ctx)
+        return original(ctx, args)
+
+    cmd.parse_args = parse_args
+    cmd._minus_ok = True
 
 
 @click.group(

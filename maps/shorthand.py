@@ -82,7 +82,7 @@ def parse_shorthand(text: str, *, undivided: bool = False) -> Map:
 
         raise MapError(
             f"{norm}: a + b = {a + b} is odd, so ({a}n{'+' if b >= 0 else '-'}{abs(b)})/2 is not an "
-            f"integer for odd n; use an odd offset, e.g. {fmt(lo)} or {fmt(hi)}"
+            f"integer for odd n; use an {'odd' if a % 2 else 'even'} offset, e.g. {fmt(lo)} or {fmt(hi)}"
         )
     if undivided:
         return Map(

@@ -46,6 +46,19 @@ def test_console_entry_flushes_everything_before_its_quick_exit(tmp_path):
     assert doc["chunks"]["reused"] == 1 and doc["minima"]["positive"] == [1]
 
 
+def test_arguments_may_start_with_minus_and_a_digit():
+    # the map -3x+1 and negative starts are arguments, not options
+    out = run_cli("solve", "-3x+1", "10", "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    # -3x+1 on the itinerary 10: T_w(n) = (-3n + 1)/4, D = 4 + 3 = 7, fixed point 1/7
+    assert doc["denominator"] == 7 and doc["minimum"] == "1/7"
+    orbit = run_cli("orbit", "3x+1", "-17", "--json")
+    assert json.loads(orbit.stdout)["cycle_minimum"] == -17  # Lagarias 1985: the cycle through -17
+    text = run_cli("solve", "3x-11", "1101")
+    assert "(27 n - 253) / 2^4" in text.stdout  # OEIS A226623 example: the 3x-11 cycle through 19
+
+
 def test_solve_run_length_and_rational_json():
     out = run_cli("solve", "3x+1", "1^3", "0^2", "--json")
     doc = json.loads(out.stdout)
@@ -89,6 +102,9 @@ def test_maps_listing_and_show():
         (["maps", "show", "0x+2"], "must not be 0"),
         (["solve"], "Missing argument"),
         (["frobnicate"], "No such command"),
+        (["solve", "4x+1", "10"], "use an even offset"),
+        (["solve", "3x+1", "10", "--jsno"], "No such option '--jsno'"),
+        (["scan", "3x+1", "--to", "50", "-q"], "No such option '-q'"),
     ],
 )
 def test_bad_input_one_line_exit_2(args, fragment):

@@ -35,7 +35,10 @@ def solve_cmd(map_spec, itinerary, map_files, as_json) -> None:
     con.print(
         f"[bold]{m.label}[/bold], itinerary {info['itinerary']} (length {c.length}, content {list(c.content)})"
     )
-    con.print(f"composite: T_w(n) = ({short(c.A)} n + {short(c.B)}) / {m.divisor}^{c.length}")
+    sign = "-" if c.B < 0 else "+"
+    con.print(
+        f"composite: T_w(n) = ({short(c.A)} n {sign} {short(abs(c.B))}) / {m.divisor}^{c.length}"
+    )
     con.print(f"denominator D = d^k - A = {short(c.denominator)}")
     if not c.has_fixed_point:
         con.print(c.note)
