@@ -76,14 +76,24 @@ __all__ = [
     "FamilyCensus",
     "parse_family",
     "NOMINAL_RATE",
+    "NOMINAL_RATE_EXPANDING",
     "MAX_SCAN",
     "itinerary_work",
 ]
 
-#: Starts per second assumed for time estimates before a scan is refused (a
-#: conservative figure for one core of this class of machine; see
-#: benchmarks/bench_scan.py for measured rates). Used only to phrase refusals.
-NOMINAL_RATE = 2e7
+#: Starts per second assumed for time estimates before a scan is refused, for
+#: maps that contract on average (most starts are sieved or drop within a few
+#: steps) and for the others. Round figures below the rates benchmarks/bench_scan.py
+#: measures on a 2-core machine (about 1.4e9 for 3x+1, 9e5 for 5x+1). Used only
+#: to phrase refusals.
+NOMINAL_RATE = 1e9
+NOMINAL_RATE_EXPANDING = 5e5
+
+
+def _nominal_rate(m) -> float:
+    return NOMINAL_RATE if m.drift_ratio() < 1 else NOMINAL_RATE_EXPANDING
+
+
 #: Largest scan range a census accepts by default (``max_scan`` overrides).
 MAX_SCAN = 10**12
 #: Largest estimated work (half-words joined) of the itinerary method accepted by default.
@@ -353,10 +363,11 @@ def census(
             bound = int(lb.integer or 0)
             scan_to = max(bound, crossing)
             if scan_to > max_scan:
-                est = scan_to / NOMINAL_RATE
+                rate = _nominal_rate(m)
+                est = scan_to / rate
                 raise InputError(
                     f"{m.label}: a census up to length {K} needs a scan of 1..{scan_to} on the {s} side "
-                    f"(about {_human_seconds(est)} at {NOMINAL_RATE:.0e} starts/s); this is beyond the "
+                    f"(about {_human_seconds(est)} at {rate:.0e} starts/s); this is beyond the "
                     f"limit of {max_scan} starts (raise max_scan / --max-scan to go ahead)"
                 )
             plans[s] = SidePlan(
