@@ -39,6 +39,7 @@ from pathlib import Path
 from maps import Map, MapError
 
 from .errors import InputError
+from .files import atomic_write
 
 __all__ = [
     "FORMAT",
@@ -109,11 +110,9 @@ def write_certificate(c, path: str | os.PathLike, *, overwrite: bool = False) ->
     p = Path(path)
     if p.exists() and not overwrite:
         raise InputError(f"{p} exists; refusing to overwrite a certificate (choose another name)")
-    doc = certificate_of(c)
-    tmp = p.with_name(p.name + ".tmp")
+    text = json.dumps(certificate_of(c), indent=1) + "\n"
     try:
-        tmp.write_text(json.dumps(doc, indent=1) + "\n")
-        os.replace(tmp, p)
+        atomic_write(p, lambda tmp: Path(tmp).write_text(text))
     except OSError as exc:
         raise InputError(f"{p}: cannot write the certificate ({exc.strerror or exc})") from None
     return p

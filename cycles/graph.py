@@ -44,7 +44,6 @@ from __future__ import annotations
 
 import math
 import os
-import tempfile
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from fractions import Fraction
@@ -55,6 +54,7 @@ import networkx as nx
 from maps import Map
 
 from .errors import InputError
+from .files import atomic_write
 from .itinerary import content as _content
 from .itinerary import format_itinerary, primitive_root
 from .labels import EXACT
@@ -437,26 +437,12 @@ def _dot_value(v) -> str:
 
 
 def _atomic_write(path: str | os.PathLike, writer: Callable[[str], object]) -> Path:
-    """Write through a temporary file in the same directory, then rename.
-
-    A failure leaves any existing file at ``path`` untouched.
-    """
+    """:func:`cycles.files.atomic_write`, refusing a directory that does not exist with one line."""
     target = Path(path)
     directory = target.parent if str(target.parent) else Path(".")
     if not directory.is_dir():
         raise InputError(f"cannot write {target}: directory {directory} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.suffix, dir=directory)
-    os.close(fd)
-    try:
-        writer(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-    return target
+    return atomic_write(target, writer)
 
 
 def _check_int(value, what: str) -> int:

@@ -72,11 +72,9 @@ References
 
 from __future__ import annotations
 
-import contextlib
 import functools
 import hashlib
 import os
-import tempfile
 from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
@@ -85,6 +83,8 @@ import numpy as np
 from numba import njit
 
 from maps import Map
+
+from .files import atomic_write, cache_dir
 
 __all__ = [
     "SieveTable",
@@ -362,14 +362,8 @@ def _source_hash() -> str:
 def _cache_file(m: Map, K: int) -> Path | None:
     if os.environ.get("CYCLEWRIGHT_NO_CACHE"):
         return None
-    env = os.environ.get("CYCLEWRIGHT_CACHE_DIR")
     try:
-        if env:
-            root = Path(env)
-        else:
-            import platformdirs
-
-            root = Path(platformdirs.user_cache_dir("cyclewright"))
+        root = cache_dir()
     except Exception:  # pragma: no cover - no usable cache location: build every time
         return None
     return root / "sieve" / f"{m.key[:32]}-K{K}-{_source_hash()}.npz"
@@ -401,19 +395,11 @@ def _cache_read(path: Path, m: Map, K: int) -> SieveTable | None:
 
 
 def _cache_write(path: Path, t: SieveTable) -> None:
-    """Write atomically (a temporary file renamed into place); failures only cost speed."""
+    """Write atomically; failures (no space, no permission) only cost speed."""
+    meta = np.array([t.map_key, str(t.depth), str(t.modulus)])
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=path.parent, suffix=".tmp")
-        try:
-            with os.fdopen(fd, "wb") as f:
-                meta = np.array([t.map_key, str(t.depth), str(t.modulus)])
-                np.savez(f, meta=meta, **dict(zip(_FIELDS, t.arrays())))
-            os.replace(tmp, path)
-        except BaseException:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp)
-            raise
+        atomic_write(path, lambda tmp: np.savez(tmp, meta=meta, **dict(zip(_FIELDS, t.arrays()))))
     except OSError:
         pass
 

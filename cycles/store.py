@@ -59,6 +59,7 @@ import numpy as np
 from maps import Map
 
 from .errors import StoreError
+from .files import data_dir
 
 __all__ = [
     "ScanStore",
@@ -153,16 +154,6 @@ def code_version() -> str:
 
 def _now() -> str:
     return _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
-
-
-def data_dir() -> Path:
-    """``$CYCLEWRIGHT_DATA_DIR`` if set, else the platform's user data directory for cyclewright."""
-    env = os.environ.get("CYCLEWRIGHT_DATA_DIR")
-    if env:
-        return Path(env).expanduser()
-    import platformdirs
-
-    return Path(platformdirs.user_data_dir("cyclewright"))
 
 
 def default_store_path(m: Map) -> Path:

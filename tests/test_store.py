@@ -178,6 +178,31 @@ def test_refuses_unwritable_paths(tmp_path):
         ro.chmod(0o755)
 
 
+def test_refuses_paths_the_os_denies_even_as_root(tmp_path, monkeypatch):
+    # The permission part above is skipped for root (root may write anywhere);
+    # here the operating system's answer is simulated, so the refusal and the
+    # untouched store are checked under every user.
+    path = _made_store(tmp_path)
+    before = _fingerprint(path)
+    ro = tmp_path / "ro"
+    ro.mkdir()
+    real_access = os.access
+    denied = {str(path), str(ro)}
+
+    def access(p, mode, *a, **kw):
+        if str(p) in denied and mode & os.W_OK:
+            return False
+        return real_access(p, mode, *a, **kw)
+
+    monkeypatch.setattr(os, "access", access)
+    with pytest.raises(StoreError, match="not writable"):
+        ScanStore(path, maps.get("3x+1"))
+    assert _fingerprint(path) == before
+    with pytest.raises(StoreError, match="not writable"):
+        ScanStore(ro / "s.sqlite", maps.get("3x+1"))
+    assert list(ro.iterdir()) == []
+
+
 def test_bad_range_creates_no_store(tmp_path):
     path = tmp_path / "never.sqlite"
     with pytest.raises(InputError):

@@ -13,7 +13,6 @@ from ..render import emit_json, short, stdout_console
 
 @click.command(
     "orbit",
-    context_settings={"ignore_unknown_options": True},
     epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 1e30",
 )
 @click.argument("map_spec", metavar="MAP")
