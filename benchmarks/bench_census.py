@@ -60,7 +60,7 @@ def method1(budget: float) -> list[dict]:
             cmd = [
                 sys.executable,
                 "-m",
-                "cli",
+                "cyclewright",
                 "census",
                 "3x+1",
                 "--max-length",
@@ -94,8 +94,8 @@ def method1(budget: float) -> list[dict]:
 
 
 def plain_enumeration(budget: float) -> dict:
-    import maps
-    from cycles.solver import solve
+    from cyclewright import maps
+    from cyclewright.cycles.solver import solve
 
     m = maps.get("3x+1")
     total = 0.0
@@ -122,8 +122,8 @@ def plain_enumeration(budget: float) -> dict:
 
 
 def pruned_itineraries(budget: float) -> dict:
-    import maps
-    from cycles.wordsearch import integral_cycles_by_itinerary
+    from cyclewright import maps
+    from cyclewright.cycles.wordsearch import integral_cycles_by_itinerary
 
     m = maps.get("3x+1")
     best = None

@@ -39,10 +39,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-import maps  # noqa: E402
-from cycles.counting import count, sweep  # noqa: E402
-from cycles.itinerary import least_rotation  # noqa: E402
-from cycles.solver import solve  # noqa: E402
+from cyclewright import maps  # noqa: E402
+from cyclewright.cycles.counting import count  # noqa: E402
+from cyclewright.cycles.itinerary import least_rotation  # noqa: E402
+from cyclewright.cycles.solver import solve  # noqa: E402
+from cyclewright.cycles.sweep import sweep  # noqa: E402
 
 
 # ----------------------------------------------------------------- plain code
@@ -119,8 +120,9 @@ def plain_enumerate(m, k: int, x: int):
 # ---------------------------------------------------------------- measuring
 def clear_caches() -> None:
     """Empty every memo table of the counting code, so that each run starts cold."""
-    import cycles.bounds as b
-    import cycles.necklaces as n
+    import cyclewright.cycles.bounds as b
+
+    import cyclewright.cycles.necklaces as n
 
     for fn in (
         b._log_form,

@@ -16,13 +16,13 @@ def _isolated_dirs(tmp_path, monkeypatch):
     monkeypatch.setenv("CYCLEWRIGHT_DATA_DIR", str(tmp_path / "data"))
     monkeypatch.setenv("CYCLEWRIGHT_CACHE_DIR", str(tmp_path / "cache"))
     monkeypatch.setenv("MPLBACKEND", "Agg")
-    import maps.registry
+    import cyclewright.maps.registry
 
-    monkeypatch.setattr(maps.registry, "_default", None)
+    monkeypatch.setattr(cyclewright.maps.registry, "_default", None)
     try:
-        import cli.options
+        import cyclewright.cli.options
 
-        cli.options._catalog.cache_clear()
+        cyclewright.cli.options._catalog.cache_clear()
     except ImportError:  # pragma: no cover
         pass
 
@@ -33,7 +33,7 @@ def run_cli(*args: str, env: dict | None = None, cwd=None) -> subprocess.Complet
     if env:
         full_env.update(env)
     return subprocess.run(
-        [sys.executable, "-m", "cli", *args],
+        [sys.executable, "-m", "cyclewright", *args],
         capture_output=True,
         text=True,
         env=full_env,

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from hypothesis import strategies as st
 
-from maps import Map
+from cyclewright.maps import Map
 
 
 @st.composite

@@ -9,19 +9,15 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import maps
-from cycles.bounds import (
-    bound_for_length,
-    candidates_from_linear_form,
-    largest_bound_up_to,
-    linear_form_bound,
-    log_form,
-    minimum_bound,
-)
-from cycles.errors import InputError
-from cycles.itinerary import content as word_content
-from cycles.orbit import orbit
-from cycles.solver import cycle_representative
+from cyclewright import maps
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.intervals import log_form
+from cyclewright.cycles.itinerary import content as word_content
+from cyclewright.cycles.largest_bound import bound_for_length, largest_bound_up_to
+from cyclewright.cycles.linear_forms import candidates_from_linear_form, linear_form_bound
+from cyclewright.cycles.minimum_bound import minimum_bound
+from cyclewright.cycles.orbit import orbit
+from cyclewright.cycles.solver import cycle_representative
 
 M31 = maps.get("3x+1")
 

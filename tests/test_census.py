@@ -6,10 +6,10 @@ import json
 
 import pytest
 
-import maps
-from cycles.census import census, census_family, parse_family
-from cycles.certificate import load_certificate, verify_certificate, write_certificate
-from cycles.errors import InputError
+from cyclewright import maps
+from cyclewright.cycles.census import census, census_family, parse_family
+from cyclewright.cycles.certificate import load_certificate, verify_certificate, write_certificate
+from cyclewright.cycles.errors import InputError
 
 
 def _pos(c):

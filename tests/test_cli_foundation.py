@@ -12,7 +12,7 @@ import pytest
 from click.testing import CliRunner
 from conftest import run_cli
 
-from cli.app import cli
+from cyclewright.cli.app import cli
 
 
 def test_python_dash_m_cli_and_console_script():

@@ -7,12 +7,12 @@ import json
 import pytest
 from conftest import run_cli
 
-import maps
-from cycles.census import census
-from cycles.compare import compare, critical_ratio, predictions
-from cycles.counting import count
-from cycles.excursions import excursions
-from cycles.floors import floor
+from cyclewright import maps
+from cyclewright.cycles.census import census
+from cyclewright.cycles.compare import compare, critical_ratio, predictions
+from cyclewright.cycles.counting import count
+from cyclewright.cycles.excursions import excursions
+from cyclewright.cycles.floors import floor
 
 
 @pytest.fixture(scope="module")

@@ -6,7 +6,7 @@ import json
 
 import pytest
 
-from cli.app import main
+from cyclewright.cli.app import main
 
 
 def run(capsys, *args):

@@ -10,12 +10,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import maps
-from cycles.counting import count, critical_lengths, enumeration_estimate, rho, sweep
-from cycles.errors import InputError
-from cycles.itinerary import composite, least_rotation
-from cycles.labels import EXACT, HEURISTIC, PROVED
-from cycles.solver import solve
+from cyclewright import maps
+from cyclewright.cycles.counting import count, enumeration_estimate
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.itinerary import composite, least_rotation
+from cyclewright.cycles.labels import EXACT, HEURISTIC, PROVED
+from cyclewright.cycles.solver import solve
+from cyclewright.cycles.sweep import critical_lengths, rho, sweep
 
 M31 = maps.get("3x+1")
 

@@ -11,20 +11,19 @@ import sympy
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import maps
-from cli.app import main
-from cycles.errors import InputError
-from cycles.floors import (
-    _is_one,
-    _log_sign,
+from cyclewright import maps
+from cyclewright.cli.app import main
+from cyclewright.cycles.continued_fractions import (
     continued_fraction_log,
     convergents,
-    floor,
     semiconvergents,
     simplest_fraction,
 )
-from cycles.graph import functional_graph
-from maps import Map
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.floors import floor
+from cyclewright.cycles.graph import functional_graph
+from cyclewright.cycles.intervals import _is_one, _log_sign
+from cyclewright.maps import Map
 
 # --------------------------------------------------------------------------
 # continued fractions

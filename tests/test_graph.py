@@ -9,11 +9,11 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import maps
-from cli.app import main
-from cycles.errors import InputError
-from cycles.graph import functional_graph
-from cycles.orbit import orbit
+from cyclewright import maps
+from cyclewright.cli.app import main
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.graph import functional_graph
+from cyclewright.cycles.orbit import orbit
 
 
 def _primitive_minima(g, sign=1):

@@ -7,9 +7,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from strategies import valid_maps
 
-import maps
-from cycles.graph import functional_graph
-from cycles.scan import scan
+from cyclewright import maps
+from cyclewright.cycles.graph import functional_graph
+from cyclewright.cycles.scan.run import scan
 
 
 @pytest.mark.parametrize(

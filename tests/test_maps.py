@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
-import maps
-from maps import Map, MapError, load_map_file, parse_shorthand
+from cyclewright import maps
+from cyclewright.maps import Map, MapError, load_map_file, parse_shorthand
 
 
 # --- validation: one clear message each (issue: every validation message) ---------------

@@ -11,9 +11,9 @@ from hypothesis import strategies as st
 from sympy.utilities.iterables import multiset_permutations
 from sympy.utilities.iterables import necklaces as sympy_necklaces
 
-from cycles.errors import InputError
-from cycles.itinerary import composite, is_primitive, least_rotation
-from cycles.necklaces import (
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.itinerary import composite, is_primitive, least_rotation
+from cyclewright.cycles.necklaces import (
     _search,
     lyndon_count,
     lyndon_words,

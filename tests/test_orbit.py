@@ -7,8 +7,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from strategies import valid_maps
 
-import maps
-from cycles.orbit import brent, orbit
+from cyclewright import maps
+from cyclewright.cycles.orbit import brent, orbit
 
 # OEIS A006577 (n = 1..20): undivided 3x+1 steps to reach 1 (n = 1..18 checked against the
 # OEIS data; 19 and 20 from memory)

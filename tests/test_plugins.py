@@ -10,7 +10,7 @@ import zipfile
 from conftest import run_cli
 
 PLUGIN_CODE = """
-from maps import Map
+from cyclewright.maps import Map
 
 def provide():
     return [Map(2, [(1, 0), (9, 7)], name="ninefold", description="a test plugin map"),
@@ -75,7 +75,7 @@ def test_builtin_catalog_registered_through_entry_point():
         for ep in metadata.entry_points(group="cyclewright.maps")
         if ep.dist and ep.dist.name == "cyclewright"
     ]
-    assert [ep.value for ep in eps] == ["maps.catalog:builtin_maps"]
+    assert [ep.value for ep in eps] == ["cyclewright.maps.catalog:builtin_maps"]
 
 
 def test_broken_plugin_is_reported_not_fatal(tmp_path):

@@ -6,19 +6,13 @@ import json
 
 import pytest
 
-import maps
-from cycles import scan
-from cycles.errors import InputError
-from cycles.reference import classify, cycle_minima
-from cycles.scan import (
-    ChunkTask,
-    FoundCycle,
-    default_chunk_size,
-    plan_chunks,
-    run_chunk,
-    verified_cycle,
-)
-from cycles.solver import solve
+from cyclewright import maps
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.integer_cycle import FoundCycle, verified_cycle
+from cyclewright.cycles.scan import scan
+from cyclewright.cycles.scan.chunks import ChunkTask, default_chunk_size, plan_chunks, run_chunk
+from cyclewright.cycles.scan.reference import classify, cycle_minima
+from cyclewright.cycles.solver import solve
 
 
 @pytest.fixture(autouse=True)
@@ -247,17 +241,22 @@ def test_huge_coefficients_use_the_exact_python_path():
     assert r.sieve_depth == {"positive": 0, "negative": 0}
 
 
-def test_cycles_scan_is_callable_after_a_submodule_import():
-    # importing cycles.scan (the module) first binds the package attribute to it;
-    # it must still work as the function
+def test_scan_module_and_function_are_both_reachable():
+    # the module cyclewright.cycles.scan keeps its classes whatever was imported
+    # first, and the notebook API's cw.scan is the function
     import subprocess
     import sys
 
     code = (
-        "import cycles.scan as mod, cycles, maps\n"
-        "from cycles import scan\n"
-        "r = scan(maps.get('3x+1'), 100, store=False, workers=1, side='negative')\n"
-        "assert cycles.scan(maps.get('3x+1'), 100, store=False, workers=1).minima == {'positive': (1,)}\n"
+        "import cyclewright.cycles.scan as mod\n"
+        "import cyclewright as cw\n"
+        "assert mod.ScanResult.__name__ == 'ScanResult' and callable(mod.scan)\n"
+        "r = cw.scan('3x+1', 100, store=False, workers=1, side='negative')\n"
+        "assert cw.scan(cw.get_map('3x+1'), 100, store=False, workers=1).minima == {'positive': (1,)}\n"
+        "import cyclewright.cycles.orbit, cyclewright.cycles.census, cyclewright.cycles.compare\n"
+        "import cyclewright.cycles.excursions\n"
+        "assert cyclewright.cycles.orbit.Orbit and cyclewright.cycles.census.Census\n"
+        "assert cyclewright.cycles.compare.Comparison and cyclewright.cycles.excursions.Excursions\n"
         "print(r.minima['negative'])\n"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=300)

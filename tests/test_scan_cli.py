@@ -11,18 +11,18 @@ import sys
 
 import pytest
 
-from cli.app import main
-from cli.commands.scan_cmd import _Progress, parse_bound
-from cli.errors import BadInput
+import cyclewright.cli.options
+from cyclewright.cli.app import main
+from cyclewright.cli.commands.scan_cmd import _Progress, parse_bound
+from cyclewright.cli.errors import BadInput
 
 
 @pytest.fixture(autouse=True)
 def _data_dir(tmp_path, monkeypatch):
     monkeypatch.setenv("CYCLEWRIGHT_DATA_DIR", str(tmp_path / "data"))
     monkeypatch.setenv("CYCLEWRIGHT_CONFIG_DIR", str(tmp_path / "config"))
-    import cli.options
 
-    cli.options._catalog.cache_clear()
+    cyclewright.cli.options._catalog.cache_clear()
 
 
 def run(capsys, *args):
@@ -121,9 +121,8 @@ def test_changed_map_file_under_existing_store(capsys, tmp_path):
     assert code == 0
     before = _digest(store)
     mapfile.write_text('[mine]\nshorthand = "3x+7"\n')
-    import cli.options
 
-    cli.options._catalog.cache_clear()
+    cyclewright.cli.options._catalog.cache_clear()
     code, _, err = run(capsys, "mine", "--maps", str(mapfile), "--to", "500", "--store", str(store))
     assert code == 2 and err.count("\n") == 1
     assert "map definition differs" in err and "3x+5" in err
@@ -152,7 +151,7 @@ def test_unreachable_scheduler_one_line(capsys):
 def test_exit_code_in_a_real_process(tmp_path):
     env = dict(os.environ)
     p = subprocess.run(
-        [sys.executable, "-m", "cli", "scan", "3x+1", "--from", "9", "--to", "3"],
+        [sys.executable, "-m", "cyclewright", "scan", "3x+1", "--from", "9", "--to", "3"],
         capture_output=True,
         text=True,
         env=env,
@@ -172,10 +171,10 @@ def test_parse_bound():
 
 
 def test_progress_printer_waits_a_second(monkeypatch, capsys):
-    from cycles.scan import ScanProgress
+    from cyclewright.cycles.scan.result import ScanProgress
 
     clock = [100.0]
-    monkeypatch.setattr("cli.commands.scan_cmd.time.monotonic", lambda: clock[0])
+    monkeypatch.setattr("cyclewright.cli.commands.scan_cmd.time.monotonic", lambda: clock[0])
     p = _Progress()
     p(ScanProgress("positive", 10, 100, 0, 0.5, 10))
     assert capsys.readouterr().err == ""

@@ -8,9 +8,9 @@ import time
 
 import pytest
 
-import maps
-from cycles import scan
-from cycles.errors import InputError
+from cyclewright import maps
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.scan import scan
 
 distributed = pytest.importorskip("distributed")
 
@@ -106,7 +106,7 @@ def test_refused_connection_is_a_clear_error():
 
 def test_silent_listener_times_out():
     # A socket that accepts TCP but never speaks the scheduler protocol.
-    from cycles.executors import DaskExecutor
+    from cyclewright.cycles.scan.executors import DaskExecutor
 
     srv = socket.socket()
     srv.bind(("127.0.0.1", 0))

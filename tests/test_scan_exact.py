@@ -13,19 +13,18 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import maps
-from cycles import reference
-from cycles.kernels import (
-    CYCLE,
-    DROP,
-    OPEN,
-    OTHER,
-    KernelMap,
-    classify_range,
-    classify_starts,
+from cyclewright import maps
+from cyclewright.cycles.scan import reference
+from cyclewright.cycles.scan.codes import CYCLE, DROP, OPEN, OTHER
+from cyclewright.cycles.scan.kernel import KernelMap, classify_range, classify_starts
+from cyclewright.cycles.scan.sieve import (
+    class_word,
+    jump_table,
+    safe_depth,
+    sieve_levels,
+    sieve_table,
 )
-from cycles.sieve import class_word, jump_table, safe_depth, sieve_levels, sieve_table
-from maps import Map
+from cyclewright.maps import Map
 
 _NAMES = {DROP: "drop", CYCLE: "cycle", OTHER: "other_cycle", OPEN: "open"}
 TOP = 2**63 - 1

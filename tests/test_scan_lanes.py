@@ -14,11 +14,11 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import maps
-from cycles import reference
-from cycles.kernels import KernelMap, _lanes_apply, classify_range
-from cycles.sieve import sieve_levels
-from maps import Map
+from cyclewright import maps
+from cyclewright.cycles.scan import reference
+from cyclewright.cycles.scan.kernel import KernelMap, _lanes_apply, classify_range
+from cyclewright.cycles.scan.sieve import sieve_levels
+from cyclewright.maps import Map
 
 # d = 2 maps with a_r >= 1 and a_r + b_r >= 1 on the side scanned: 3x+k,
 # 3x-1 (also the negative side of 3x+1), 5x+1 and 7x+1 (orbits climb past

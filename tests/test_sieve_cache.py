@@ -11,8 +11,8 @@ import os
 import numpy as np
 import pytest
 
-import maps
-from cycles import sieve
+from cyclewright import maps
+from cyclewright.cycles.scan import sieve
 
 
 def _fresh(m, limit):

@@ -9,9 +9,15 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from strategies import ax_b_maps, maps_and_words
 
-import maps
-from cycles.itinerary import ItineraryError, composite, least_rotation, parse_itinerary, rotations
-from cycles.solver import solve
+from cyclewright import maps
+from cyclewright.cycles.itinerary import (
+    ItineraryError,
+    composite,
+    least_rotation,
+    parse_itinerary,
+    rotations,
+)
+from cyclewright.cycles.solver import solve
 
 
 # --- invariants ------------------------------------------------------------------------

@@ -14,15 +14,10 @@ import time
 import numpy as np
 import pytest
 
-import maps
-from cycles import scan
-from cycles.errors import InputError, StoreError
-from cycles.store import (
-    SCHEMA_VERSION,
-    ScanStore,
-    data_dir,
-    default_store_path,
-)
+from cyclewright import maps
+from cyclewright.cycles.errors import InputError, StoreError
+from cyclewright.cycles.scan import scan
+from cyclewright.cycles.scan.store import SCHEMA_VERSION, ScanStore, data_dir, default_store_path
 
 
 @pytest.fixture(autouse=True)
@@ -232,7 +227,7 @@ def test_rerun_and_longer_range_reuse_chunks(tmp_path):
 
 def _cli(*args, **kw):
     return subprocess.Popen(
-        [sys.executable, "-m", "cli", "scan", *args],
+        [sys.executable, "-m", "cyclewright", "scan", *args],
         stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
         text=True,
@@ -291,14 +286,22 @@ def test_kill_9_midway_then_rerun_equals_uninterrupted(tmp_path):
         remaining = _done_chunks(store)
         assert 0 < remaining < total
         resumed = subprocess.run(
-            [sys.executable, "-m", "cli", "scan", *args, "--store", str(store)],
+            [sys.executable, "-m", "cyclewright", "scan", *args, "--store", str(store)],
             capture_output=True,
             text=True,
             timeout=600,
         )
         assert resumed.returncode == 0, resumed.stderr
         whole = subprocess.run(
-            [sys.executable, "-m", "cli", "scan", *args, "--store", str(tmp_path / "whole.sqlite")],
+            [
+                sys.executable,
+                "-m",
+                "cyclewright",
+                "scan",
+                *args,
+                "--store",
+                str(tmp_path / "whole.sqlite"),
+            ],
             capture_output=True,
             text=True,
             timeout=600,

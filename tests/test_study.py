@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 from conftest import run_cli
 
-from cli.studyfile import StudyError, load_study, parse_study
+from cyclewright.cli.studyfile import StudyError, load_study, parse_study
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -67,9 +67,9 @@ to = 60
 
 def test_scenarios_validate():
     for name in ("demo.toml", "family.toml"):
-        st = load_study(ROOT / "scenarios" / name)
+        st = load_study(ROOT / "cyclewright" / "scenarios" / name)
         assert st.title and st.analyses
-    demo = load_study(ROOT / "scenarios" / "demo.toml")
+    demo = load_study(ROOT / "cyclewright" / "scenarios" / "demo.toml")
     names = {m.label for m in demo.maps}
     assert {"3x+1", "3x-1", "5x+1", "7x+1", "181x+1", "3x+5", "mod3-4x"} <= names
     assert {a.kind for a in demo.analyses} >= {"sweep", "census", "scan", "floor", "compare"}

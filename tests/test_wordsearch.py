@@ -8,9 +8,9 @@ import pytest
 from hypothesis import given, settings
 from strategies import valid_maps
 
-import maps
-from cycles.solver import solve
-from cycles.wordsearch import DegenerateMap, integral_cycles_by_itinerary
+from cyclewright import maps
+from cyclewright.cycles.solver import solve
+from cyclewright.cycles.wordsearch import DegenerateMap, integral_cycles_by_itinerary
 
 
 def _brute(m, K):

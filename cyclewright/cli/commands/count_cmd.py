@@ -1,0 +1,192 @@
+"""``cyclewright count MAP --length K --odd X``: counting figures for one type."""
+
+from __future__ import annotations
+
+import re
+import sys
+
+import click
+
+from cyclewright.cycles.counting import DEFAULT_LIMIT, count
+from cyclewright.cycles.labels import HEURISTIC_CAUTION
+
+from ..errors import BadInput
+from ..options import json_option, maps_option, parse_int, resolve_map
+from ..render import emit_json, make_table, short, stderr_console, stdout_console
+
+__all__ = ["COMMANDS", "parse_count", "parse_content"]
+
+
+def parse_count(text: str, what: str) -> int:
+    """A non-negative integer option (``1000000``, ``10^6``, ``1e6``)."""
+    return parse_int(text, what, minimum=0)
+
+
+def parse_content(text: str) -> dict[int, int]:
+    """``"0:5,1:8"`` -> ``{0: 5, 1: 8}``."""
+    out: dict[int, int] = {}
+    for part in [p for p in re.split(r"[\s,]+", text.strip()) if p]:
+        m = re.fullmatch(r"(\d+):(-?\d+)", part)
+        if not m:
+            raise BadInput(
+                f"cannot read {part!r} in --content: use residue:count pairs, e.g. 0:5,1:8"
+            )
+        r, c = int(m.group(1)), int(m.group(2))
+        if r in out:
+            raise BadInput(f"residue {r} appears twice in --content")
+        out[r] = c
+    if not out:
+        raise BadInput("--content is empty: use residue:count pairs, e.g. 0:5,1:8")
+    return out
+
+
+def _progress_callback():
+    if not sys.stderr.isatty():
+        return None
+    con = stderr_console()
+
+    def cb(done: int, total: int) -> None:
+        con.print(f"enumerated {done:,} / {total:,} necklaces", end="\r")
+
+    return cb
+
+
+@click.command(
+    "count",
+    epilog=(
+        "\b\nExamples:\n"
+        "  cyclewright count 3x+1 --length 13 --odd 8\n"
+        "  cyclewright count 3x+5 -k 5 -x 3 --json\n"
+        "  cyclewright count 3x+1 -k 40 -x 25 --limit 0\n"
+        "  cyclewright count mod3-mixed --content 0:2,1:3,2:1\n"
+        "\b\nLabels: exact (closed formulas, enumeration), proved (a theorem's bound),\n"
+        "certified (interval arithmetic), heuristic (necklaces/|D|, never a proof)."
+    ),
+)
+@click.argument("map_spec", metavar="MAP")
+@click.option("--length", "-k", "length", type=int, default=None, help="Length k of the type.")
+@click.option("--odd", "-x", "odd", type=int, default=None, help="Odd steps x (two-branch maps).")
+@click.option(
+    "--content",
+    "content_text",
+    default=None,
+    help="Counts per residue, r:c,... (any divisor), e.g. 0:5,1:8.",
+)
+@click.option(
+    "--limit",
+    "limit_text",
+    default=str(DEFAULT_LIMIT),
+    show_default=True,
+    help="Enumerate the necklaces when there are at most this many (10^6, 1e6 forms accepted).",
+)
+@click.option(
+    "--show", "show", default=20, show_default=True, type=int, help="Integer cycles to list."
+)
+@maps_option
+@json_option
+def count_cmd(map_spec, length, odd, content_text, limit_text, show, map_files, as_json) -> None:
+    """Words, necklaces, denominator, proved bound, candidates and integer cycles of one type.
+
+    The type is (length k, odd steps x) for two-branch maps and a content
+    (how often each residue occurs) in general.
+    """
+    m = resolve_map(map_spec, map_files)
+    limit = parse_count(limit_text, "--limit")
+    content = parse_content(content_text) if content_text else None
+    if content is None and m.divisor == 2 and (length is None or odd is None):
+        raise BadInput("give --length K and --odd X (or --content r:c,...)")
+    if content is None and m.divisor != 2:
+        raise BadInput(
+            f"{m.label} has divisor {m.divisor}: give the type as --content r:c,... "
+            "(how often each residue occurs)"
+        )
+    tc = count(m, length, odd, content=content, limit=limit, progress=_progress_callback())
+    if as_json:
+        emit_json(tc.to_dict())
+        return
+    _print_human(tc, show)
+
+
+def _print_human(tc, show: int) -> None:
+    con = stdout_console()
+    m = tc.map
+    b = tc.min_bound
+    lab = tc.labels
+    con.print(
+        f"[bold]{m.label}[/bold], type {tc.type_text()}"
+        + (f" (content {list(tc.content)})" if m.divisor == 2 else "")
+        + ": "
+        f"D = {m.divisor}^{tc.length} - {short(tc.A, 30)} = {short(tc.denominator, 30)}, "
+        f"serves the {tc.side} side"
+    )
+    if not b.applies:
+        bound_text = f"does not apply: {b.reason}"
+    elif not b.possible:
+        bound_text = f"no cycle possible: {b.reason}"
+    else:
+        bound_text = f"|min| <= {short(b.integer)}; real bound in {b.interval}"
+    lf = tc.linear_form
+    rows = [
+        ["words", tc.words, lab["words"]],
+        ["necklaces", tc.necklaces, lab["necklaces"]],
+        ["primitive necklaces", tc.primitive_necklaces, lab["primitive_necklaces"]],
+        ["denominator D", tc.denominator, lab["denominator"]],
+        ["min bound", bound_text, lab["min_bound"]],
+        ["bound formula", b.formula, lab["min_bound"]],
+    ]
+    if tc.enumerated:
+        rows += [
+            ["smallest cycle-min numerator", tc.smallest_min_numerator, "exact"],
+            ["largest cycle-min numerator", tc.largest_min_numerator, "exact"],
+            ["candidates (multiples of |D|)", tc.candidates, "exact"],
+            ["integer cycles", len(tc.integer_cycles), "exact"],
+        ]
+        if tc.unrealized:
+            rows.append(["integral but not realized", tc.unrealized, "exact"])
+    else:
+        rows += [
+            ["candidates (from the bound)", tc.candidates, lab["candidates"]],
+            ["integer cycles", "not enumerated", "-"],
+        ]
+    rows += [
+        ["heuristic necklaces/|D|", _heur_text(tc), "heuristic"],
+        ["Λ = k ln d - ln A", str(tc.log_form), "certified"],
+        [
+            "|Λ| lower bound",
+            f"{lf.lower_text()} ({lf.source}{', from memory' if lf.from_memory else ''})"
+            if lf.applies
+            else f"not available: {lf.reason}",
+            "proved" if lf.applies else "-",
+        ],
+        [
+            "|min| bound from |Λ| bound",
+            tc.candidates_linear_forms if tc.candidates_linear_forms is not None else "-",
+            "proved" if tc.candidates_linear_forms is not None else "-",
+        ],
+    ]
+    con.print(make_table(None, ["figure", "value", "label"], rows))
+    con.print(tc.enumeration_note)
+    if tc.integer_cycles:
+        listed = tc.integer_cycles[: max(show, 0)]
+        con.print(
+            make_table(
+                f"Integer cycles ({len(tc.integer_cycles)}, exact)",
+                ["minimum", "itinerary from the minimum", "period", "primitive"],
+                [[c.minimum, c.itinerary, c.period, c.primitive] for c in listed],
+            )
+        )
+        if len(listed) < len(tc.integer_cycles):
+            con.print(f"... {len(tc.integer_cycles) - len(listed)} more (use --show or --json)")
+    if lf.applies:
+        con.print(f"linear form: {lf.form}; {lf.constants}")
+    con.print(HEURISTIC_CAUTION)
+
+
+def _heur_text(tc) -> str:
+    l10 = tc.heuristic_log10
+    if -6 < l10 < 9:
+        return f"{10**l10:.6g}"
+    return f"10^{l10:.4f}"
+
+
+COMMANDS = [count_cmd]

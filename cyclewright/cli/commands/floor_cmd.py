@@ -1,0 +1,144 @@
+"""``cyclewright floor MAP --verified-to N``: the least length a further cycle could have."""
+
+from __future__ import annotations
+
+import click
+
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.floors import floor
+
+from ..errors import BadInput
+from ..options import json_option, maps_option, parse_int, resolve_map
+from ..render import emit_json, make_table, short, stdout_console
+
+# The floor's work grows with the digits of N (continued fraction terms, precision).
+_MAX_FLOOR_DIGITS = 1000
+
+
+@click.command(
+    "floor",
+    epilog=(
+        "\b\nExamples:\n  cyclewright floor 3x+1 --verified-to 2^40\n"
+        "  cyclewright floor 3x+1 --verified-to 2^68 --side both --json\n"
+        "  cyclewright floor 5x+1 --verified-to 1e9 --next 10\n"
+        "\b\nMeaning: if no cycle on that side has its minimum (least |element|) at or\n"
+        "below N apart from the known ones, every further cycle has at least the\n"
+        "length shown (a proved bound, conditional on that verification)."
+    ),
+)
+@click.argument("map_spec", metavar="MAP")
+@click.option(
+    "--verified-to",
+    "verified_to",
+    required=True,
+    metavar="N",
+    help="Verified range: no unknown cycle has |minimum| <= N (2^68, 1e20 and 3*2^40 forms work).",
+)
+@click.option(
+    "--side",
+    type=click.Choice(["positive", "negative", "both"]),
+    default="positive",
+    show_default=True,
+)
+@click.option(
+    "--next",
+    "next_types",
+    default=5,
+    show_default=True,
+    type=int,
+    metavar="J",
+    help="How many further possible (length, odd steps) types to list.",
+)
+@maps_option
+@json_option
+def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> None:
+    """The least length (and odd steps) any further cycle of MAP could have.
+
+    From the proved bound on a cycle's minimum: the type (k, x) of a cycle
+    whose elements all exceed N satisfies a^x < 2^k <= (a + b/(N+1))^x (for
+    ax+b, b > 0; similar forms otherwise), so k/x lies in a thin interval
+    beside log2 a; the simplest fraction there, a convergent or
+    semiconvergent of log2 a, gives the least k and x (Eliahou 1993).
+    All decisions are exact (integers, or interval arithmetic with precision
+    raised until certain).
+    """
+    m = resolve_map(map_spec, map_files)
+    n = parse_int(verified_to, "--verified-to", minimum=0)
+    if len(str(n)) > _MAX_FLOOR_DIGITS:
+        raise BadInput(
+            f"--verified-to has {len(str(n))} digits; the floor accepts at most "
+            f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
+        )
+    if not 0 <= next_types <= 1000:
+        raise BadInput(f"--next must be between 0 and 1000, got {next_types}")
+    sides = ["positive", "negative"] if side == "both" else [side]
+    results = []
+    problems = []
+    for s in sides:
+        try:
+            results.append(floor(m, n, s, next_types=next_types))
+        except InputError as exc:
+            if len(sides) == 1:
+                raise
+            problems.append({"side": s, "applicable": False, "reason": str(exc)})
+    if not results:
+        raise BadInput(problems[0]["reason"])
+    if as_json:
+        emit_json(
+            {
+                "map": m.label,
+                "map_key": m.key,
+                "verified_to": n,
+                "floors": [r.to_dict() for r in results] + problems,
+            }
+        )
+        return
+    con = stdout_console()
+    for r in results:
+        _print_floor(con, r)
+    for p in problems:
+        con.print(f"[bold]{p['side']} side[/bold]: the bound does not apply: {p['reason']}")
+
+
+def _print_floor(con, r) -> None:
+    con.print(f"[bold]{r.map.label}, {r.side} side[/bold], verified to N = {r.verified_to}")
+    con.print(f"condition: {r.condition}")
+    if not r.possible:
+        con.print(f"result (proved): {r.statement}")
+        return
+    a = r.multiplier
+    rows = [
+        ["least length k", short(r.least_length), "proved"],
+        ["odd steps x", short(r.odd_steps), "proved"],
+        [f"k / {'x' if r.multiplying_branch == 1 else 'multiplying steps'}", str(r.ratio), "exact"],
+        [
+            f"from log2({a}) = [{_cf_text(r.continued_fraction)}]",
+            r.approximant.describe() if r.approximant else "-",
+            "exact",
+        ],
+        [
+            "interval for k/x",
+            f"{'[' if r.interval['lower_closed'] else '('}{r.interval['lower']}, "
+            f"{r.interval['upper']}{']' if r.interval['upper_closed'] else ')'}",
+            "exact",
+        ],
+        ["max precision", f"{r.precision_bits} bits", "-"],
+    ]
+    con.print(make_table(None, ["quantity", "value", "label"], rows))
+    if r.next_possible:
+        con.print("next possible types (proved; no other type has a length in between):")
+        con.print(
+            make_table(None, ["length k", "odd steps x"], [[k, x] for k, x in r.next_possible])
+        )
+    con.print(f"result (proved, given the condition): {r.statement}")
+
+
+def _cf_text(terms) -> str:
+    if not terms:
+        return ""
+    head, rest = terms[0], terms[1:]
+    shown = ", ".join(str(t) for t in rest[:24]) + (", ..." if len(rest) > 24 else "")
+    return f"{head}; {shown}" if rest else str(head)
+
+
+COMMANDS = [floor_cmd]

@@ -1,0 +1,180 @@
+"""``cyclewright graph MAP --to N``: the functional graph of a range of starts, its cycles and basins."""
+
+from __future__ import annotations
+
+import click
+
+from cyclewright.cycles.graph import (
+    DEFAULT_MAX_STEPS,
+    PLOT_NODE_LIMIT,
+    functional_graph,
+)
+
+from ..errors import BadInput
+from ..files import check_output
+from ..options import json_option, maps_option, parse_int, resolve_map
+from ..render import emit_json, make_table, short, stderr_console, stdout_console
+
+
+@click.command(
+    "graph",
+    epilog=(
+        "\b\nExamples:\n  cyclewright graph 3x+1 --to 1000 --side both\n"
+        "  cyclewright graph 3x+13 --to 400 --graphml g.graphml --plot g.png\n"
+        "  cyclewright graph 5x+1 --to 200 --ceiling 1e12 --json\n"
+        "\b\n'escaped' counts starts whose orbit passed the ceiling: an exact count,\n"
+        "not a proof that those orbits diverge."
+    ),
+)
+@click.argument("map_spec", metavar="MAP")
+@click.option("--to", "to", required=True, metavar="N", help="Largest start (absolute value).")
+@click.option(
+    "--from", "start", default="1", show_default=True, metavar="M", help="Smallest start (>= 1)."
+)
+@click.option(
+    "--side",
+    type=click.Choice(["positive", "negative", "both"]),
+    default="positive",
+    show_default=True,
+)
+@click.option(
+    "--max-steps",
+    default=str(DEFAULT_MAX_STEPS),
+    show_default=True,
+    metavar="S",
+    help="New values one walk may add before it stops (unresolved).",
+)
+@click.option(
+    "--ceiling",
+    default="1e15",
+    show_default=True,
+    metavar="C",
+    help="Stop an orbit once |value| exceeds C (escaped); 'none' for no ceiling.",
+)
+@click.option("--graphml", type=click.Path(dir_okay=False), help="Write the graph as GraphML.")
+@click.option("--gexf", type=click.Path(dir_okay=False), help="Write the graph as GEXF.")
+@click.option("--dot", type=click.Path(dir_okay=False), help="Write the graph as DOT (Graphviz).")
+@click.option(
+    "--plot",
+    type=click.Path(dir_okay=False),
+    help=f"Draw the graph (PNG/SVG/PDF by extension; at most {PLOT_NODE_LIMIT} nodes).",
+)
+@click.option("--force", is_flag=True, help="Replace output files that already exist.")
+@maps_option
+@json_option
+def graph_cmd(
+    map_spec,
+    to,
+    start,
+    side,
+    max_steps,
+    ceiling,
+    graphml,
+    gexf,
+    dot,
+    plot,
+    force,
+    map_files,
+    as_json,
+) -> None:
+    """The functional graph of MAP from every start in M..N: cycles and their basins.
+
+    Each orbit is followed exactly until it joins a value already seen,
+    closes a cycle, passes the ceiling or the step cap. Cycles are the
+    graph's attracting components, each checked exactly against the solver;
+    basins count the starts that fall into each.
+    """
+    m = resolve_map(map_spec, map_files)
+    n_to = parse_int(to, "--to", minimum=1)
+    n_from = parse_int(start, "--from", minimum=1)
+    steps = parse_int(max_steps, "--max-steps", minimum=1)
+    ceil = (
+        None
+        if str(ceiling).strip().lower() == "none"
+        else parse_int(ceiling, "--ceiling", minimum=1)
+    )
+    if n_to < n_from:
+        raise BadInput(f"empty range: --from {n_from} is above --to {n_to}")
+    if ceil is not None and ceil < n_to:
+        raise BadInput(f"--ceiling {ceil} is below --to {n_to}")
+    outputs = {
+        "graphml": check_output(graphml, "--graphml", force),
+        "gexf": check_output(gexf, "--gexf", force),
+        "dot": check_output(dot, "--dot", force),
+        "plot": check_output(plot, "--plot", force),
+    }
+    names = [p for p in outputs.values() if p is not None]
+    if len({p.resolve() for p in names}) != len(names):
+        raise BadInput("two outputs name the same file")
+
+    err = stderr_console()
+    total = (n_to - n_from + 1) * (2 if side == "both" else 1)
+    progress = None
+    if total > 50_000:
+
+        def progress(done: int, all_: int) -> None:
+            err.print(f"graph: {done}/{all_} starts", end="\r")
+
+    result = functional_graph(
+        m, n_to, start=n_from, side=side, max_steps=steps, ceiling=ceil, progress=progress
+    )
+    if progress is not None:
+        err.print(" " * 40, end="\r")
+    nodes = result.graph.number_of_nodes()
+    if outputs["plot"] is not None and nodes > PLOT_NODE_LIMIT:
+        raise BadInput(
+            f"the graph has {nodes} nodes; --plot draws at most {PLOT_NODE_LIMIT} "
+            f"(use a smaller range, or --graphml/--gexf); nothing was written"
+        )
+    written = {}
+    if outputs["graphml"] is not None:
+        written["graphml"] = str(result.write_graphml(outputs["graphml"]))
+    if outputs["gexf"] is not None:
+        written["gexf"] = str(result.write_gexf(outputs["gexf"]))
+    if outputs["dot"] is not None:
+        written["dot"] = str(result.write_dot(outputs["dot"]))
+    if outputs["plot"] is not None:
+        written["plot"] = str(result.plot(outputs["plot"]))
+
+    if as_json:
+        doc = result.to_dict()
+        doc["written"] = written
+        emit_json(doc)
+        return
+    con = stdout_console()
+    con.print(
+        f"[bold]{m.label}[/bold], {side} starts {n_from}..{n_to}: {result.starts} starts, "
+        f"{nodes} nodes, {result.graph.number_of_edges()} edges "
+        f"(max steps {steps}, ceiling {short(ceil)})"
+    )
+    rows = []
+    for c in result.cycles:
+        rows.append(
+            [
+                c.minimum,
+                c.length,
+                short(c.odd_steps),
+                "yes" if c.primitive else "no",
+                "yes" if result._is_start(c.minimum) else "no",
+                c.basin,
+                f"{float(result.basin_share(c)):.2%}",
+                "yes" if c.verified else "NO",
+            ]
+        )
+    con.print(
+        make_table(
+            "Cycles reached (exact)",
+            ["minimum", "length", "odd", "primitive", "min in range", "basin", "share", "verified"],
+            rows,
+            caption="basin = starts in the range that fall into the cycle (exact); share rounded",
+        )
+    )
+    con.print(
+        f"escaped (passed the ceiling; not a proof of divergence): {result.escaped} starts "
+        f"({float(result.escaped_share):.2%}); unresolved (step cap): {result.unresolved}"
+    )
+    for kind, path in written.items():
+        con.print(f"wrote {kind}: {path}")
+
+
+COMMANDS = [graph_cmd]

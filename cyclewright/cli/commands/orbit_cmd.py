@@ -1,0 +1,75 @@
+"""``cyclewright orbit MAP N``: one integer's orbit."""
+
+from __future__ import annotations
+
+import click
+
+from cyclewright.cycles.orbit import DEFAULT_MAX_STEPS, orbit
+
+from ..errors import BadInput
+from ..options import json_option, maps_option, parse_int, resolve_map
+from ..render import emit_json, short, stdout_console
+
+
+@click.command(
+    "orbit",
+    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 1e30",
+)
+@click.argument("map_spec", metavar="MAP")
+@click.argument("start", metavar="N")
+@click.option(
+    "--max-steps", default=DEFAULT_MAX_STEPS, show_default=True, type=int, help="Step cap."
+)
+@click.option(
+    "--ceiling", default=None, help="Stop once |value| exceeds this (integer, or 1e30 style)."
+)
+@click.option(
+    "--show",
+    "show_values",
+    default=60,
+    show_default=True,
+    type=int,
+    help="Values to print (table output).",
+)
+@maps_option
+@json_option
+def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_json) -> None:
+    """Follow N under MAP: stopping time, the cycle entered, peak (exact).
+
+    For ax+b maps the classic undivided step count and peak are shown too.
+    Negative N is allowed (its stopping time compares absolute values).
+    """
+    m = resolve_map(map_spec, map_files)
+    n = parse_int(start, "N")
+    if max_steps < 1:
+        raise BadInput(f"--max-steps must be at least 1, got {max_steps}")
+    ceil = None if ceiling is None else parse_int(ceiling, "--ceiling")
+    if ceil is not None and ceil < abs(n):
+        raise BadInput(f"--ceiling {ceil} is below |N| = {abs(n)}")
+    o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
+    if as_json:
+        emit_json(o.to_dict(max_values=None))
+        return
+    con = stdout_console()
+    con.print(f"[bold]{m.label}[/bold], start {n}: {o.status} after {o.steps} steps (exact)")
+    con.print(f"stopping time: {short(o.stopping_time)}")
+    if o.cycle:
+        cyc = ", ".join(short(v) for v in o.cycle[:12]) + (", ..." if len(o.cycle) > 12 else "")
+        con.print(
+            f"enters the cycle {{{cyc}}} (length {len(o.cycle)}, minimum {o.cycle[0]}) after {o.tail} steps"
+        )
+        con.print(f"total steps to the cycle minimum: {o.total_steps}")
+    con.print(f"peak: {short(o.peak)}")
+    if m.ax_b is not None:
+        con.print(
+            f"undivided form: total steps {short(o.undivided_total_steps)}, peak {short(o.undivided_peak)}"
+        )
+    vals = o.values[:show_values]
+    con.print(
+        "values: "
+        + " ".join(short(v) for v in vals)
+        + (" ..." if len(o.values) > len(vals) else "")
+    )
+
+
+COMMANDS = [orbit_cmd]

@@ -1,0 +1,299 @@
+"""``cyclewright sweep MAP --odd 1..X``: counting figures along the critical line."""
+
+from __future__ import annotations
+
+import math
+import sys
+import time
+
+import click
+
+from cyclewright.cycles.counting import DEFAULT_SWEEP_LIMIT
+from cyclewright.cycles.labels import HEURISTIC_CAUTION
+from cyclewright.cycles.sweep import sweep
+from cyclewright.maps import MapError, parse_int_range
+
+from ..errors import BadInput
+from ..files import atomic_write, check_output, save_figure
+from ..options import json_option, maps_option, resolve_map
+from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
+from .count_cmd import parse_count
+
+__all__ = ["COMMANDS", "plot_sweep"]
+
+_TABLE_COLUMNS = [
+    "x",
+    "k",
+    "necklaces",
+    "D",
+    "min bound (proved)",
+    "candidates",
+    "|min| from |Λ| bound (proved)",
+    "heuristic",
+    "integer cycles",
+]
+
+
+@click.command(
+    "sweep",
+    epilog=(
+        "\b\nExamples:\n"
+        "  cyclewright sweep 3x+1 --odd 1..2000\n"
+        "  cyclewright sweep 3x+1 --odd 1..60 --extra-lengths 2 --side negative\n"
+        "  cyclewright sweep 5x+1 --odd 1..300 --csv 5x1.csv --plot 5x1.png\n"
+        "  cyclewright sweep 3x+5 --odd 1..40 --json\n"
+        "\b\nFor each x: the smallest k with d^k above the product of multipliers (the side\n"
+        "whose cycles need D > 0) or the largest k below it (the other side), plus\n"
+        "--extra-lengths more. For divisors above 2, x counts the steps off residue 0 and\n"
+        "every content of the other residues gets a row."
+    ),
+)
+@click.argument("map_spec", metavar="MAP")
+@click.option("--odd", "odd_text", required=True, help="Range of x (odd steps), e.g. 1..2000.")
+@click.option(
+    "--extra-lengths",
+    "extra",
+    default=0,
+    show_default=True,
+    type=int,
+    help="Further lengths per x beyond the critical one.",
+)
+@click.option(
+    "--side",
+    type=click.Choice(["positive", "negative"]),
+    default="positive",
+    show_default=True,
+    help="Cycles of positive or of negative integers.",
+)
+@click.option(
+    "--limit",
+    "limit_text",
+    default=str(DEFAULT_SWEEP_LIMIT),
+    show_default=True,
+    help="Enumerate a row's necklaces when there are at most this many.",
+)
+@click.option(
+    "--csv", "csv_path", default=None, help="Write the rows as CSV to FILE ('-' = stdout)."
+)
+@click.option(
+    "--plot", "plot_path", default=None, help="Write a log-scale plot to FILE.png (matplotlib)."
+)
+@click.option("--force", is_flag=True, help="Overwrite existing --csv / --plot files.")
+@click.option(
+    "--rows",
+    "max_rows",
+    default=40,
+    show_default=True,
+    type=int,
+    help="Rows shown in the table (a spread over the range; all rows go to --csv/--json).",
+)
+@maps_option
+@json_option
+def sweep_cmd(
+    map_spec,
+    odd_text,
+    extra,
+    side,
+    limit_text,
+    csv_path,
+    plot_path,
+    force,
+    max_rows,
+    map_files,
+    as_json,
+) -> None:
+    """Necklaces, denominators, proved bounds and candidates for every x along the critical line.
+
+    Also reports the fitted growth rate of the necklace counts against the
+    theoretical rho and the smallest x from which the proved candidate bound
+    stays below the necklace count.
+    """
+    m = resolve_map(map_spec, map_files)
+    try:
+        xs = parse_int_range(odd_text)
+    except MapError as exc:
+        raise BadInput(f"--odd: {exc}") from None
+    limit = parse_count(limit_text, "--limit")
+    if extra < 0:
+        raise BadInput(f"--extra-lengths must be at least 0, got {extra}")
+    if as_json and csv_path == "-":
+        raise BadInput("--json and --csv - both write to stdout; give --csv a file name")
+    for path, what in ((csv_path, "--csv"), (plot_path, "--plot")):
+        check_output(path, what, force)
+    if plot_path and not plot_path.lower().endswith(".png"):
+        raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
+    s = sweep(m, xs, extra, side, limit=limit, progress=_progress())
+    # Outputs are written only after the whole sweep succeeded.
+    if csv_path:
+        cols = s.columns
+        rows = [[r[c] for c in cols] for r in s.to_dicts()]
+        if csv_path == "-":
+            write_csv(sys.stdout, cols, rows)
+        else:
+            atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
+    if plot_path:
+        plot_sweep(s, plot_path)
+    if as_json:
+        emit_json(s.to_dict())
+        return
+    if csv_path == "-":
+        return
+    _print_human(s, max_rows, csv_path, plot_path)
+
+
+def _progress():
+    """Row counter on stderr (only when it is a terminal), at most a few updates a second."""
+    if not sys.stderr.isatty():
+        return None
+    con = stderr_console()
+    last = [0.0]
+
+    def cb(done: int, total: int) -> None:
+        now = time.monotonic()
+        if done == total or now - last[0] > 0.25:
+            last[0] = now
+            con.print(f"sweep: {done:,} / {total:,} types", end="\r")
+
+    return cb
+
+
+def _pick_rows(n: int, max_rows: int) -> list[int]:
+    if n <= max_rows or max_rows <= 0:
+        return list(range(n)) if max_rows > 0 else []
+    step = (n - 1) / (max_rows - 1)
+    return sorted({round(i * step) for i in range(max_rows)})
+
+
+def _print_human(s, max_rows: int, csv_path, plot_path) -> None:
+    con = stdout_console()
+    lo, hi = s.odd
+    con.print(
+        f"[bold]{s.map.label}[/bold], {s.side} side, x = {lo}..{hi}"
+        + (f", {s.extra_lengths} extra lengths" if s.extra_lengths else "")
+        + f": {len(s.rows)} types in {s.elapsed:.2f} s"
+    )
+    idx = _pick_rows(len(s.rows), max_rows)
+    table_rows = []
+    for i in idx:
+        r = s.rows[i]
+        b = r.min_bound
+        if not b.applies:
+            mb = "n/a"
+        elif not b.possible:
+            mb = "none possible"
+        else:
+            mb = short(b.integer, 16)
+        cand = (
+            "-" if r.candidates is None else f"{short(r.candidates, 16)} ({r.labels['candidates']})"
+        )
+        ints = "-" if r.integer_cycles is None else str(len(r.integer_cycles))
+        if r.integer_cycles:
+            ints += " (" + ", ".join(str(c.minimum) for c in r.integer_cycles[:4]) + ")"
+        table_rows.append(
+            [
+                r.off_zero,
+                r.length if len(r.content) == 2 else f"{r.length} {list(r.content)}",
+                short(r.necklaces, 16),
+                short(r.denominator, 16),
+                mb,
+                cand,
+                "-" if r.candidates_linear_forms is None else short(r.candidates_linear_forms, 12),
+                _heur(r.heuristic_log10),
+                ints,
+            ]
+        )
+    caption = None
+    if len(idx) < len(s.rows):
+        caption = (
+            f"{len(idx)} of {len(s.rows)} rows shown; --csv or --json for all, --rows to change"
+        )
+    con.print(make_table(None, _TABLE_COLUMNS, table_rows, caption=caption))
+    if s.rho:
+        con.print(
+            f"necklace growth per unit x: fitted {_f(s.fitted_rate)}, with the x^(-3/2) factor "
+            f"removed {_f(s.fitted_rate_corrected)} (heuristic, x in {s.fit_range}); "
+            f"theory rho = 2^(t H(1/t)) = {s.rho:.6f}"
+        )
+    else:
+        con.print(
+            f"necklace growth per unit x: fitted {_f(s.fitted_rate)} (heuristic); "
+            "no closed-form rho for this map"
+        )
+    con.print(
+        "proved candidate bound below the necklace count for every row from x = "
+        f"{_opt(s.crossover_x)}; using only the linear-forms bound on |Λ|: from x = "
+        f"{_opt(s.crossover_x_linear_forms)} (within x <= {hi})"
+    )
+    found = [(r.length, c.minimum) for r in s.rows for c in (r.integer_cycles or ())]
+    if found:
+        con.print(
+            "integer cycles found (exact): "
+            + ", ".join(f"min {mn} (k={k})" for k, mn in found[:12])
+            + (" ..." if len(found) > 12 else "")
+        )
+    if csv_path and csv_path != "-":
+        con.print(f"rows written to {csv_path}")
+    if plot_path:
+        con.print(f"plot written to {plot_path}")
+    con.print(HEURISTIC_CAUTION)
+
+
+def _f(v) -> str:
+    return "-" if v is None else f"{v:.6f}"
+
+
+def _opt(v) -> str:
+    return "never in range" if v is None else str(v)
+
+
+def _heur(l10: float) -> str:
+    if -4 < l10 < 6:
+        return f"{10**l10:.4g}"
+    return f"1e{l10:.1f}"
+
+
+def _log10(n: int) -> float:
+    return math.log10(n) if n > 0 else float("nan")
+
+
+def plot_sweep(s, path: str) -> None:
+    """Log-scale plot of a sweep (matplotlib, Agg backend); written atomically to ``path``."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    seen = set()
+    rows = []
+    for r in s.rows:  # first length of each x and content
+        key = (r.off_zero, r.content[1:])
+        if key not in seen:
+            seen.add(key)
+            rows.append(r)
+    xs = [r.off_zero for r in rows]
+    fig, ax = plt.subplots(figsize=(9, 5.5), dpi=110)
+    ax.plot(xs, [_log10(r.necklaces) for r in rows], label="necklaces (exact)", lw=1.4)
+    ax.plot(xs, [r.heuristic_log10 for r in rows], label="necklaces/|D| (heuristic)", lw=1.0)
+    bound = [_log10(r.candidates_bound) if r.candidates_bound else float("nan") for r in rows]
+    ax.plot(xs, bound, label="proved bound on |min| (= candidates bound)", lw=1.2, ls="--")
+    lf = [
+        _log10(r.candidates_linear_forms) if r.candidates_linear_forms else float("nan")
+        for r in rows
+    ]
+    ax.plot(xs, lf, label="bound from the linear-forms |Λ| bound (proved)", lw=1.0, ls=":")
+    enum = [(r.off_zero, _log10(r.candidates)) for r in rows if r.enumerated and r.candidates]
+    if enum:
+        ax.scatter(*zip(*enum), s=12, marker="o", label="candidates, enumerated (exact)")
+    ints = [(r.off_zero, _log10(len(r.integer_cycles))) for r in rows if r.integer_cycles]
+    if ints:
+        ax.scatter(*zip(*ints), s=36, marker="*", color="k", label="integer cycles (exact)")
+    ax.set_xlabel("x (odd steps)" if s.map.divisor == 2 else "x (steps off residue 0)")
+    ax.set_ylabel("log10 of the count")
+    ax.set_title(f"{s.map.label}, {s.side} side: necklaces vs candidates along the critical line")
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8)
+    fig.tight_layout()
+    save_figure(fig, path)
+
+
+COMMANDS = [sweep_cmd]

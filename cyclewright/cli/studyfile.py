@@ -1,0 +1,340 @@
+"""Study files: a TOML description of maps and analyses, validated with precise messages.
+
+Schema
+------
+::
+
+    [study]
+    title = "Six maps side by side"          # required
+    description = "..."                      # optional, Markdown
+    store = "results.sqlite"                 # optional; relative to the output directory
+
+    [maps]
+    use = ["3x+1", "5x+1", "3x+7"]           # names, aliases or ax+b shorthand
+    files = ["extra-maps.toml"]              # optional map files, relative to the study file
+
+    [maps.define.tri]                        # inline definitions, same keys as a map file
+    divisor = 3
+    branches.0 = { multiplier = 1, offset = 0 }
+    branches.1 = { multiplier = 4, offset = -1 }
+    branches.2 = { multiplier = 4, offset = 1 }
+
+    [[analysis]]
+    kind = "sweep"                           # see ANALYSES for the kinds and their keys
+    maps = ["3x+1"]                          # optional; default: every map of the study
+    odd = "1..60"
+
+Every error names the file, the table and the key, e.g.
+``demo.toml: [[analysis]] #2 (census): key 'max_length': must be an integer >= 1, got 0``.
+"""
+
+from __future__ import annotations
+
+import sys
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from cyclewright.maps import Map, MapError, load_catalog, load_map_file, parse_int_range
+from cyclewright.maps.mapfile import map_from_table
+
+from .numbers import int_expression
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+__all__ = ["StudyError", "Study", "AnalysisSpec", "load_study", "parse_study", "PARAMS"]
+
+
+class StudyError(ValueError):
+    """A study file that cannot be used (one sentence naming file, table and key)."""
+
+
+# ---------------------------------------------------------------- parameter kinds
+def _int(lo: int | None = None, hi: int | None = None) -> Callable[[object], int]:
+    def check(v):
+        if isinstance(v, bool) or not isinstance(v, (int, str)):
+            raise ValueError(f"must be an integer, got {v!r}")
+        value = int_expression(v)  # raises ValueError with the reason
+        if lo is not None and value < lo:
+            raise ValueError(f"must be an integer >= {lo}, got {v}")
+        if hi is not None and value > hi:
+            raise ValueError(f"must be an integer <= {hi}, got {v}")
+        return value
+
+    return check
+
+
+def _choice(*options: str) -> Callable[[object], str]:
+    def check(v):
+        if v not in options:
+            raise ValueError(f"must be one of {', '.join(options)}, got {v!r}")
+        return v
+
+    return check
+
+
+def _range_text(v) -> range:
+    if isinstance(v, int) and not isinstance(v, bool):
+        return range(v, v + 1)
+    if not isinstance(v, str):
+        raise ValueError(f'must be a range like "1..60", got {v!r}')
+    try:
+        r = parse_int_range(v)
+    except MapError as exc:
+        raise ValueError(str(exc)) from None
+    if r.start < 1:
+        raise ValueError(f"must start at 1 or above, got {v!r}")
+    return r
+
+
+def _bool(v) -> bool:
+    if not isinstance(v, bool):
+        raise ValueError(f"must be true or false, got {v!r}")
+    return v
+
+
+def _str(v) -> str:
+    if not isinstance(v, str):
+        raise ValueError(f"must be a string, got {v!r}")
+    return v
+
+
+SIDE = _choice("positive", "negative", "both")
+
+# kind -> key -> (checker, default); "maps" and "kind" are common to all kinds
+PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
+    "count": {
+        "length": (_int(1, 100_000), None),
+        "odd": (_int(0, 100_000), None),
+        "limit": (_int(0, 10**8), 10**6),
+    },
+    "sweep": {
+        "odd": (_range_text, "1..40"),
+        "extra_lengths": (_int(0, 50), 0),
+        "side": (_choice("positive", "negative"), "positive"),
+        "limit": (_int(0, 10**8), 10**5),
+    },
+    "scan": {
+        "to": (_int(1, 2**62), 10**6),
+        "from": (_int(1, 2**62), 1),
+        "side": (SIDE, "both"),
+        "max_steps": (_int(1, 10**9), 10_000),
+    },
+    "census": {
+        "max_length": (_int(1, 10**7), 30),
+        "side": (SIDE, "both"),
+        "method": (_choice("auto", "bound-scan", "itineraries", "necklaces", "both"), "auto"),
+        "family": (_str, ""),
+        "k": (_range_text, "1..1"),
+    },
+    "floor": {
+        "verified_to": (_int(1), 2**40),
+        "side": (SIDE, "positive"),
+        "next": (_int(0, 50), 3),
+    },
+    "compare": {
+        "max_length": (_int(1, 10**7), 20),
+        "to": (_int(1, 2**62), 10**5),
+        "odd": (_int(1, 100_000), 20),
+        "max_steps": (_int(1, 10**6), 500),
+        "plot": (_bool, True),
+    },
+    "graph": {
+        "to": (_int(1, 10**6), 200),
+        "side": (SIDE, "positive"),
+        "plot": (_bool, True),
+        "ceiling": (_int(1), 10**12),
+    },
+}
+
+
+@dataclass
+class AnalysisSpec:
+    """One ``[[analysis]]`` entry, validated."""
+
+    index: int
+    kind: str
+    maps: list[Map]
+    params: dict
+
+    @property
+    def where(self) -> str:
+        return f"[[analysis]] #{self.index} ({self.kind})"
+
+
+@dataclass
+class Study:
+    """A validated study: title, maps, analyses, where it came from."""
+
+    path: Path | None
+    title: str
+    description: str
+    maps: list[Map]
+    analyses: list[AnalysisSpec]
+    store: str | None = None
+    raw: dict = field(default_factory=dict, repr=False)
+
+    def to_dict(self) -> dict:
+        return {
+            "title": self.title,
+            "description": self.description,
+            "maps": [
+                {"name": m.label, "definition": m.canonical(), "key": m.key} for m in self.maps
+            ],
+            "analyses": [
+                {"kind": a.kind, "maps": [m.label for m in a.maps], "params": a.params}
+                for a in self.analyses
+            ],
+        }
+
+
+def load_study(path: str | Path) -> Study:
+    """Read and validate a study file; raises :class:`StudyError` with a precise message."""
+    p = Path(path)
+    try:
+        text = p.read_text()
+    except OSError as exc:
+        raise StudyError(f"{p}: cannot read study file ({exc.strerror or exc})") from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise StudyError(f"{p}: not valid TOML: {exc}") from None
+    return parse_study(data, origin=str(p), base_dir=p.parent, path=p)
+
+
+def parse_study(
+    data: Mapping, *, origin: str, base_dir: Path | None = None, path: Path | None = None
+) -> Study:
+    """Validate parsed study data (see the module docstring for the schema)."""
+    allowed_top = {"study", "maps", "analysis"}
+    for key in data:
+        if key not in allowed_top:
+            raise StudyError(
+                f"{origin}: key {key!r}: unknown top-level table (allowed: study, maps, analysis)"
+            )
+    st = data.get("study")
+    if not isinstance(st, Mapping):
+        raise StudyError(f"{origin}: [study]: missing (it needs at least a title)")
+    _only(st, {"title", "description", "store"}, origin, "[study]")
+    title = st.get("title")
+    if not isinstance(title, str) or not title.strip():
+        raise StudyError(f"{origin}: [study]: key 'title': must be a non-empty string")
+    description = st.get("description", "")
+    if not isinstance(description, str):
+        raise StudyError(f"{origin}: [study]: key 'description': must be a string")
+    store = st.get("store")
+    if store is not None and (not isinstance(store, str) or not store.strip()):
+        raise StudyError(f"{origin}: [study]: key 'store': must be a file name")
+
+    # ---- maps
+    mt = data.get("maps", {})
+    if not isinstance(mt, Mapping):
+        raise StudyError(f"{origin}: [maps]: must be a table")
+    _only(mt, {"use", "files", "define"}, origin, "[maps]")
+    files = mt.get("files", [])
+    if not isinstance(files, list) or not all(isinstance(f, str) for f in files):
+        raise StudyError(f"{origin}: [maps]: key 'files': must be a list of file names")
+    file_paths = [
+        (base_dir / f) if base_dir and not Path(f).is_absolute() else Path(f) for f in files
+    ]
+    try:
+        catalog = load_catalog(file_paths, include_user=False)
+    except MapError as exc:
+        raise StudyError(f"{origin}: [maps]: key 'files': {exc}") from None
+    defined: list[Map] = []
+    defs = mt.get("define", {})
+    if not isinstance(defs, Mapping):
+        raise StudyError(f"{origin}: [maps.define]: must be a table of map tables")
+    for name, table in defs.items():
+        try:
+            m = map_from_table(
+                name, table, origin=f"{origin}: [maps.define]", source=f"study:{origin}"
+            )
+        except MapError as exc:
+            raise StudyError(str(exc)) from None
+        catalog.add(m, override=True)
+        defined.append(m)
+    use = mt.get("use", [])
+    if not isinstance(use, list) or not all(isinstance(u, str) for u in use):
+        raise StudyError(f"{origin}: [maps]: key 'use': must be a list of map names")
+    study_maps: list[Map] = []
+    for u in use:
+        try:
+            study_maps.append(catalog.get(u))
+        except MapError as exc:
+            raise StudyError(f"{origin}: [maps]: key 'use': {exc}") from None
+    for m in defined:
+        if m not in study_maps:
+            study_maps.append(m)
+    for path_ in file_paths:
+        try:
+            for m in load_map_file(path_):
+                if m not in study_maps:
+                    study_maps.append(catalog.get(m.name))
+        except MapError as exc:  # pragma: no cover - already loaded once above
+            raise StudyError(f"{origin}: [maps]: key 'files': {exc}") from None
+    if not study_maps:
+        raise StudyError(f"{origin}: [maps]: key 'use': the study names no maps")
+
+    # ---- analyses
+    an = data.get("analysis", [])
+    if not isinstance(an, list) or not an:
+        raise StudyError(f"{origin}: [[analysis]]: the study needs at least one analysis")
+    specs = []
+    for i, table in enumerate(an, start=1):
+        where = f"{origin}: [[analysis]] #{i}"
+        if not isinstance(table, Mapping):
+            raise StudyError(f"{where}: must be a table")
+        kind = table.get("kind")
+        if kind not in PARAMS:
+            raise StudyError(
+                f"{where}: key 'kind': must be one of {', '.join(PARAMS)}, got {kind!r}"
+            )
+        where = f"{where} ({kind})"
+        schema = PARAMS[kind]
+        _only(table, set(schema) | {"kind", "maps"}, origin, f"[[analysis]] #{i} ({kind})")
+        names = table.get("maps")
+        if names is None:
+            amaps = list(study_maps)
+        else:
+            if (
+                not isinstance(names, list)
+                or not all(isinstance(n, str) for n in names)
+                or not names
+            ):
+                raise StudyError(f"{where}: key 'maps': must be a non-empty list of map names")
+            amaps = []
+            for n in names:
+                try:
+                    amaps.append(catalog.get(n))
+                except MapError as exc:
+                    raise StudyError(f"{where}: key 'maps': {exc}") from None
+        params = {}
+        for key, (check, default) in schema.items():
+            raw = table.get(key, default)
+            if raw is None:
+                if default is None and key in ("length",):
+                    raise StudyError(f"{where}: key {key!r}: missing")
+                params[key] = None
+                continue
+            try:
+                params[key] = check(raw)
+            except ValueError as exc:
+                raise StudyError(f"{where}: key {key!r}: {exc}") from None
+        if kind == "scan" and params["from"] > params["to"]:
+            raise StudyError(
+                f"{where}: key 'from': the range {params['from']}..{params['to']} is empty"
+            )
+        specs.append(AnalysisSpec(i, kind, amaps, params))
+    return Study(path, title.strip(), description, study_maps, specs, store, dict(data))
+
+
+def _only(table: Mapping, allowed: set[str], origin: str, where: str) -> None:
+    for key in table:
+        if key not in allowed:
+            raise StudyError(
+                f"{origin}: {where}: key {key!r}: unknown key (allowed: {', '.join(sorted(allowed))})"
+            )

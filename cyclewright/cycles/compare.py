@@ -1,0 +1,500 @@
+"""Maps side by side, and the counting argument's predictions against what is found.
+
+Inside
+------
+- :func:`compare` -- one :class:`MapProfile` per map: drift, critical ratio,
+  necklace growth rate, the certified census up to a length on both sides,
+  the scan up to ``N`` (share dropping, share unresolved, cycles met, largest
+  excursion), the floor given ``N`` (when the scan verified ``N``), and the
+  counting figures of the critical type at ``x = X``.
+- :func:`predictions` -- for one map, the types where integer cycles were
+  found, with found against necklaces, candidates (proved) and the heuristic
+  expectation, and the totals over every type up to the length asked. Found
+  is never above candidates (a theorem; a violation would be a bug).
+- :class:`Comparison`, :class:`MapProfile`, :class:`Predictions`.
+
+Labels: drift, critical ratio and ρ are closed forms (``exact``; their
+decimal values are rounded for display); census lists ``certified``; scan
+counts and shares ``exact`` (over the range); floors and candidate bounds
+``proved``; necklaces/|D| ``heuristic``.
+
+References
+----------
+.. [1] J. C. Lagarias, "The 3x+1 problem and its generalizations", Amer.
+   Math. Monthly 92 (1985) 3-23 (drift, heuristic counts of cycles).
+.. [2] S. Eliahou, Discrete Mathematics 118 (1993) 45-56 (bounds, floors).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+from cyclewright.maps import Map
+
+from .census import Census, census
+from .counting import count
+from .errors import InputError
+from .excursions import Excursions, excursions
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .minimum_bound import minimum_bound
+from .necklaces import contents_of_length, lyndon_count, necklace_count
+from .sweep import critical_lengths, rho
+
+__all__ = ["compare", "Comparison", "MapProfile", "predictions", "Predictions", "critical_ratio"]
+
+
+def critical_ratio(m: Map) -> tuple[float, str] | None:
+    """``log_d a`` when every multiplier other than 1 equals one ``a > 0`` (else None).
+
+    Cycles need ``d^k ≈ A``: with ``j`` steps through multiplier ``a``,
+    ``k / j ≈ log_d a``.
+
+    >>> from cyclewright import maps
+    >>> critical_ratio(maps.get("3x+1"))
+    (1.58496..., 'log_2 3')
+    """
+    others = {a for a in m.multipliers if a != 1}
+    if len(others) != 1:
+        return None
+    a = others.pop()
+    if a <= 0:
+        return None
+    return math.log(a) / math.log(m.divisor), f"log_{m.divisor} {a}"
+
+
+@dataclass(frozen=True)
+class TypeRow:
+    """One type of the predictions table (found against the counting figures)."""
+
+    side: str
+    content: tuple[int, ...]
+    found: int
+    necklaces: int
+    primitive_necklaces: int
+    denominator: int
+    candidates: int | None
+    candidates_label: str
+    heuristic: Fraction | None
+
+    @property
+    def length(self) -> int:
+        return sum(self.content)
+
+    def to_dict(self) -> dict:
+        return {
+            "side": self.side,
+            "length": self.length,
+            "content": list(self.content),
+            "odd_steps": self.content[1] if len(self.content) == 2 else None,
+            "found": self.found,
+            "necklaces": self.necklaces,
+            "primitive_necklaces": self.primitive_necklaces,
+            "denominator": self.denominator,
+            "candidates": self.candidates,
+            "heuristic": self.heuristic,
+            "labels": {
+                "found": CERTIFIED.value,
+                "necklaces": EXACT.value,
+                "candidates": self.candidates_label,
+                "heuristic": HEURISTIC.value,
+            },
+        }
+
+
+@dataclass(frozen=True)
+class Predictions:
+    """Predictions against findings for one map up to a length."""
+
+    map: Map
+    max_length: int
+    rows: tuple[TypeRow, ...]
+    totals: (
+        dict  # side -> {"types", "necklaces", "candidates", "heuristic", "found", "bound_applies"}
+    )
+
+    def to_dict(self) -> dict:
+        return {
+            "map": self.map.label,
+            "max_length": self.max_length,
+            "rows": [r.to_dict() for r in self.rows],
+            "totals": self.totals,
+            "labels": {
+                "found": CERTIFIED.value,
+                "necklaces": EXACT.value,
+                "candidates": PROVED.value,
+                "heuristic": HEURISTIC.value,
+            },
+        }
+
+
+def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_000) -> Predictions:
+    """Cycles found by a census, type by type, against what the counting argument allows.
+
+    Parameters
+    ----------
+    m : Map
+    c : Census
+        Its cycles give ``found``; its length ``K`` bounds the types.
+    limit : int
+        Necklace enumeration limit for the exact candidates of the types
+        with cycles (see :func:`cyclewright.cycles.counting.count`).
+    max_types : int
+        Refuse when the totals would need more types than this.
+
+    Returns
+    -------
+    Predictions
+        ``rows``: the types where cycles were found; ``totals`` per side over
+        every type of length ``<= K`` whose denominator has the side's sign:
+        necklaces (exact), candidates (the proved bound per type, summed),
+        heuristic (sum of necklaces/|D|), found (certified).
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> from .census import census
+    >>> p = predictions(maps.get("3x+5"), census(maps.get("3x+5"), 12, side="positive", store=False, workers=1))
+    >>> [(r.length, r.content[1], r.found, r.candidates) for r in p.rows if r.side == "positive"]
+    [(2, 1, 1, 5), (3, 1, 1, 1), (5, 3, 2, 23)]
+    """
+    K = c.max_length
+    d = m.divisor
+    n_types = math.comb(K + d, d)
+    if n_types > max_types:
+        raise InputError(
+            f"{m.label}: predictions up to length {K} would visit {n_types} types (limit {max_types})"
+        )
+    found: dict[tuple[str, tuple[int, ...]], int] = {}
+    for cyc in c.cycles:
+        if cyc.minimum == 0:
+            continue
+        side = "positive" if cyc.minimum > 0 else "negative"
+        key = (side, tuple(cyc.content))
+        found[key] = found.get(key, 0) + 1
+    rows = []
+    for (side, content), nfound in sorted(
+        found.items(), key=lambda kv: (kv[0][0] != "positive", sum(kv[0][1]), kv[0][1])
+    ):
+        tc = count(m, content=dict(enumerate(content)), limit=limit)
+        if tc.candidates is not None:
+            cand, clabel = tc.candidates, (EXACT.value if tc.enumerated else PROVED.value)
+        else:
+            cand, clabel = None, "n/a"
+        if cand is not None and nfound > cand:  # pragma: no cover - a theorem; a bug if it fires
+            raise AssertionError(
+                f"{m.label}: {nfound} cycles of type {content} but only {cand} candidates"
+            )
+        heur = Fraction(tc.necklaces, abs(tc.denominator)) if tc.denominator else None
+        rows.append(
+            TypeRow(
+                side,
+                content,
+                nfound,
+                tc.necklaces,
+                tc.primitive_necklaces,
+                tc.denominator,
+                cand,
+                clabel,
+                heur,
+            )
+        )
+    totals = {}
+    for side in c.sides:
+        heur: list[float] = []
+        t = {
+            "types": 0,
+            "necklaces": 0,
+            "primitive_necklaces": 0,
+            "candidates": 0,
+            "heuristic": 0.0,
+            "found": 0,
+            "bound_applies": True,
+            "types_without_bound": 0,
+            "necklaces_without_bound": 0,
+        }
+        for k in range(1, K + 1):
+            dk = d**k
+            for content in contents_of_length(d, k):
+                A = 1
+                for a, ci in zip(m.multipliers, content):
+                    A *= a**ci
+                D = dk - A
+                if D == 0:
+                    continue
+                mb = minimum_bound(m, dict(enumerate(content)), side)
+                if not mb.applies:
+                    t["bound_applies"] = False
+                    t["types_without_bound"] += 1
+                    t["necklaces_without_bound"] += necklace_count(content)
+                    continue
+                if not mb.possible:
+                    continue
+                nk = necklace_count(content)
+                t["types"] += 1
+                t["necklaces"] += nk
+                t["primitive_necklaces"] += lyndon_count(content)
+                t["candidates"] += int(mb.integer or 0)
+                heur.append(nk / abs(D))
+        t["heuristic"] = math.fsum(heur)  # a model's expectation: a float is enough
+        t["found"] = sum(v for (s, _), v in found.items() if s == side)
+        t["labels"] = {
+            "necklaces": EXACT.value,
+            "candidates": PROVED.value,
+            "heuristic": HEURISTIC.value,
+            "found": CERTIFIED.value,
+        }
+        totals[side] = t
+    return Predictions(m, K, tuple(rows), totals)
+
+
+@dataclass(frozen=True)
+class MapProfile:
+    """Everything the comparison shows for one map."""
+
+    map: Map
+    census: Census | None
+    census_note: str
+    excursions: dict[str, Excursions]
+    scan_to: int
+    floors: dict  # side -> Floor or None
+    floor_notes: dict
+    critical_count: object | None  # TypeCount at x = X
+    critical_note: str
+    predictions: Predictions | None
+    extras: dict = field(default_factory=dict)
+
+    def row(self) -> dict:
+        m = self.map
+        cr = critical_ratio(m)
+        r = rho(m)
+        c = self.census
+        counts = self.extras.get("scan_counts", {}).get("positive")
+        total = sum(counts.values()) if counts else 0
+        row = {
+            "map": m.label,
+            "definition": m.formula(),
+            "divisor": m.divisor,
+            "drift": m.drift(),
+            "drift_exact": m.drift_formula(),
+            "critical_ratio": cr[0] if cr else None,
+            "critical_ratio_exact": cr[1] if cr else None,
+            "rho": r,
+            "census_length": c.max_length if c else None,
+            "census_cycles": len([x for x in c.cycles if x.minimum != 0]) if c else None,
+            "census_minima": [x.minimum for x in c.cycles if x.minimum != 0] if c else None,
+            "census_lengths": [x.length for x in c.cycles if x.minimum != 0] if c else None,
+            "census_primitive": [
+                x.minimum for x in c.cycles if x.minimum != 0 and x.lagarias_primitive
+            ]
+            if c
+            else None,
+            "census_method": c.method if c else self.census_note,
+            "scan_to": self.scan_to,
+            # shares of the positive starts 1..N as classified by the scan (exact counts; floats shown)
+            "drop_share": counts["drops"] / total if total else None,
+            "unresolved_share": counts["unresolved"] / total if total else None,
+            "cycles_met": sorted(
+                {
+                    v
+                    for e in self.excursions.values()
+                    for v in self.extras.get("met", {}).get(e.side, [])
+                }
+            ),
+            "largest_peak": max((e.peak for e in self.excursions.values()), default=None),
+            "largest_peak_start": max(self.excursions.values(), key=lambda e: e.peak).peak_start
+            if self.excursions
+            else None,
+            "peak_passed_2^62": any(e.peak_overflowed for e in self.excursions.values()),
+        }
+        for side in ("positive", "negative"):
+            f = self.floors.get(side)
+            row[f"floor_{side}_length"] = f.least_length if f is not None and f.possible else None
+            row[f"floor_{side}_note"] = self.floor_notes.get(side, "")
+        tc = self.critical_count
+        row["x"] = tc.odd if tc is not None else None
+        row["k"] = tc.length if tc is not None else None
+        row["necklaces_at_x"] = tc.necklaces if tc is not None else None
+        row["candidates_at_x"] = tc.candidates if tc is not None else None
+        row["heuristic_at_x"] = (
+            float(Fraction(tc.necklaces, abs(tc.denominator)))
+            if tc is not None and tc.denominator
+            else None
+        )
+        row["integer_cycles_at_x"] = (
+            len(tc.integer_cycles) if tc is not None and tc.integer_cycles is not None else None
+        )
+        row["labels"] = {
+            "drift": EXACT.value,
+            "critical_ratio": EXACT.value,
+            "rho": EXACT.value,
+            "census_cycles": CERTIFIED.value,
+            "census_minima": CERTIFIED.value,
+            "drop_share": EXACT.value,
+            "unresolved_share": EXACT.value,
+            "cycles_met": EXACT.value,
+            "largest_peak": EXACT.value,
+            "floor_positive_length": PROVED.value,
+            "floor_negative_length": PROVED.value,
+            "necklaces_at_x": EXACT.value,
+            "candidates_at_x": (EXACT.value if tc is not None and tc.enumerated else PROVED.value),
+            "heuristic_at_x": HEURISTIC.value,
+            "integer_cycles_at_x": EXACT.value,
+        }
+        return row
+
+    def to_dict(self) -> dict:
+        return {
+            "row": self.row(),
+            "census": self.census.to_dict() if self.census else None,
+            "excursions": {s: e.to_dict() for s, e in self.excursions.items()},
+            "scan_counts": self.extras.get("scan_counts", {}),
+            "floors": {s: (f.to_dict() if f is not None else None) for s, f in self.floors.items()},
+            "floor_notes": self.floor_notes,
+            "critical_count": self.critical_count.to_dict()
+            if self.critical_count is not None
+            else None,
+            "predictions": self.predictions.to_dict() if self.predictions else None,
+        }
+
+
+@dataclass(frozen=True)
+class Comparison:
+    """Profiles of several maps with shared parameters."""
+
+    profiles: tuple[MapProfile, ...]
+    max_length: int
+    to: int
+    odd: int
+
+    def rows(self) -> list[dict]:
+        return [p.row() for p in self.profiles]
+
+    def to_dict(self) -> dict:
+        return {
+            "max_length": self.max_length,
+            "to": self.to,
+            "odd": self.odd,
+            "maps": [p.to_dict() for p in self.profiles],
+        }
+
+    def __repr__(self) -> str:
+        return f"Comparison({', '.join(p.map.label for p in self.profiles)}; K={self.max_length}, N={self.to}, x={self.odd})"
+
+
+def compare(
+    maps_: Sequence[Map],
+    *,
+    max_length: int = 20,
+    to: int = 10**5,
+    odd: int = 20,
+    cap: int = 1_000,
+    store=None,
+    workers: int | None = None,
+    count_limit: int = 10**5,
+    progress: Callable[[str], None] | None = None,
+) -> Comparison:
+    """Profiles of several maps with the same parameters.
+
+    Parameters
+    ----------
+    maps_ : sequence of Map
+    max_length : int
+        ``K`` for the census (both sides).
+    to : int
+        ``N`` for the scan of starts ``1..N`` on both sides and the floor.
+    odd : int
+        ``X``: the counting figures of the first critical type with ``x = X``.
+    cap : int
+        Step cap per start for the excursion walk.
+    store, workers
+        Passed to the census' scan; ``store`` may be a directory (one store per map).
+    count_limit : int
+        Necklace enumeration limit.
+    progress : callable, optional
+        Called with a short message per stage.
+
+    Returns
+    -------
+    Comparison
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> cmp = compare([maps.get("3x+1"), maps.get("5x+1")], max_length=12, to=1000, odd=5, store=False, workers=1)
+    >>> [r["census_minima"] for r in cmp.rows()]
+    [[1, -1, -5, -17], [1, 13, 17, -1]]
+    """
+    from .floors import floor
+    from .scan.run import scan
+
+    if not maps_:
+        raise InputError("compare needs at least one map")
+    profiles = []
+    for m in maps_:
+        say = progress or (lambda _msg: None)
+        say(f"{m.label}: census up to length {max_length}")
+        try:
+            c = census(m, max_length, side="both", store=store, workers=workers)
+            cnote = ""
+        except InputError as exc:
+            c, cnote = None, str(exc)
+        say(f"{m.label}: excursions and scan to {to}")
+        exc_ = {}
+        met = {}
+        scan_counts = {}
+        floors, fnotes = {}, {}
+        for side in ("positive", "negative"):
+            try:
+                exc_[side] = excursions(m, to, side=side, cap=cap)
+            except InputError as e:
+                fnotes[side] = str(e)
+                continue
+            sr = scan(m, to, side=side, max_steps=cap, store=store, workers=workers)
+            met[side] = list(sr.minima.get(side, ()))
+            scan_counts[side] = {k: int(v) for k, v in sr.counts[side].items()}
+            unresolved = sr.unresolved_count.get(side, 0)
+            if unresolved:
+                floors[side] = None
+                fnotes[side] = f"not verified: {unresolved} starts up to {to} unresolved"
+                continue
+            try:
+                floors[side] = floor(m, verified_to=to, side=side)
+                fnotes[side] = f"given the scan verified 1..{to} (known cycles: {met[side]})"
+            except InputError as e:
+                floors[side] = None
+                fnotes[side] = str(e)
+        tc, tnote = None, ""
+        try:
+            if m.divisor == 2:
+                ks = critical_lengths(m, (odd,), 0, "positive")
+                if ks:
+                    tc = count(m, ks[0], odd, limit=count_limit)
+            else:
+                tnote = "critical type at x is defined for two-branch maps"
+        except InputError as e:
+            tnote = str(e)
+        preds = None
+        if c is not None:
+            try:
+                preds = predictions(m, c, limit=count_limit)
+            except InputError:
+                preds = None
+        profiles.append(
+            MapProfile(
+                m,
+                c,
+                cnote,
+                exc_,
+                to,
+                floors,
+                fnotes,
+                tc,
+                tnote,
+                preds,
+                {"met": met, "scan_counts": scan_counts},
+            )
+        )
+    return Comparison(tuple(profiles), max_length, to, odd)

@@ -1,0 +1,199 @@
+"""Excursions: how high orbits climb before they drop below their start.
+
+Inside
+------
+- :func:`excursions` -- for every start ``s`` of a range, follow the orbit
+  until it first drops below ``|s|`` (its stopping time), returns to ``s``,
+  passes a step cap, or passes ``2^62``; report the largest value reached and
+  its start, the mean stopping time, and how many starts stopped, capped or
+  overflowed. A compiled loop (numba) with exact int64 arithmetic: a value
+  that would pass ``2^62`` ends that start's walk with the outcome
+  ``overflow`` (never a wrapped number).
+- :class:`Excursions` -- the result.
+
+Every figure is ``exact`` for the walks as defined (a peak is the largest
+``|value|`` seen before the walk ended).
+
+References
+----------
+.. [1] R. Terras, Acta Arithmetica 30 (1976) 241-252 (stopping time).
+.. [2] T. Oliveira e Silva, "Maximum excursion and stopping time record-holders
+   for the 3x+1 problem", Math. Comp. 68 (1999) 371-384.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+
+import numpy as np
+from numba import njit
+
+from cyclewright.maps import Map
+
+from .errors import InputError
+from .labels import EXACT
+
+__all__ = ["excursions", "Excursions"]
+
+_LIMIT = 2**62
+
+
+@njit(cache=True)
+def _walk_range(lo, hi, sign, d, ma, mb, cap, limit):  # pragma: no cover - compiled
+    best = 0
+    best_start = 0
+    stopped = 0
+    returned = 0
+    capped = 0
+    overflow = 0
+    total_time = 0
+    for s0 in range(lo, hi + 1):
+        s = s0 * sign
+        v = s
+        peak = s0
+        ended = False
+        for i in range(1, cap + 1):
+            r = v % d
+            a = ma[r]
+            b = mb[r]
+            if abs(v) > (limit - abs(b)) // abs(a):
+                overflow += 1
+                ended = True
+                peak = limit
+                break
+            v = (a * v + b) // d
+            av = abs(v)
+            if av > peak:
+                peak = av
+            if av < s0:
+                stopped += 1
+                total_time += i
+                ended = True
+                break
+            if v == s:
+                returned += 1
+                ended = True
+                break
+        if not ended:
+            capped += 1
+        if peak > best:
+            best = peak
+            best_start = s
+    return best, best_start, stopped, returned, capped, overflow, total_time
+
+
+@dataclass(frozen=True)
+class Excursions:
+    """Walks from every start of a range until each drops below its start (exact counts)."""
+
+    map: Map
+    side: str
+    start: int
+    to: int
+    cap: int
+    peak: int
+    peak_start: int
+    peak_overflowed: bool
+    stopped: int
+    returned: int
+    capped: int
+    overflowed: int
+    mean_stopping_time: Fraction | None
+
+    @property
+    def starts(self) -> int:
+        return self.to - self.start + 1
+
+    @property
+    def drop_share(self) -> Fraction:
+        """Share of starts that drop below their start within the cap."""
+        return Fraction(self.stopped, self.starts)
+
+    @property
+    def open_share(self) -> Fraction:
+        """Share of starts neither dropping nor returning (capped or past 2^62)."""
+        return Fraction(self.capped + self.overflowed, self.starts)
+
+    def to_dict(self) -> dict:
+        return {
+            "map": self.map.label,
+            "side": self.side,
+            "start": self.start,
+            "to": self.to,
+            "cap": self.cap,
+            "peak": self.peak,
+            "peak_start": self.peak_start,
+            "peak_overflowed": self.peak_overflowed,
+            "stopped": self.stopped,
+            "returned": self.returned,
+            "capped": self.capped,
+            "overflowed": self.overflowed,
+            "drop_share": self.drop_share,
+            "open_share": self.open_share,
+            "mean_stopping_time": self.mean_stopping_time,
+            "labels": {
+                k: EXACT.value for k in ("peak", "stopped", "capped", "overflowed", "drop_share")
+            },
+        }
+
+
+def excursions(
+    m: Map, to: int, *, start: int = 1, side: str = "positive", cap: int = 10_000
+) -> Excursions:
+    """Follow every start of ``start..to`` until it drops below its start.
+
+    Parameters
+    ----------
+    m : Map
+    to, start : int
+        The range of absolute values (``1 <= start <= to < 2^62``).
+    side : {"positive", "negative"}
+    cap : int
+        Step cap per start.
+
+    Returns
+    -------
+    Excursions
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> e = excursions(maps.get("3x+1"), 30)
+    >>> e.peak, e.peak_start        # 27 climbs to 4616 (divided map) before dropping
+    (4616, 27)
+    >>> e.stopped, e.returned       # 1 returns to itself; every other start drops
+    (29, 1)
+    """
+    if side not in ("positive", "negative"):
+        raise InputError(f"side must be positive or negative, got {side!r}")
+    if start < 1 or to < start:
+        raise InputError(f"empty range {start}..{to}")
+    if to >= _LIMIT:
+        raise InputError(f"to = {to} is beyond 2^62")
+    if cap < 1:
+        raise InputError("cap must be at least 1")
+    if any(abs(a) >= 2**31 or abs(b) >= 2**31 for a, b in m.branches):
+        raise InputError(f"{m.label}: coefficients too large for the compiled excursion walk")
+    ma = np.array(m.multipliers, dtype=np.int64)
+    mb = np.array(m.offsets, dtype=np.int64)
+    sign = 1 if side == "positive" else -1
+    best, bstart, stopped, returned, capped, over, ttime = _walk_range(
+        start, to, sign, m.divisor, ma, mb, cap, _LIMIT
+    )
+    mean = Fraction(int(ttime), int(stopped)) if stopped else None
+    return Excursions(
+        m,
+        side,
+        start,
+        to,
+        cap,
+        int(best),
+        int(bstart),
+        bool(best >= _LIMIT),
+        int(stopped),
+        int(returned),
+        int(capped),
+        int(over),
+        mean,
+    )

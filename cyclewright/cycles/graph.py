@@ -1,0 +1,647 @@
+"""The functional graph of a map over a range of starts: cycles and their basins.
+
+Inside
+------
+- :func:`functional_graph` -- follow every start in a range (positive,
+  negative or both sides) exactly until its orbit joins a node already seen,
+  closes a cycle, passes a ceiling or a step cap; return a
+  :class:`FunctionalGraph` holding the :class:`networkx.DiGraph`.
+- :class:`FunctionalGraph` -- the result: the cycles found (the attracting
+  components of the graph, i.e. its terminal strongly connected components
+  that contain an edge), each verified exactly by :func:`cyclewright.cycles.solver.solve`;
+  the basins (how many starts fall into each cycle); how many starts passed
+  the ceiling or were left unresolved; export to GraphML, GEXF and DOT; a
+  matplotlib drawing for small graphs.
+- :class:`GraphCycle` -- one cycle with its basin.
+
+Every node ``n`` has one out-edge ``n -> T(n)``, except the *frontier*
+nodes: a value beyond the ceiling (``beyond_ceiling``) or the value where a
+walk stopped at the step cap (``unresolved``). So every node leads to
+exactly one attracting component: a cycle or a frontier node.
+
+Figures and their labels: cycles and basin counts are ``exact`` (Python
+integers throughout, every cycle re-derived from its itinerary). The count
+of starts that *escaped* is an exact count of starts whose orbit passed the
+ceiling -- it is not a proof that those orbits diverge. Unresolved starts
+are open cases.
+
+Node attributes (kept in every export): ``residue`` (``n mod d``),
+``is_start`` (``n`` is one of the starts; GEXF reserves ``start``), ``on_cycle``, ``basin`` (the
+index of the cycle the node leads to, ``-1`` for a value beyond the
+ceiling, ``-2`` for unresolved), ``frontier`` (``""``,
+``"beyond_ceiling"`` or ``"unresolved"``).
+
+References
+----------
+.. [1] J. C. Lagarias, "The 3x+1 problem and its generalizations",
+   American Mathematical Monthly 92 (1985) 3-23 (cycles of 3x+1 on both sides).
+.. [2] A. Hagberg, D. Schult and P. Swart, "Exploring network structure,
+   dynamics, and function using NetworkX", Proc. SciPy 2008 (attracting
+   components).
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from fractions import Fraction
+from pathlib import Path
+
+import networkx as nx
+
+from cyclewright.maps import Map
+
+from .errors import InputError
+from .files import atomic_write
+from .itinerary import content as _content
+from .itinerary import format_itinerary, primitive_root
+from .labels import EXACT
+from .solver import cycle_representative, lagarias_primitive, solve
+
+__all__ = [
+    "GraphCycle",
+    "FunctionalGraph",
+    "functional_graph",
+    "DEFAULT_MAX_STEPS",
+    "DEFAULT_CEILING",
+    "MAX_STARTS",
+    "PLOT_NODE_LIMIT",
+]
+
+DEFAULT_MAX_STEPS = 10_000
+DEFAULT_CEILING = 10**15
+MAX_STARTS = 2_000_000
+PLOT_NODE_LIMIT = 2_000
+
+ESCAPED = -1
+UNRESOLVED = -2
+
+
+@dataclass(frozen=True)
+class GraphCycle:
+    """A cycle found in the graph (every figure ``exact``).
+
+    Attributes
+    ----------
+    index : int
+        Position in :attr:`FunctionalGraph.cycles` (the node attribute ``basin``).
+    elements : tuple of int
+        The cycle, starting at its minimum.
+    itinerary : tuple of int
+        Residues of the elements (a primitive word).
+    basin : int
+        How many of the starts fall into this cycle (including the cycle's
+        own elements that are starts).
+    verified : bool
+        True when :func:`cyclewright.cycles.solver.solve` on the itinerary gives exactly
+        these integers.
+    primitive : bool
+        Primitive in Lagarias' sense (``gcd`` of elements and offsets is 1).
+    """
+
+    index: int
+    elements: tuple[int, ...]
+    itinerary: tuple[int, ...]
+    basin: int
+    verified: bool
+    primitive: bool
+    divisor: int
+
+    @property
+    def minimum(self) -> int:
+        """The element of least absolute value (the negative one on a tie)."""
+        return self.elements[0]
+
+    @property
+    def length(self) -> int:
+        return len(self.elements)
+
+    @property
+    def content(self) -> tuple[int, ...]:
+        return _content(self.itinerary, self.divisor)
+
+    @property
+    def odd_steps(self) -> int | None:
+        """For two-branch maps, the number of odd elements."""
+        return self.content[1] if self.divisor == 2 else None
+
+    @property
+    def sign(self) -> int:
+        return 1 if self.minimum > 0 else (-1 if self.minimum < 0 else 0)
+
+    def to_dict(self) -> dict:
+        return {
+            "index": self.index,
+            "minimum": self.minimum,
+            "length": self.length,
+            "odd_steps": self.odd_steps,
+            "content": list(self.content),
+            "itinerary": format_itinerary(self.itinerary, self.divisor),
+            "elements": list(self.elements),
+            "primitive": self.primitive,
+            "verified": self.verified,
+            "basin": self.basin,
+            "label": EXACT.value,
+        }
+
+    def __repr__(self) -> str:
+        shown = ", ".join(map(str, self.elements[:8])) + (", ..." if self.length > 8 else "")
+        return (
+            f"GraphCycle(minimum={self.minimum}, length={self.length}, {{{shown}}}, "
+            f"basin={self.basin})"
+        )
+
+
+@dataclass(frozen=True, repr=False)
+class FunctionalGraph:
+    """The functional graph of a map over a range of starts, with its cycles and basins.
+
+    Attributes
+    ----------
+    map : Map
+    side : str
+        ``"positive"``, ``"negative"`` or ``"both"``.
+    start, to : int
+        The starts are ``start .. to`` on the positive side and
+        ``-to .. -start`` on the negative side.
+    max_steps : int
+        New values one walk may add before it stops (unresolved).
+    ceiling : int or None
+        Walks stop once ``|value|`` exceeds it (escaped).
+    graph : networkx.DiGraph
+    cycles : tuple of GraphCycle
+        Every cycle reached, sorted by ``|minimum|`` (the negative first on a tie).
+    starts : int
+        How many starts.
+    escaped, unresolved : int
+        Starts whose orbit passed the ceiling / stopped at the step cap.
+    """
+
+    map: Map
+    side: str
+    start: int
+    to: int
+    max_steps: int
+    ceiling: int | None
+    graph: nx.DiGraph = field(compare=False)
+    cycles: tuple[GraphCycle, ...]
+    starts: int
+    escaped: int
+    unresolved: int
+    labels: dict = field(
+        default_factory=lambda: {
+            "cycles": EXACT.value,
+            "basin": EXACT.value,
+            "escaped": EXACT.value,
+            "unresolved": EXACT.value,
+        },
+        compare=False,
+    )
+
+    # ------------------------------------------------------------ summaries
+    @property
+    def escaped_share(self) -> Fraction:
+        """Share of starts whose orbit passed the ceiling (not a proof of divergence)."""
+        return Fraction(self.escaped, self.starts)
+
+    @property
+    def unresolved_share(self) -> Fraction:
+        return Fraction(self.unresolved, self.starts)
+
+    def basin_share(self, cycle: GraphCycle) -> Fraction:
+        return Fraction(cycle.basin, self.starts)
+
+    def cycle_minima(self, *, in_range: bool = False) -> list[int]:
+        """The cycles' minima; with ``in_range`` only those that are starts.
+
+        ``in_range=True`` gives what a scan by cycle minimum over the same
+        range and side must report.
+        """
+        out = []
+        for c in self.cycles:
+            if in_range and not self._is_start(c.minimum):
+                continue
+            out.append(c.minimum)
+        return out
+
+    def _is_start(self, n: int) -> bool:
+        lo, hi = self.start, self.to
+        if self.side in ("positive", "both") and lo <= n <= hi:
+            return True
+        return self.side in ("negative", "both") and lo <= -n <= hi
+
+    def basin_of(self, n: int) -> GraphCycle | str:
+        """The cycle a node of the graph leads to, or ``"escaped"``/``"unresolved"``."""
+        if n not in self.graph:
+            raise InputError(f"{n} is not a node of this graph")
+        b = self.graph.nodes[n]["basin"]
+        if b == ESCAPED:
+            return "escaped"
+        if b == UNRESOLVED:
+            return "unresolved"
+        return self.cycles[b]
+
+    def to_dict(self) -> dict:
+        return {
+            "map": self.map.label,
+            "map_key": self.map.key,
+            "side": self.side,
+            "from": self.start,
+            "to": self.to,
+            "max_steps": self.max_steps,
+            "ceiling": self.ceiling,
+            "starts": self.starts,
+            "nodes": self.graph.number_of_nodes(),
+            "edges": self.graph.number_of_edges(),
+            "cycles": [
+                dict(
+                    c.to_dict(), basin_share=self.basin_share(c), in_range=self._is_start(c.minimum)
+                )
+                for c in self.cycles
+            ],
+            "escaped": self.escaped,
+            "escaped_share": self.escaped_share,
+            "unresolved": self.unresolved,
+            "unresolved_share": self.unresolved_share,
+            "escaped_note": (
+                "escaped counts the starts whose orbit passed the ceiling; "
+                "it is not a proof that those orbits diverge"
+            ),
+            "labels": dict(self.labels),
+        }
+
+    def __repr__(self) -> str:
+        rng = f"{self.start}..{self.to}"
+        mins = ", ".join(str(c.minimum) for c in self.cycles[:10]) + (
+            ", ..." if len(self.cycles) > 10 else ""
+        )
+        return (
+            f"FunctionalGraph({self.map.label}, {self.side} {rng}: "
+            f"{self.graph.number_of_nodes()} nodes, cycles with minima [{mins}], "
+            f"escaped {self.escaped}, unresolved {self.unresolved})"
+        )
+
+    # -------------------------------------------------------------- exports
+    def _export_graph(self) -> nx.DiGraph:
+        """A copy with graph attributes as strings (portable across formats)."""
+        g = self.graph.copy()
+        g.graph.clear()
+        g.graph.update(
+            {
+                "map": self.map.label,
+                "map_key": self.map.key,
+                "formula": self.map.formula(),
+                "side": self.side,
+                "range": f"{self.start}..{self.to}",
+                "max_steps": str(self.max_steps),
+                "ceiling": "none" if self.ceiling is None else str(self.ceiling),
+            }
+        )
+        return g
+
+    def write_graphml(self, path: str | os.PathLike) -> Path:
+        """Write GraphML (read back with ``networkx.read_graphml(path, node_type=int)``)."""
+        g = self._export_graph()
+        return _atomic_write(path, lambda p: nx.write_graphml(g, p))
+
+    def write_gexf(self, path: str | os.PathLike) -> Path:
+        """Write GEXF (read back with ``networkx.read_gexf(path, node_type=int)``)."""
+        g = self._export_graph()
+        return _atomic_write(path, lambda p: nx.write_gexf(g, p))
+
+    def dot_text(self) -> str:
+        """The graph in the DOT language (Graphviz), written directly."""
+        g = self._export_graph()
+        lines = [f"digraph {_dot_id(self.map.label)} {{"]
+        for key, value in g.graph.items():
+            lines.append(f"  {_dot_id(key)}={_dot_id(value)};")
+        for n, attrs in g.nodes(data=True):
+            a = ", ".join(f"{_dot_id(k)}={_dot_id(_dot_value(v))}" for k, v in attrs.items())
+            lines.append(f"  {_dot_id(str(n))} [{a}];")
+        for u, v in g.edges():
+            lines.append(f"  {_dot_id(str(u))} -> {_dot_id(str(v))};")
+        lines.append("}")
+        return "\n".join(lines) + "\n"
+
+    def write_dot(self, path: str | os.PathLike, *, engine: str = "auto") -> Path:
+        """Write DOT: through networkx's pydot bridge when pydot is installed
+        (``engine="auto"`` or ``"pydot"``), otherwise (or with
+        ``engine="builtin"``) with :meth:`dot_text`."""
+        if engine not in ("auto", "pydot", "builtin"):
+            raise InputError(f"engine must be 'auto', 'pydot' or 'builtin', got {engine!r}")
+        if engine in ("auto", "pydot"):
+            try:
+                import pydot  # noqa: F401
+            except ImportError:
+                if engine == "pydot":
+                    raise InputError("pydot is not installed; use engine='builtin'") from None
+            else:  # pragma: no cover - pydot is optional and not a dependency
+                g = self._export_graph()
+                return _atomic_write(path, lambda p: nx.nx_pydot.write_dot(g, p))
+        text = self.dot_text()
+        return _atomic_write(path, lambda p: Path(p).write_text(text))
+
+    def plot(self, path: str | os.PathLike, *, labels: bool | None = None, seed: int = 1) -> Path:
+        """Draw the graph to an image file (PNG, SVG, PDF by extension), for small graphs.
+
+        Nodes are coloured by basin (grey: beyond the ceiling or unresolved);
+        cycle nodes are outlined. Uses matplotlib's Agg canvas directly, so it
+        never changes the caller's backend. Positions are a spring layout
+        (deterministic for a given ``seed``); they are for looking only.
+        """
+        n = self.graph.number_of_nodes()
+        if n > PLOT_NODE_LIMIT:
+            raise InputError(
+                f"the graph has {n} nodes; plotting is for at most {PLOT_NODE_LIMIT} "
+                f"(export GraphML/GEXF for larger graphs)"
+            )
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+        from matplotlib.figure import Figure
+
+        g = self.graph
+        side = max(7.0, min(24.0, 0.8 * n**0.5))
+        fig = Figure(figsize=(side, side))
+        FigureCanvasAgg(fig)
+        ax = fig.add_subplot(1, 1, 1)
+        ax.set_axis_off()
+        pos = _layout(g, seed)
+        palette = [
+            "#1f77b4",
+            "#ff7f0e",
+            "#2ca02c",
+            "#d62728",
+            "#9467bd",
+            "#8c564b",
+            "#e377c2",
+            "#17becf",
+            "#bcbd22",
+        ]
+        colors = []
+        for v in g.nodes:
+            b = g.nodes[v]["basin"]
+            colors.append("#bbbbbb" if b < 0 else palette[b % len(palette)])
+        edgecolors = ["black" if g.nodes[v]["on_cycle"] else "none" for v in g.nodes]
+        size = 300 if n <= 60 else (80 if n <= 400 else 20)
+        nx.draw_networkx_edges(g, pos, ax=ax, arrows=n <= 400, width=0.6, alpha=0.6)
+        nx.draw_networkx_nodes(
+            g, pos, ax=ax, node_color=colors, edgecolors=edgecolors, node_size=size
+        )
+        if labels if labels is not None else n <= 150:
+            nx.draw_networkx_labels(g, pos, ax=ax, font_size=7 if n > 60 else 9)
+        mins = ", ".join(str(c.minimum) for c in self.cycles[:8])
+        ax.set_title(
+            f"{self.map.label}, {self.side} starts {self.start}..{self.to}: "
+            f"cycles with minima {mins}; escaped {self.escaped}, unresolved {self.unresolved}",
+            fontsize=9,
+        )
+        return _atomic_write(path, lambda p: fig.savefig(p, dpi=100, format=_fmt(path)))
+
+
+def _layout(g: nx.DiGraph, seed: int) -> dict:
+    """Spring layout per weakly connected component, components on a grid (largest first)."""
+    comps = sorted(nx.weakly_connected_components(g), key=lambda c: (-len(c), min(c, key=abs)))
+    if not comps:
+        return {}
+    cols = math.ceil(math.sqrt(len(comps)))
+    biggest = len(comps[0])
+    pos = {}
+    for i, comp in enumerate(comps):
+        sub = g.subgraph(comp)
+        radius = 0.45 * math.sqrt(len(comp) / biggest)
+        if len(comp) == 1:
+            local = {next(iter(comp)): (0.0, 0.0)}
+        else:
+            local = nx.spring_layout(sub, seed=seed, method="force", scale=radius)
+        cx, cy = i % cols, -(i // cols)
+        for v, (x, y) in local.items():
+            pos[v] = (cx + float(x), cy + float(y))
+    return pos
+
+
+def _fmt(path: str | os.PathLike) -> str:
+    ext = Path(path).suffix.lower().lstrip(".")
+    return ext if ext in ("png", "svg", "pdf") else "png"
+
+
+def _dot_id(text: str) -> str:
+    s = str(text).replace("\\", "\\\\").replace('"', '\\"').replace("\n", "\\n")
+    return f'"{s}"'
+
+
+def _dot_value(v) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    return str(v)
+
+
+def _atomic_write(path: str | os.PathLike, writer: Callable[[str], object]) -> Path:
+    """:func:`cyclewright.cycles.files.atomic_write`, refusing a directory that does not exist with one line."""
+    target = Path(path)
+    directory = target.parent if str(target.parent) else Path(".")
+    if not directory.is_dir():
+        raise InputError(f"cannot write {target}: directory {directory} does not exist")
+    return atomic_write(target, writer)
+
+
+def _check_int(value, what: str) -> int:
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise InputError(f"{what} must be an integer, got {value!r}")
+    return int(value)
+
+
+def functional_graph(
+    m: Map,
+    to: int,
+    *,
+    start: int = 1,
+    side: str = "positive",
+    max_steps: int = DEFAULT_MAX_STEPS,
+    ceiling: int | None = DEFAULT_CEILING,
+    progress: Callable[[int, int], None] | None = None,
+) -> FunctionalGraph:
+    """Build the functional graph of ``m`` from every start in a range.
+
+    Starts are taken in order of absolute value (positive before negative on
+    a tie). From each start the orbit is followed exactly; the walk stops as
+    soon as it reaches a node already in the graph (a known node, or a node
+    of its own path: a new cycle), when a value exceeds ``ceiling`` in
+    absolute value (the value is kept as a frontier node), or after
+    ``max_steps`` new values (the last one is kept as an unresolved frontier
+    node). Cycles are the attracting components of the graph
+    (:func:`networkx.attracting_components`) that contain an edge.
+
+    Parameters
+    ----------
+    m : Map
+    to : int
+        Largest start (in absolute value).
+    start : int
+        Smallest start (in absolute value), at least 1.
+    side : {"positive", "negative", "both"}
+    max_steps : int
+        New values per walk before it stops (unresolved).
+    ceiling : int or None
+        Stop a walk once ``|value| > ceiling``; None for no ceiling (then
+        only the step cap stops an escaping orbit).
+    progress : callable, optional
+        Called as ``progress(done, total)`` every few thousand starts.
+
+    Returns
+    -------
+    FunctionalGraph
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> g = functional_graph(maps.get("3x+1"), 30, side="both")
+    >>> [(c.minimum, c.length, c.basin) for c in g.cycles]
+    [(-1, 1, 14), (1, 2, 30), (-5, 3, 12), (-17, 11, 4)]
+    >>> g.escaped, g.unresolved
+    (0, 0)
+    >>> g5 = functional_graph(maps.get("5x+1"), 20, ceiling=10**6)
+    >>> g5.cycle_minima(), g5.escaped
+    ([1, 13, 17], 5)
+
+    References
+    ----------
+    Lagarias 1985 (cycles of 3x+1 on both sides); see the module docstring.
+    """
+    if not isinstance(m, Map):
+        raise InputError(f"expected a Map, got {type(m).__name__}")
+    to = _check_int(to, "to")
+    start = _check_int(start, "start")
+    max_steps = _check_int(max_steps, "max_steps")
+    if side not in ("positive", "negative", "both"):
+        raise InputError(f"side must be 'positive', 'negative' or 'both', got {side!r}")
+    if start < 1:
+        raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
+    if to < start:
+        raise InputError(f"empty range: {start}..{to}")
+    nstarts = (to - start + 1) * (2 if side == "both" else 1)
+    if nstarts > MAX_STARTS:
+        raise InputError(
+            f"{nstarts} starts is too many for a graph held in memory (at most {MAX_STARTS}); "
+            f"scan larger ranges by cycle minimum instead"
+        )
+    if max_steps < 1:
+        raise InputError(f"max_steps must be at least 1, got {max_steps}")
+    if ceiling is not None:
+        ceiling = _check_int(ceiling, "ceiling")
+        if ceiling < to:
+            raise InputError(f"the ceiling {ceiling} is below the largest start {to}")
+
+    step = m.step
+    succ: dict[int, int] = {}
+    frontier: dict[int, str] = {}
+    starts: list[int] = []
+    for s in range(start, to + 1):
+        if side in ("positive", "both"):
+            starts.append(s)
+        if side in ("negative", "both"):
+            starts.append(-s)
+    total = len(starts)
+    for i, s in enumerate(starts):
+        if progress is not None and i % 4096 == 0:
+            progress(i, total)
+        v = s
+        new = 0
+        while v not in succ and v not in frontier:
+            w = step(v)
+            succ[v] = w
+            new += 1
+            if ceiling is not None and abs(w) > ceiling:
+                if w not in succ:
+                    frontier.setdefault(w, "beyond_ceiling")
+                break
+            if new >= max_steps and w not in succ and w not in frontier:
+                frontier[w] = "unresolved"
+                break
+            v = w
+    if progress is not None:
+        progress(total, total)
+
+    g = nx.DiGraph()
+    g.add_nodes_from(succ)
+    g.add_nodes_from(frontier)
+    g.add_edges_from(succ.items())
+
+    # Attracting components: cycles (with an edge) and frontier sinks.
+    d = m.divisor
+    raw_cycles = []
+    for comp in nx.attracting_components(g):
+        node = next(iter(comp))
+        if node in frontier:
+            continue
+        raw_cycles.append(comp)
+    cycles_sorted = []
+    for comp in raw_cycles:
+        least = cycle_representative(list(comp))
+        elems = [least]
+        v = succ[least]
+        while v != least:
+            elems.append(v)
+            v = succ[v]
+        cycles_sorted.append(tuple(elems))
+    cycles_sorted.sort(key=lambda c: (abs(c[0]), c[0]))
+
+    basin_of: dict[int, int] = {}
+    sinks: list[tuple[int, int]] = []
+    for idx, elems in enumerate(cycles_sorted):
+        sinks.append((elems[0], idx))
+    for n, kind in frontier.items():
+        sinks.append((n, ESCAPED if kind == "beyond_ceiling" else UNRESOLVED))
+    on_cycle = set()
+    for elems in cycles_sorted:
+        on_cycle.update(elems)
+    for rep, idx in sinks:
+        basin_of[rep] = idx
+        for u in nx.ancestors(g, rep):
+            basin_of[u] = idx
+
+    start_set = set(starts)
+    counts: dict[int, int] = {}
+    for s in starts:
+        b = basin_of[s]
+        counts[b] = counts.get(b, 0) + 1
+
+    nx.set_node_attributes(g, {n: n % d for n in g.nodes}, "residue")
+    nx.set_node_attributes(g, {n: n in start_set for n in g.nodes}, "is_start")
+    nx.set_node_attributes(g, {n: n in on_cycle for n in g.nodes}, "on_cycle")
+    nx.set_node_attributes(g, basin_of, "basin")
+    nx.set_node_attributes(g, {n: frontier.get(n, "") for n in g.nodes}, "frontier")
+
+    found = []
+    for idx, elems in enumerate(cycles_sorted):
+        word = tuple(e % d for e in elems)
+        sol = solve(m, primitive_root(word))
+        verified = (
+            sol.integral
+            and len(sol.elements) == len(elems)
+            and {int(e) for e in sol.elements} == set(elems)
+        )
+        found.append(
+            GraphCycle(
+                index=idx,
+                elements=elems,
+                itinerary=word,
+                basin=counts.get(idx, 0),
+                verified=verified,
+                primitive=lagarias_primitive(m, list(elems)),
+                divisor=d,
+            )
+        )
+    return FunctionalGraph(
+        map=m,
+        side=side,
+        start=start,
+        to=to,
+        max_steps=max_steps,
+        ceiling=ceiling,
+        graph=g,
+        cycles=tuple(found),
+        starts=total,
+        escaped=counts.get(ESCAPED, 0),
+        unresolved=counts.get(UNRESOLVED, 0),
+    )

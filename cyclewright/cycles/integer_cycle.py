@@ -1,0 +1,202 @@
+"""One integer cycle of a map, verified exactly.
+
+Inside
+------
+- :class:`FoundCycle` -- one integer cycle: minimum, length, odd steps or
+  content, itinerary, elements, primitivity (of the word; Lagarias').
+- :func:`verified_cycle`, :func:`cycle_from_element` -- build one from a
+  start known to lie on a cycle, checked in exact arithmetic and by
+  :func:`cyclewright.cycles.solver.solve` on its itinerary.
+
+References
+----------
+.. [1] J. C. Lagarias, "The set of rational cycles for the 3x+1 problem",
+   Acta Arithmetica 56 (1990) 33-53 (primitive cycles).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from cyclewright.maps import Map
+
+from .itinerary import content as word_content
+from .itinerary import format_itinerary, is_primitive
+from .labels import EXACT
+from .solver import cycle_representative, lagarias_primitive, solve
+
+__all__ = [
+    "FoundCycle",
+    "verified_cycle",
+    "cycle_from_element",
+]
+
+
+# --------------------------------------------------------------------------- cycles
+@dataclass(frozen=True)
+class FoundCycle:
+    """An integer cycle found by the scan (every figure exact).
+
+    Attributes
+    ----------
+    side : str
+        ``"positive"`` or ``"negative"``: the sign of the minimum.
+    minimum : int
+        The element of least absolute value (negative for negative cycles).
+    length : int
+        Number of elements (the period).
+    odd_steps : int or None
+        For two-branch maps: steps through residue 1.
+    content : tuple of int
+        How many steps go through each residue.
+    itinerary : str
+        The residues visited from the minimum (the parity vector for d = 2).
+    elements : tuple of int
+        The cycle from its minimum.
+    primitive_itinerary : bool
+        The itinerary is not a power of a shorter word.
+    lagarias_primitive : bool
+        The elements' gcd with the offsets is 1 (Lagarias 1990); a
+        non-primitive cycle is a multiple of a cycle of a map with smaller offsets.
+    denominator : int or None
+        ``d^k - A`` of the itinerary (None when it is 0, so ``solve`` has no
+        unique fixed point; the cycle is then proved by iteration alone).
+    """
+
+    side: str
+    minimum: int
+    length: int
+    odd_steps: int | None
+    content: tuple[int, ...]
+    itinerary: str
+    elements: tuple[int, ...]
+    primitive_itinerary: bool
+    lagarias_primitive: bool
+    denominator: int | None
+    label: str = EXACT.value
+
+    def to_record(self) -> dict:
+        """Plain JSON-ready data (the store keeps this)."""
+        return {
+            "side": self.side,
+            "minimum": self.minimum,
+            "length": self.length,
+            "odd_steps": self.odd_steps,
+            "content": list(self.content),
+            "itinerary": self.itinerary,
+            "elements": list(self.elements),
+            "primitive_itinerary": self.primitive_itinerary,
+            "lagarias_primitive": self.lagarias_primitive,
+            "denominator": self.denominator,
+            "label": self.label,
+        }
+
+    to_dict = to_record
+
+    @classmethod
+    def from_record(cls, rec: dict) -> FoundCycle:
+        return cls(
+            rec["side"],
+            int(rec["minimum"]),
+            int(rec["length"]),
+            rec["odd_steps"],
+            tuple(rec["content"]),
+            rec["itinerary"],
+            tuple(int(e) for e in rec["elements"]),
+            bool(rec["primitive_itinerary"]),
+            bool(rec["lagarias_primitive"]),
+            rec["denominator"],
+            rec.get("label", EXACT.value),
+        )
+
+    def __repr__(self) -> str:
+        shown = ", ".join(str(e) for e in self.elements[:6])
+        more = ", ..." if self.length > 6 else ""
+        kind = "" if self.lagarias_primitive else ", not primitive"
+        steps = f", {self.odd_steps} odd" if self.odd_steps is not None else ""
+        return (
+            f"FoundCycle(min {self.minimum}, length {self.length}{steps}: {{{shown}{more}}}{kind})"
+        )
+
+
+def verified_cycle(m: Map, side: str, start: int, length: int) -> FoundCycle:
+    """Rebuild and prove the cycle of ``start`` (kernel coordinates) in exact arithmetic.
+
+    The orbit of ``x0 = +-start`` under ``m`` is iterated ``length`` steps; it
+    must return to ``x0`` exactly then, with ``x0`` its representative. When
+    the itinerary's denominator is non-zero, :func:`~cyclewright.cycles.solver.solve`
+    must give the same integral, realized cycle. Anything else is an internal
+    error (never reported as a cycle).
+
+    >>> from cyclewright import maps
+    >>> verified_cycle(maps.get("3x+1"), "negative", 17, 11).elements[:4]
+    (-17, -25, -37, -55)
+    """
+    d = m.divisor
+    x0 = start if side == "positive" else -start
+    word = []
+    elements = []
+    x = x0
+    for _ in range(length):
+        elements.append(x)
+        word.append(x % d)
+        x = m.step(x)
+    if x != x0 or len(set(elements)) != length or cycle_representative(elements) != x0:
+        raise RuntimeError(f"internal error: {x0} is not the minimum of a cycle of length {length}")
+    c = solve(m, word)
+    if c.has_fixed_point:
+        if not (c.realized and c.integral and c.fixed_point == x0 and c.primitive_itinerary):
+            raise RuntimeError(f"internal error: solve disagrees with the cycle through {x0}")
+        lag = bool(c.lagarias_primitive)
+        prim = True
+        denominator = int(c.denominator)
+    else:
+        lag = lagarias_primitive(m, elements)
+        prim = is_primitive(word)
+        denominator = None
+    cont = word_content(word, d)
+    return FoundCycle(
+        side="positive" if x0 > 0 else "negative",
+        minimum=x0,
+        length=length,
+        odd_steps=cont[1] if d == 2 else None,
+        content=cont,
+        itinerary=format_itinerary(word, d),
+        elements=tuple(elements),
+        primitive_itinerary=prim,
+        lagarias_primitive=lag,
+        denominator=denominator,
+    )
+
+
+def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
+    """The verified cycle record of the cycle whose minimum is ``x0`` (any sign, 0 allowed)."""
+    if x0 == 0:
+        x, elems, word = 0, [], []
+        for _ in range(length):
+            elems.append(x)
+            word.append(x % m.divisor)
+            x = m.step(x)
+        if x != 0:
+            raise RuntimeError(f"internal error: 0 does not return after {length} steps")
+        cont = word_content(word, m.divisor)
+        return FoundCycle(
+            "zero",
+            0,
+            length,
+            cont[1] if m.divisor == 2 else None,
+            cont,
+            format_itinerary(word, m.divisor),
+            tuple(elems),
+            is_primitive(word),
+            lagarias_primitive(m, elems),
+            m.divisor**length - _A(m, word),
+        )
+    return verified_cycle(m, "positive" if x0 > 0 else "negative", abs(x0), length)
+
+
+def _A(m: Map, word) -> int:
+    A = 1
+    for r in word:
+        A *= m.branches[r].multiplier
+    return A

@@ -1,0 +1,305 @@
+"""Orbits of single integers, with stopping time and cycle detection.
+
+Inside
+------
+- :func:`brent` -- Brent's cycle detection for any function, with a step cap.
+- :func:`orbit` -- follow ``n`` under a map: values, itinerary, stopping time,
+  tail length and the cycle entered, peak; for ``ax+b`` maps also the classic
+  (undivided) step count and peak.
+- :class:`Orbit` -- the result.
+
+Conventions
+-----------
+*Stopping time* of ``n != 0``: the least ``i >= 1`` with ``|T^i(n)| < |n|``
+(for positive ``n`` this is Terras' stopping time; for negative ``n`` it
+mirrors it on the absolute value). ``None`` for ``n = 0`` or when the orbit
+does not get below ``|n|`` within the cap.
+
+*Cycle minimum*: the cycle element of least absolute value (the negative one
+on a tie), so ``-5`` for the cycle ``{-5, -7, -10}``.
+
+*Total steps*: steps until the orbit first reaches its cycle's minimum (for
+3x+1, the steps to reach 1). For a divided ``ax+b`` map the classic count of
+the undivided map is ``total_steps + odd steps among them`` (OEIS A006577 for 3x+1).
+
+References
+----------
+.. [1] R. P. Brent, "An improved Monte Carlo factorization algorithm",
+   BIT 20 (1980) 176-184 (the cycle-finding method).
+.. [2] R. Terras, Acta Arithmetica 30 (1976) 241-252 (stopping time).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import TypeVar
+
+from cyclewright.maps import Map
+
+from .itinerary import format_itinerary
+from .labels import EXACT
+
+__all__ = ["brent", "orbit", "Orbit", "DEFAULT_MAX_STEPS"]
+
+T = TypeVar("T")
+DEFAULT_MAX_STEPS = 100_000
+
+
+def brent(f: Callable[[T], T], x0: T, max_steps: int) -> tuple[int, int] | None:
+    """Brent's cycle detection: ``(mu, lam)`` = (tail length, cycle length).
+
+    Uses at most about ``3 * max_steps`` evaluations of ``f`` and O(1) memory;
+    returns None when no cycle closes within ``max_steps`` steps of ``x0``.
+
+    Parameters
+    ----------
+    f : callable
+    x0 : start
+    max_steps : int
+        Give up when ``mu + lam`` would exceed this many steps.
+
+    Examples
+    --------
+    >>> brent(lambda n: n // 2 if n % 2 == 0 else 3 * n + 1, 7, 1000)
+    (14, 3)
+    """
+    power = lam = 1
+    tortoise = x0
+    hare = f(x0)
+    steps = 1
+    while tortoise != hare:
+        if power == lam:
+            tortoise = hare
+            power *= 2
+            lam = 0
+        hare = f(hare)
+        lam += 1
+        steps += 1
+        if steps > 2 * max_steps + 2:
+            return None
+    tortoise = hare = x0
+    for _ in range(lam):
+        hare = f(hare)
+    mu = 0
+    while tortoise != hare:
+        tortoise = f(tortoise)
+        hare = f(hare)
+        mu += 1
+        if mu > max_steps:
+            return None
+    if mu + lam > max_steps:
+        return None
+    return mu, lam
+
+
+@dataclass(frozen=True)
+class Orbit:
+    """The orbit of one integer (all figures exact).
+
+    Attributes
+    ----------
+    start : int
+    values : tuple of int
+        ``n, T(n), ...`` up to and including the first return to the cycle's
+        entry point (``mu + lam + 1`` values), or up to the cap/ceiling.
+    itinerary : tuple of int
+        Residues of ``values[:-1]``.
+    stopping_time : int or None
+        See the module docstring.
+    tail : int or None
+        Steps before the orbit enters its cycle (``mu``).
+    cycle : tuple of int
+        The cycle entered, rotated to start at its minimum; empty if none found.
+    total_steps : int or None
+        Steps until the orbit first reaches the cycle's minimum.
+    peak : int
+        The value of largest absolute value seen.
+    status : str
+        ``"cycle"``, ``"capped"`` (no cycle within ``max_steps``) or
+        ``"escaped"`` (passed the ceiling).
+    """
+
+    map: Map
+    start: int
+    values: tuple[int, ...]
+    itinerary: tuple[int, ...]
+    stopping_time: int | None
+    tail: int | None
+    cycle: tuple[int, ...]
+    total_steps: int | None
+    peak: int
+    status: str
+    max_steps: int
+    ceiling: int | None
+
+    @property
+    def steps(self) -> int:
+        """Steps taken (``len(values) - 1``)."""
+        return len(self.values) - 1
+
+    @property
+    def cycle_minimum(self) -> int | None:
+        return self.cycle[0] if self.cycle else None
+
+    @property
+    def undivided_total_steps(self) -> int | None:
+        """For divided ``ax+b`` maps: ``total_steps`` plus the odd steps among them."""
+        if self.map.ax_b is None or self.total_steps is None:
+            return None
+        return self.total_steps + sum(self.itinerary[: self.total_steps])
+
+    @property
+    def undivided_peak(self) -> int | None:
+        """For divided ``ax+b`` maps: the peak of the undivided trajectory (``a n + b`` before halving).
+
+        Taken over the values listed (through the cycle, or up to the cap).
+        """
+        ab = self.map.ax_b
+        if ab is None:
+            return None
+        a, b = ab
+        best = self.peak
+        for v, r in zip(self.values, self.itinerary):
+            if r == 1 and abs(a * v + b) > abs(best):
+                best = a * v + b
+        return best
+
+    def to_dict(self, max_values: int | None = 1000) -> dict:
+        vals = list(self.values if max_values is None else self.values[:max_values])
+        d = self.map.divisor
+        return {
+            "map": self.map.label,
+            "map_key": self.map.key,
+            "start": self.start,
+            "status": self.status,
+            "steps": self.steps,
+            "stopping_time": self.stopping_time,
+            "tail": self.tail,
+            "cycle": list(self.cycle),
+            "cycle_minimum": self.cycle_minimum,
+            "cycle_length": len(self.cycle),
+            "total_steps": self.total_steps,
+            "peak": self.peak,
+            "undivided_total_steps": self.undivided_total_steps,
+            "undivided_peak": self.undivided_peak,
+            "values": vals,
+            "values_truncated": len(vals) < len(self.values),
+            "itinerary": format_itinerary(self.itinerary[: len(vals)], d),
+            "max_steps": self.max_steps,
+            "ceiling": self.ceiling,
+            "label": EXACT.value,
+        }
+
+    def __repr__(self) -> str:
+        cyc = (
+            "{"
+            + ", ".join(map(str, self.cycle[:8]))
+            + (", ..." if len(self.cycle) > 8 else "")
+            + "}"
+        )
+        return (
+            f"Orbit({self.map.label}, {self.start}: {self.status}, steps={self.steps}, "
+            f"stopping_time={self.stopping_time}, cycle={cyc if self.cycle else None}, peak={self.peak})"
+        )
+
+
+def orbit(m: Map, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | None = None) -> Orbit:
+    """Follow ``n`` under ``m`` until it closes a cycle, passes ``ceiling`` or ``max_steps``.
+
+    Parameters
+    ----------
+    m : Map
+    n : int
+    max_steps : int
+        Cap on the number of steps (the orbit never loops forever).
+    ceiling : int, optional
+        Stop with status ``"escaped"`` once ``|value|`` exceeds this.
+
+    Returns
+    -------
+    Orbit
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> o = orbit(maps.get("3x+1"), 27)
+    >>> o.undivided_total_steps, o.undivided_peak      # OEIS A006577: 111; peak 9232
+    (111, 9232)
+    >>> orbit(maps.get("3x+1"), -17).cycle[:3]
+    (-17, -25, -37)
+    >>> orbit(maps.get("5x+1"), 7, max_steps=200).status
+    'capped'
+    """
+    if isinstance(n, bool) or not isinstance(n, int):
+        raise TypeError(f"orbit start must be an integer, got {n!r}")
+    if max_steps < 1:
+        raise ValueError("max_steps must be at least 1")
+    if ceiling is not None and ceiling < abs(n):
+        raise ValueError(f"ceiling {ceiling} is below |start| = {abs(n)}")
+    d = m.divisor
+    step = m.step
+
+    # First pass: plain iteration, recording values, until a repeat is certain
+    # (Brent) or the cap/ceiling is hit. Brent runs alongside on the same values
+    # so memory for detection is O(1); the stored values are the output.
+    values = [n]
+    status = "capped"
+    power = lam = 1
+    tortoise_idx = 0
+    found_lam = None
+    while len(values) - 1 < max_steps:
+        v = step(values[-1])
+        values.append(v)
+        if ceiling is not None and abs(v) > ceiling:
+            status = "escaped"
+            break
+        if values[tortoise_idx] == v:
+            found_lam = lam
+            break
+        if power == lam:
+            tortoise_idx = len(values) - 1
+            power *= 2
+            lam = 0
+        lam += 1
+
+    tail = None
+    cycle: tuple[int, ...] = ()
+    total_steps = None
+    if found_lam is not None:
+        lam = found_lam
+        # mu: the first index i with values[i] == values[i + lam].
+        mu = 0
+        while values[mu] != values[mu + lam]:
+            mu += 1
+        values = values[: mu + lam + 1]
+        raw_cycle = values[mu : mu + lam]
+        least = min(raw_cycle, key=lambda q: (abs(q), q))
+        j = raw_cycle.index(least)
+        cycle = tuple(raw_cycle[j:] + raw_cycle[:j])
+        tail = mu
+        total_steps = values.index(least)
+        status = "cycle"
+
+    itinerary = tuple(v % d for v in values[:-1])
+    stopping = None
+    if n != 0:
+        for i in range(1, len(values)):
+            if abs(values[i]) < abs(n):
+                stopping = i
+                break
+    peak = max(values, key=lambda q: (abs(q), q))
+    return Orbit(
+        m,
+        n,
+        tuple(values),
+        itinerary,
+        stopping,
+        tail,
+        cycle,
+        total_steps,
+        peak,
+        status,
+        max_steps,
+        ceiling,
+    )

@@ -1,0 +1,231 @@
+"""Where the chunks of a scan run: a local process pool or a Dask distributed cluster.
+
+Inside
+------
+- :class:`LocalExecutor` -- a pool of worker processes on this machine (all
+  cores by default); one worker, or one task, runs in the calling process.
+- :class:`DaskExecutor` -- the same tasks on a Dask distributed cluster,
+  given the scheduler's address (optional extra ``cluster``). A scheduler
+  that cannot be reached within the timeout raises
+  :class:`~cyclewright.cycles.errors.InputError` with one line.
+- :func:`make_executor` -- by name (``"local"`` or ``"dask"``).
+
+Both expose ``map_unordered(fn, tasks)``: the results as they complete, with
+a bounded number of tasks in flight (memory does not grow with the number of
+tasks), and ``close()``. The functions and tasks must be picklable; the scan
+sends small tuples and gets back plain data.
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import os
+import socket
+import time
+from collections.abc import Callable, Iterable, Iterator
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from urllib.parse import urlsplit
+
+from ..errors import InputError
+
+__all__ = ["LocalExecutor", "DaskExecutor", "make_executor", "DEFAULT_DASK_TIMEOUT"]
+
+DEFAULT_DASK_TIMEOUT = 10.0
+
+
+def default_workers() -> int:
+    """All cores of this machine."""
+    return os.cpu_count() or 1
+
+
+class LocalExecutor:
+    """Run tasks in worker processes on this machine.
+
+    Parameters
+    ----------
+    workers : int, optional
+        Number of processes (default: all cores). With 1 worker, or a single
+        task, everything runs in the calling process.
+    prepare : callable, optional
+        Called once in the parent before the pool starts (with the fork start
+        method the workers inherit what it loaded, e.g. compiled kernels).
+
+    Examples
+    --------
+    >>> ex = LocalExecutor(1)
+    >>> sorted(ex.map_unordered(abs, [-2, 1, -3]))
+    [1, 2, 3]
+    """
+
+    name = "local"
+
+    def __init__(self, workers: int | None = None, prepare: Callable[[], None] | None = None):
+        if workers is not None and (isinstance(workers, bool) or int(workers) < 1):
+            raise InputError(f"workers must be at least 1, got {workers}")
+        self.workers = int(workers) if workers is not None else default_workers()
+        self.prepare = prepare
+
+    def map_unordered(self, fn: Callable, tasks: Iterable) -> Iterator:
+        it = iter(tasks)
+        head = [t for _, t in zip(range(2 * self.workers), it)]
+        if self.workers == 1 or len(head) <= 1:
+            for t in head:
+                yield fn(t)
+            for t in it:
+                yield fn(t)
+            return
+        if self.prepare is not None:
+            self.prepare()
+        methods = multiprocessing.get_all_start_methods()
+        ctx = multiprocessing.get_context("fork" if "fork" in methods else None)
+        n = min(self.workers, len(head))
+        pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        try:
+            pending = {pool.submit(fn, t) for t in head}
+            while pending:
+                done, pending = wait(pending, return_when=FIRST_COMPLETED)
+                for f in done:
+                    nxt = next(it, None)
+                    if nxt is not None:
+                        pending.add(pool.submit(fn, nxt))
+                    yield f.result()
+        finally:
+            pool.shutdown(wait=True, cancel_futures=True)
+
+    def close(self) -> None:
+        pass
+
+    def describe(self) -> str:
+        return f"local ({self.workers} worker{'s' if self.workers != 1 else ''})"
+
+
+def _probe(address: str, timeout: float) -> None:
+    """Fail fast, with one line, when a tcp scheduler address does not answer."""
+    text = address if "://" in address else f"tcp://{address}"
+    parts = urlsplit(text)
+    if parts.scheme not in ("tcp", "tls"):
+        return  # other transports: let the client try
+    try:
+        host, port = parts.hostname, parts.port
+    except ValueError:
+        raise InputError(f"{address!r} is not a scheduler address like tcp://HOST:PORT") from None
+    if not host or not port:
+        raise InputError(f"{address!r} is not a scheduler address like tcp://HOST:PORT")
+    deadline = time.monotonic() + timeout
+    try:
+        with socket.create_connection((host, port), timeout=timeout) as sock:
+            if parts.scheme == "tcp":
+                # A scheduler greets every new connection at once (its comm
+                # handshake); a port that accepts and stays silent is not one.
+                sock.settimeout(max(0.1, deadline - time.monotonic()))
+                if not sock.recv(1):
+                    raise ConnectionResetError("connection closed without a greeting")
+    except OSError as exc:
+        if isinstance(exc, socket.timeout):
+            why = "no answer"
+        else:
+            why = exc.strerror or str(exc)
+        raise InputError(
+            f"cannot reach the Dask scheduler at {address} ({why}, timeout {timeout:g} s)"
+        ) from None
+
+
+class DaskExecutor:
+    """Run tasks on a Dask distributed cluster.
+
+    Parameters
+    ----------
+    address : str
+        The scheduler, e.g. ``tcp://10.0.0.5:8786``.
+    timeout : float
+        Seconds to wait for the scheduler before giving up.
+    window : int, optional
+        Tasks in flight at once (default: twice the cluster's threads, at least 4).
+    """
+
+    name = "dask"
+
+    def __init__(
+        self, address: str, timeout: float = DEFAULT_DASK_TIMEOUT, window: int | None = None
+    ):
+        try:
+            import distributed
+        except ImportError:
+            raise InputError(
+                "the dask executor needs the optional extra 'cluster' "
+                "(pip install 'cyclewright[cluster]')"
+            ) from None
+        if not address or not isinstance(address, str):
+            raise InputError(
+                "the dask executor needs a scheduler address (--scheduler tcp://HOST:PORT)"
+            )
+        self.address = address
+        _probe(address, timeout)
+        try:
+            self.client = distributed.Client(address, timeout=f"{timeout}s", set_as_default=False)
+        except (OSError, TimeoutError, ValueError) as exc:
+            msg = " ".join(str(exc).split())
+            raise InputError(f"cannot reach the Dask scheduler at {address}: {msg}") from None
+        self._distributed = distributed
+        if window is None:
+            try:
+                threads = sum(self.client.nthreads().values())
+            except Exception:  # pragma: no cover - defensive
+                threads = 2
+            window = max(4, 2 * threads)
+        self.window = window
+
+    def map_unordered(self, fn: Callable, tasks: Iterable) -> Iterator:
+        it = iter(tasks)
+        live = [self.client.submit(fn, t, pure=False) for _, t in zip(range(self.window), it)]
+        if not live:
+            return
+        queue = self._distributed.as_completed(live, loop=self.client.loop)
+        try:
+            for fut in queue:
+                nxt = next(it, None)
+                if nxt is not None:
+                    new = self.client.submit(fn, nxt, pure=False)
+                    live.append(new)
+                    queue.add(new)
+                result = fut.result()
+                live.remove(fut)
+                yield result
+        finally:
+            for fut in live:
+                fut.cancel()
+
+    def close(self) -> None:
+        try:
+            self.client.close()
+        except Exception:  # pragma: no cover - closing is best effort
+            pass
+
+    def describe(self) -> str:
+        return f"dask ({self.address})"
+
+
+def make_executor(
+    name: str,
+    *,
+    workers: int | None = None,
+    scheduler: str | None = None,
+    timeout: float = DEFAULT_DASK_TIMEOUT,
+    prepare: Callable[[], None] | None = None,
+):
+    """``"local"`` -> :class:`LocalExecutor`; ``"dask"`` -> :class:`DaskExecutor` (needs ``scheduler``).
+
+    >>> make_executor("local", workers=2).describe()
+    'local (2 workers)'
+    """
+    if name == "local":
+        if scheduler:
+            raise InputError("--scheduler applies to the dask executor only (use --executor dask)")
+        return LocalExecutor(workers, prepare)
+    if name == "dask":
+        if not scheduler:
+            raise InputError(
+                "the dask executor needs --scheduler ADDRESS (e.g. tcp://127.0.0.1:8786)"
+            )
+        return DaskExecutor(scheduler, timeout)
+    raise InputError(f"unknown executor {name!r}: use 'local' or 'dask'")

@@ -1,0 +1,209 @@
+"""What a scan returns, and what its progress callback receives."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from cyclewright.maps import Map
+
+from ..integer_cycle import FoundCycle
+from ..labels import CERTIFIED, EXACT
+from .store import code_version
+
+__all__ = [
+    "ScanProgress",
+    "ScanResult",
+]
+
+
+# --------------------------------------------------------------------------- results
+@dataclass(frozen=True)
+class ScanProgress:
+    """Progress of a scan, as passed to the ``progress`` callback."""
+
+    side: str
+    done: int
+    total: int
+    unresolved: int
+    elapsed: float
+    computed: int
+
+    @property
+    def rate(self) -> float:
+        """Starts computed per second in this run (a measurement, float)."""
+        return self.computed / self.elapsed if self.elapsed > 0 else 0.0
+
+
+@dataclass(frozen=True)
+class ScanResult:
+    """The outcome of :func:`scan`.
+
+    Attributes
+    ----------
+    map : Map
+    start, to : int
+        The range of absolute values scanned.
+    sides : tuple of str
+    max_steps : int
+    max_cycle_length : int or None
+    counts : dict
+        ``side -> {"drops", "cycles", "other_cycle", "unresolved", "beyond_length"}``.
+    cycles : tuple of FoundCycle
+        Every cycle whose minimum lies in the range, by side then ``|minimum|``.
+    unresolved_count, unresolved_escaped : dict
+        Per side: unresolved starts, and how many of them passed 2^63.
+    unresolved_first : dict
+        Per side: the first unresolved starts (signed); all are in the store.
+    sieved : dict
+        Per side: starts decided by the residue sieve without iteration.
+    sieve_depth : dict
+        Per side: the sieve's depth ``K`` (classes mod ``d^K``).
+    store_path : str or None
+    chunk_size, chunks_total, chunks_reused : int
+    seconds : float
+        Wall time of this call (a measurement).
+    computed : int
+        Starts classified in this call (the rest came from the store).
+    executor : str
+    """
+
+    map: Map
+    start: int
+    to: int
+    sides: tuple[str, ...]
+    max_steps: int
+    max_cycle_length: int | None
+    counts: dict
+    cycles: tuple[FoundCycle, ...]
+    unresolved_count: dict
+    unresolved_escaped: dict
+    unresolved_first: dict
+    sieved: dict
+    sieve_depth: dict
+    store_path: str | None
+    chunk_size: int
+    chunks_total: int
+    chunks_reused: int
+    seconds: float
+    computed: int
+    executor: str = "local"
+    version: str = field(default_factory=code_version)
+
+    # ----------------------------------------------------------------- derived
+    @property
+    def minima(self) -> dict[str, tuple[int, ...]]:
+        """Per side, the cycle minima found, sorted by absolute value."""
+        out = {s: [] for s in self.sides}
+        for c in self.cycles:
+            out.setdefault(c.side, []).append(c.minimum)
+        return {s: tuple(sorted(v, key=abs)) for s, v in out.items()}
+
+    @property
+    def complete(self) -> bool:
+        """True when no start is unresolved: the classification of the range is complete."""
+        return not any(self.unresolved_count.values())
+
+    @property
+    def label(self) -> str:
+        """``certified`` for a complete classification of the range, else ``exact``.
+
+        With unresolved starts the cycles listed are exact but the list may
+        miss cycles whose minimum is an unresolved start.
+        """
+        return CERTIFIED.value if self.complete else EXACT.value
+
+    @property
+    def labels(self) -> dict[str, str]:
+        return {
+            "counts": CERTIFIED.value,
+            "cycles": EXACT.value,
+            "minima": self.label,
+            "unresolved": CERTIFIED.value,
+        }
+
+    @property
+    def starts_per_side(self) -> int:
+        return self.to - self.start + 1
+
+    def method(self) -> str:
+        cap = (
+            f"cycle length <= {self.max_cycle_length}"
+            if self.max_cycle_length
+            else f"step cap {self.max_steps}"
+        )
+        depths = sorted(set(self.sieve_depth.values()))
+        sieve = (
+            f"residue sieve mod {self.map.divisor}^{'/'.join(map(str, depths))}"
+            if any(depths)
+            else "no sieve"
+        )
+        return (
+            "every start classified exactly (drops below itself / returns to itself / "
+            f"enters another cycle / undecided), {cap}, {sieve}, int64 with overflow "
+            "checks and exact multi-limb continuation; cycles re-verified by exact "
+            "iteration and the itinerary's rational cycle"
+        )
+
+    def to_dict(self) -> dict:
+        m = self.map
+        unresolved = {
+            s: {
+                "count": self.unresolved_count[s],
+                "escaped": self.unresolved_escaped[s],
+                "first": list(self.unresolved_first[s]),
+            }
+            for s in self.sides
+        }
+        return {
+            "map": m.label,
+            "formula": m.formula(),
+            "map_key": m.key,
+            "range": {"from": self.start, "to": self.to},
+            "sides": list(self.sides),
+            "max_steps": self.max_steps,
+            "max_cycle_length": self.max_cycle_length,
+            "complete": self.complete,
+            "label": self.label,
+            "method": self.method(),
+            "counts": {s: dict(self.counts[s]) for s in self.sides},
+            "minima": {s: list(v) for s, v in self.minima.items()},
+            "cycles": [c.to_record() for c in self.cycles],
+            "unresolved": unresolved,
+            "sieve": {
+                s: {"depth": self.sieve_depth[s], "sieved": self.sieved[s]} for s in self.sides
+            },
+            "store": self.store_path,
+            "chunks": {
+                "chunk_size": self.chunk_size,
+                "total": self.chunks_total,
+                "reused": self.chunks_reused,
+                "computed": self.chunks_total - self.chunks_reused,
+            },
+            "run": {
+                "seconds": self.seconds,
+                "computed_starts": self.computed,
+                "starts_per_second": self.computed / self.seconds if self.seconds > 0 else None,
+                "executor": self.executor,
+                "code_version": self.version,
+                "note": "wall-clock measurement, not a result",
+            },
+            "labels": self.labels,
+        }
+
+    def __repr__(self) -> str:
+        parts = []
+        for s in self.sides:
+            mins = self.minima.get(s, ())
+            shown = ", ".join(map(str, mins[:8])) + (", ..." if len(mins) > 8 else "")
+            un = self.unresolved_count[s]
+            extra = f", {un} unresolved" if un else ""
+            if self.max_cycle_length:
+                extra += (
+                    f", {self.counts[s]['beyond_length']} beyond length {self.max_cycle_length}"
+                )
+            parts.append(f"{s}: minima [{shown}]{extra}")
+        return (
+            f"ScanResult({self.map.label}, [{self.start}, {self.to}]; "
+            + "; ".join(parts)
+            + f"; {self.label})"
+        )

@@ -1,0 +1,423 @@
+"""Types along the critical line: how necklace counts and candidate bounds grow.
+
+Inside
+------
+- :func:`sweep` -- types along the critical line ``d^k ≈ A`` for a range of
+  ``x`` to :class:`Sweep`: one row per type, the fitted growth rate of the
+  necklace counts against the theoretical ``ρ``, and the smallest ``x`` from
+  which the proved candidate bound stays below the necklace count.
+- :func:`critical_lengths` -- the lengths a sweep uses for one ``x``.
+- :func:`rho` -- the theoretical growth rate ``ρ = 2^(t H(1/t))``, ``t = log2 a``.
+
+References
+----------
+.. [1] J. C. Lagarias, "The 3x+1 problem and its generalizations", Amer.
+   Math. Monthly 92 (1985) 3-23 (the heuristic count of cycles).
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Callable, Iterable, Sequence
+from dataclasses import dataclass
+
+from cyclewright.maps import Map
+
+from .counting import (
+    DEFAULT_SWEEP_LIMIT,
+    TypeCount,
+    _check_limit,
+    _count_content,
+)
+from .errors import InputError
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+
+__all__ = [
+    "rho",
+    "critical_lengths",
+    "Sweep",
+    "sweep",
+]
+
+
+# ------------------------------------------------------------------ sweep
+def rho(m: Map) -> float | None:
+    """The theoretical growth rate of necklaces along the critical line (a float).
+
+    For a two-branch map with residue-0 branch ``n/2`` and multiplier ``a > 2``:
+    the critical line is ``k ≈ t x`` with ``t = log2 a`` and
+    ``C(k, x) ≈ ρ^x`` with ``ρ = 2^(t H(1/t))``, ``H`` the binary entropy in
+    bits (Stirling). None for other maps.
+
+    >>> from cyclewright import maps
+    >>> round(rho(maps.get("3x+1")), 6)   # equals t^t / (t-1)^(t-1)
+    2.839514
+    """
+    if m.divisor != 2 or tuple(m.branches[0]) != (1, 0):
+        return None
+    a = m.branches[1].multiplier
+    if a <= 2:
+        return None
+    t = math.log2(a)
+    p = 1 / t
+    H = -p * math.log2(p) - (1 - p) * math.log2(1 - p)
+    return 2 ** (t * H)
+
+
+def _offset_sign(m: Map) -> int:
+    signs = {b > 0 for b in m.offsets if b}
+    if signs == {True}:
+        return 1
+    if signs == {False}:
+        return -1
+    return 0
+
+
+def _boundary_length(d: int, a0: int, x: int, P: int) -> int:
+    """Smallest k >= max(x, 1) with d^k > a0^(k-x) P (0 < a0 < d)."""
+    k = max(x, 1)
+    # float estimate of the crossing, then exact correction
+    if P > 0:
+        est = (math.log(P) - x * math.log(a0)) / (math.log(d) - math.log(a0))
+        k = max(k, int(math.floor(est)) - 1)
+    while d**k <= a0 ** (k - x) * P:
+        k += 1
+    while k - 1 >= max(x, 1) and d ** (k - 1) > a0 ** (k - 1 - x) * P:
+        k -= 1
+    return k
+
+
+def critical_lengths(
+    m: Map, content_rest: Sequence[int], extra_lengths: int = 0, side: str = "positive"
+) -> list[int]:
+    """The lengths a sweep uses for one content of the non-zero residues.
+
+    ``content_rest`` = ``(c_1, ..., c_{d-1})`` (for two-branch maps ``(x,)``).
+    On the side whose cycles need ``D > 0`` (positive side when the offsets
+    the content uses are ``>= 0``, negative side when they are ``<= 0``): the
+    smallest ``k`` with ``d^k > A`` and the next ``extra_lengths``; on the
+    other side the largest ``k`` with ``d^k < A`` and the ``extra_lengths``
+    below it (never below ``x``). Contents whose offsets have mixed signs
+    (no bound applies) follow the map's overall offset sign, or ``D > 0`` on
+    the positive side when that is mixed too.
+
+    >>> from cyclewright import maps
+    >>> critical_lengths(maps.get("3x+1"), (8,), 2)
+    [13, 14, 15]
+    >>> critical_lengths(maps.get("3x+1"), (7,), 1, side="negative")
+    [11, 10]
+    """
+    d = m.divisor
+    a0 = m.branches[0].multiplier
+    if not 0 < a0 < d:
+        raise InputError(
+            f"a sweep follows the critical line d^k ≈ A, which needs 0 < a_0 < d; this map has a_0 = {a0}"
+        )
+    if any(a <= 0 for a in m.multipliers):
+        raise InputError("a sweep needs positive multipliers (the critical line d^k ≈ A)")
+    if side not in ("positive", "negative"):
+        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    x = sum(content_rest)
+    P = 1
+    for (a, _b), cr in zip(m.branches[1:], content_rest):
+        P *= a**cr
+    kb = _boundary_length(d, a0, x, P)
+    # The sign of the offsets this content uses (residue 0 is used whenever k > x).
+    used = [m.branches[0].offset] + [b for (_a, b), cr in zip(m.branches[1:], content_rest) if cr]
+    signs = {b > 0 for b in used if b}
+    sgn = (1 if signs == {True} else -1) if len(signs) == 1 else (_offset_sign(m) or 1)
+    need_positive_D = (sgn > 0) == (side == "positive")
+    if need_positive_D:
+        return [kb + j for j in range(extra_lengths + 1)]
+    out = []
+    for j in range(extra_lengths + 1):
+        kk = kb - 1 - j
+        if kk < max(x, 1):
+            break
+        out.append(kk)
+    return out
+
+
+def _contents_rest(d: int, x: int):
+    if d == 2:
+        yield (x,)
+        return
+
+    def rec(total, parts):
+        if parts == 1:
+            yield (total,)
+            return
+        for first in range(total, -1, -1):
+            for rest in rec(total - first, parts - 1):
+                yield (first, *rest)
+
+    yield from rec(x, d - 1)
+
+
+@dataclass
+class Sweep:
+    """Counting figures along the critical line, one row (:class:`TypeCount`) per type.
+
+    Attributes
+    ----------
+    map : Map
+    side : str
+    odd : tuple of (int, int)
+        The range of ``x`` (steps off residue 0; odd steps for two-branch maps).
+    extra_lengths : int
+    rows : list of TypeCount
+    rho : float or None
+        Theoretical growth rate (float).
+    fitted_rate : float or None
+        ``exp(slope)`` of a least-squares fit of ``ln(necklaces)`` against
+        ``x`` over the upper half of the range, on the first length of each
+        ``x`` (heuristic; a float).
+    fitted_rate_corrected : float or None
+        The same fit of ``ln(necklaces) + (3/2) ln x``, removing the
+        polynomial factor ``x^(-3/2)`` of ``C(k, x) / k`` (Stirling); it
+        approaches ``rho`` much faster (heuristic; a float).
+    fit_range : tuple or None
+    crossover_x : int or None
+        Smallest ``x`` from which, for every row of the sweep, the proved bound
+        on ``|minimum|`` (hence on the candidates) is below the necklace count.
+    crossover_x_linear_forms : int or None
+        The same with the bound obtained from the linear-forms lower bound of
+        ``|Λ|`` alone.
+    elapsed : float
+        Seconds.
+    limit : int
+    """
+
+    map: Map
+    side: str
+    odd: tuple[int, int]
+    extra_lengths: int
+    rows: list[TypeCount]
+    rho: float | None
+    fitted_rate: float | None
+    fitted_rate_corrected: float | None
+    fit_range: tuple[int, int] | None
+    crossover_x: int | None
+    crossover_x_linear_forms: int | None
+    elapsed: float
+    limit: int
+
+    LABELS = {
+        "words": EXACT.value,
+        "necklaces": EXACT.value,
+        "primitive_necklaces": EXACT.value,
+        "denominator": EXACT.value,
+        "min_bound": PROVED.value,
+        "min_bound_interval": PROVED.value,
+        "candidates": "exact when enumerated, else proved",
+        "candidates_linear_forms": PROVED.value,
+        "smallest_min_numerator": EXACT.value,
+        "largest_min_numerator": EXACT.value,
+        "integer_cycles": EXACT.value,
+        "heuristic": HEURISTIC.value,
+        "heuristic_log10": HEURISTIC.value,
+        "lambda": CERTIFIED.value,
+        "lambda_lower": PROVED.value,
+        "rho": "exact formula, float value",
+        "fitted_rate": HEURISTIC.value,
+        "fitted_rate_corrected": HEURISTIC.value,
+        "crossover_x": PROVED.value,
+        "crossover_x_linear_forms": PROVED.value,
+    }
+
+    def __len__(self) -> int:
+        return len(self.rows)
+
+    def __iter__(self):
+        return iter(self.rows)
+
+    @property
+    def columns(self) -> list[str]:
+        return list(self.rows[0].row()) if self.rows else []
+
+    def to_dicts(self) -> list[dict]:
+        """The rows as a list of flat dicts."""
+        return [r.row() for r in self.rows]
+
+    def to_pandas(self):
+        """The rows as a pandas DataFrame (needs pandas, which is not a dependency)."""
+        try:
+            import pandas as pd
+        except ImportError:
+            raise ImportError(
+                "to_pandas() needs pandas, which cyclewright does not install; use to_dicts()"
+            ) from None
+        return pd.DataFrame(self.to_dicts())
+
+    def summary(self) -> dict:
+        return {
+            "map": self.map.label,
+            "map_key": self.map.key,
+            "side": self.side,
+            "odd": list(self.odd),
+            "extra_lengths": self.extra_lengths,
+            "limit": self.limit,
+            "rows": len(self.rows),
+            "rho": self.rho,
+            "fitted_rate": self.fitted_rate,
+            "fitted_rate_corrected": self.fitted_rate_corrected,
+            "fit_range": list(self.fit_range) if self.fit_range else None,
+            "crossover_x": self.crossover_x,
+            "crossover_x_linear_forms": self.crossover_x_linear_forms,
+            "integer_cycles_found": sum(len(r.integer_cycles or ()) for r in self.rows),
+            "elapsed_seconds": round(self.elapsed, 4),
+        }
+
+    def to_dict(self) -> dict:
+        out = self.summary()
+        out["labels"] = dict(self.LABELS)
+        out["rows"] = self.to_dicts()
+        return out
+
+    def __repr__(self) -> str:
+        lo, hi = self.odd
+        r = f"{self.rho:.4f}" if self.rho else "-"
+        f = f"{self.fitted_rate_corrected:.4f}" if self.fitted_rate_corrected else "-"
+        return (
+            f"Sweep({self.map.label}, {self.side} side, x={lo}..{hi}, {len(self.rows)} rows: "
+            f"necklace growth {f} fitted (heuristic) vs rho {r}; candidate bound below the "
+            f"necklaces from x={self.crossover_x} (proved), with linear forms only from "
+            f"x={self.crossover_x_linear_forms}; {self.elapsed:.2f} s)"
+        )
+
+
+def sweep(
+    m: Map,
+    odd: Iterable[int] = range(1, 101),
+    extra_lengths: int = 0,
+    side: str = "positive",
+    *,
+    limit: int = DEFAULT_SWEEP_LIMIT,
+    progress: Callable[[int, int], None] | None = None,
+) -> Sweep:
+    """Count every type along the critical line for a range of ``x``.
+
+    For each ``x`` (odd steps; for ``d > 2``: steps off residue 0, with one row
+    per content of the non-zero residues) the lengths come from
+    :func:`critical_lengths`.
+
+    Parameters
+    ----------
+    m : Map
+    odd : iterable of int
+        The values of ``x`` (each ``>= 0``).
+    extra_lengths : int
+        How many further lengths per ``x``.
+    side : {"positive", "negative"}
+    limit : int
+        Enumerate a row's necklaces when there are at most this many
+        (default ``10**4``, to keep sweeps interactive).
+    progress : callable(done, total), optional
+        Called after each row.
+
+    Returns
+    -------
+    Sweep
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> s = sweep(maps.get("3x+1"), range(1, 41))
+    >>> s.rows[7].type_text(), s.rows[7].necklaces, s.rows[7].candidates
+    ('k=13, x=8', 99, 8)
+    >>> s.crossover_x
+    6
+    """
+    xs = sorted(set(int(v) for v in odd))
+    if not xs:
+        raise InputError("the range of x is empty")
+    if xs[0] < 0:
+        raise InputError(f"x must be at least 0, got {xs[0]}")
+    if isinstance(extra_lengths, bool) or not isinstance(extra_lengths, int) or extra_lengths < 0:
+        raise InputError(f"extra lengths must be an integer >= 0, got {extra_lengths!r}")
+    if side not in ("positive", "negative"):
+        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    limit = _check_limit(limit)
+    d = m.divisor
+    n_rest = sum(math.comb(x + d - 2, d - 2) for x in xs)
+    if n_rest * (extra_lengths + 1) > 2_000_000:
+        raise InputError(
+            f"this sweep would have about {n_rest * (extra_lengths + 1)} rows; narrow the range of x"
+        )
+    t0 = time.perf_counter()
+    plan: list[tuple[int, ...]] = []
+    for x in xs:
+        for rest in _contents_rest(d, x):
+            for kk in critical_lengths(m, rest, extra_lengths, side):
+                plan.append((kk - x, *rest))
+    rows: list[TypeCount] = []
+    for i, c in enumerate(plan):
+        rows.append(_count_content(m, c, limit, None, side_hint=side))
+        if progress is not None:
+            progress(i + 1, len(plan))
+    elapsed = time.perf_counter() - t0
+    fitted, fit_range = _fit_rate(rows, xs, 0.0)
+    corrected, _ = _fit_rate(rows, xs, 1.5)
+    cross = _crossover(rows, lambda r: r.candidates_bound)
+    cross_lf = _crossover(rows, lambda r: r.candidates_linear_forms)
+    return Sweep(
+        map=m,
+        side=side,
+        odd=(xs[0], xs[-1]),
+        extra_lengths=extra_lengths,
+        rows=rows,
+        rho=rho(m),
+        fitted_rate=fitted,
+        fitted_rate_corrected=corrected,
+        fit_range=fit_range,
+        crossover_x=cross,
+        crossover_x_linear_forms=cross_lf,
+        elapsed=elapsed,
+        limit=limit,
+    )
+
+
+def _fit_rate(rows: list[TypeCount], xs: list[int], power: float):
+    """Least-squares slope of ln(total necklaces at the first length) + power ln x against x (upper half)."""
+    per_x: dict[int, int] = {}
+    first_k: dict[tuple, int] = {}
+    for r in rows:
+        key = (r.off_zero, r.content[1:])
+        if key not in first_k:
+            first_k[key] = r.length
+            per_x[r.off_zero] = per_x.get(r.off_zero, 0) + r.necklaces
+    pts = sorted(
+        (x, math.log(n) + power * math.log(x)) for x, n in per_x.items() if n > 0 and x > 0
+    )
+    if len(pts) < 3:
+        return None, None
+    mid = (pts[0][0] + pts[-1][0]) / 2
+    upper = [p for p in pts if p[0] >= mid]
+    if len(upper) < 3:
+        upper = pts
+    n = len(upper)
+    sx = sum(p[0] for p in upper)
+    sy = sum(p[1] for p in upper)
+    sxx = sum(p[0] ** 2 for p in upper)
+    sxy = sum(p[0] * p[1] for p in upper)
+    den = n * sxx - sx * sx
+    if den == 0:
+        return None, None
+    slope = (n * sxy - sx * sy) / den
+    return math.exp(slope), (upper[0][0], upper[-1][0])
+
+
+def _crossover(rows: list[TypeCount], bound_of) -> int | None:
+    """Smallest x such that every row with x' >= x has bound < necklaces (None if the last fails)."""
+    bad: dict[int, bool] = {}
+    for r in rows:
+        b = bound_of(r)
+        fails = b is None or b >= r.necklaces
+        bad[r.off_zero] = bad.get(r.off_zero, False) or fails
+    answer = None
+    for x in sorted(bad, reverse=True):
+        if bad[x]:
+            break
+        answer = x
+    return answer
