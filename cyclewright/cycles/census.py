@@ -348,7 +348,7 @@ def census(
     for s in sides:
         lb = largest_bound_up_to(m, K, s)
         applies = bool(lb.applies) and crossing is not None
-        formula = lb.bound.formula if lb.bound is not None else ""
+        formula = lb.formula or (lb.bound.formula if lb.bound is not None else "")
         if method in ("bound-scan", "both") or (method == "auto" and applies):
             if not applies:
                 why = (

@@ -4,24 +4,48 @@ Inside
 ------
 - :class:`LargestBound`, :func:`largest_bound_up_to`, :func:`bound_for_length`
   -- the largest minimum bound over every type of length ``<= K`` (the number
-  a census must scan to), with a float prefilter that is safe by an explicit
-  error budget and an exact confirmation of the winner.
+  a census must scan to).
+
+Two methods:
+
+- *continued fraction* (maps ``n/2``, ``(a n + b)/2`` with ``a > 0`` not a
+  power of 2, ``b != 0``: 3x+1, 3x+k, 5x+1, 181x+1 ...). The bound of a type
+  ``(k, x)`` depends only on the ratio ``k/x`` and is monotone in it, so the
+  largest bound over lengths ``<= K`` sits at the fraction with numerator
+  ``<= K`` nearest to ``log2 a`` from above (growing side) or from below
+  (other side): an approximant (convergent or semiconvergent) of the
+  continued fraction of ``log2 a``, found by a Stern-Brocot descent in
+  ``O(log K)`` steps. The integer bound is decided by interval arithmetic
+  (exact rationals when ``x = 1``). Time and memory do not depend on ``K``
+  (``K = 10^12`` in milliseconds). The proof is in docs/census.md.
+- *prefilter* (every other map: more than two branches, a residue-0 branch
+  other than ``n/2``, ``a`` a power of 2; offsets of mixed signs are
+  reported as not applying): every type of every length, with a float
+  prefilter that is safe by an explicit error budget and an exact
+  confirmation of the winner. Its work grows with ``K``.
 
 References
 ----------
 .. [1] S. Eliahou, "The 3x+1 problem: new lower bounds on nontrivial cycle
    lengths", Discrete Mathematics 118 (1993) 45-56 (the product argument).
+.. [2] A. Ya. Khinchin, *Continued Fractions* (1935; Dover 1997): best
+   one-sided approximations are convergents or intermediate fractions.
+.. [3] R. L. Graham, D. E. Knuth, O. Patashnik, *Concrete Mathematics*,
+   section 4.5 (the Stern-Brocot tree: a fraction between two Farey
+   neighbours has numerator and denominator at least those of their mediant).
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from fractions import Fraction
 
 from cyclewright.maps import Map
 
+from .continued_fractions import continued_fraction_log
 from .errors import InputError
-from .intervals import SIDES
+from .intervals import _MAX_PREC, SIDES, Interval, _iv_to_interval, _ivprec, _mpf_to_fraction
 from .labels import PROVED
 from .minimum_bound import MinimumBound, _bound_of_content
 
@@ -29,7 +53,18 @@ __all__ = [
     "LargestBound",
     "largest_bound_up_to",
     "bound_for_length",
+    "farey_neighbours_log",
+    "continued_fraction_applies",
+    "EXACT_LENGTH_LIMIT",
+    "PREFILTER_MAX_LENGTHS",
 ]
+
+#: Largest length of a winning type whose full :class:`MinimumBound` (with the
+#: exact denominator ``2^k - a^x``) is also computed and cross-checked.
+EXACT_LENGTH_LIMIT = 400_000
+#: Largest ``K`` the prefilter method accepts for two-branch maps (its memory
+#: grows with ``K``).
+PREFILTER_MAX_LENGTHS = 10**7
 
 
 # ------------------------------------------------------- largest over lengths
@@ -60,6 +95,13 @@ class LargestBound:
         A content for which the bound does not apply.
     label : str
         ``"proved"``.
+    interval : Interval or None
+        A certified enclosure of the real bound ``M*`` of the winning type.
+    formula : str
+        The winning type's bound as a formula.
+    approximant : str
+        Continued-fraction method: which approximant of ``log_d a`` the
+        winning ratio ``k/x`` is (empty otherwise).
     """
 
     map_label: str
@@ -74,6 +116,9 @@ class LargestBound:
     method: str
     witness: tuple[int, ...] | None = None
     label: str = PROVED.value
+    interval: Interval | None = None
+    formula: str = ""
+    approximant: str = ""
 
     @property
     def length(self) -> int | None:
@@ -97,6 +142,9 @@ class LargestBound:
             "exact_checks": self.exact_checks,
             "method": self.method,
             "witness": list(self.witness) if self.witness else None,
+            "interval": self.interval.to_dict() if self.interval else None,
+            "formula": self.formula,
+            "approximant": self.approximant,
             "label": self.label,
         }
 
@@ -121,19 +169,25 @@ _PREFILTER_METHOD = (
 )
 
 
-def largest_bound_up_to(m: Map, K: int, side: str = "positive") -> LargestBound:
+def largest_bound_up_to(
+    m: Map, K: int, side: str = "positive", *, method: str = "auto"
+) -> LargestBound:
     """The largest proved bound on a cycle minimum over all types of length ``1..K``.
 
-    Every integer cycle on ``side`` of length ``<= K`` has ``|minimum| <=``
-    the returned ``integer``: the range a census must scan.
+    Every integer cycle on ``side`` of length ``<= K`` whose elements share
+    one sign has ``|minimum| <=`` the returned ``integer``: the range a
+    census must scan.
 
-    For maps whose residue-0 branch is ``n/d`` with ``d = 2`` (``ax+b`` and
-    undivided forms) the best type of each length is known in closed form
-    (the largest ``x`` with ``a^x < 2^k`` on the growing side, the smallest
-    ``x`` with ``a^x > 2^k`` on the other: ``M*`` is monotone in ``x``), so
-    the work is one float evaluation per length (vectorised) plus a few exact
-    confirmations; ``K = 100000`` takes well under a second. Otherwise every
-    content of every length is prefiltered (refused above 5 million contents).
+    For maps ``n/2``, ``(a n + b)/2`` (``a > 0`` not a power of 2,
+    ``b != 0``) the answer is read off the continued fraction of ``log2 a``
+    (method ``"continued fraction"``): the bound of a type ``(k, x)`` is a
+    monotone function of ``k/x`` alone, so the best type is the fraction
+    with numerator ``<= K`` next to ``log2 a`` (from above on the growing
+    side, from below on the other), which is a convergent or a
+    semiconvergent. Time and memory do not grow with ``K``. Every other map
+    keeps the per-type prefilter, whose work grows with ``K`` (refused above
+    :data:`PREFILTER_MAX_LENGTHS` lengths for two-branch maps, 5 million
+    contents otherwise).
 
     Parameters
     ----------
@@ -141,6 +195,9 @@ def largest_bound_up_to(m: Map, K: int, side: str = "positive") -> LargestBound:
     K : int
         Largest length, ``>= 1``.
     side : {"positive", "negative"}
+    method : {"auto", "continued-fraction", "prefilter"}
+        ``auto``: the continued fraction where it applies, else the
+        prefilter. ``prefilter`` forces the per-type method (for checks).
 
     Returns
     -------
@@ -152,19 +209,44 @@ def largest_bound_up_to(m: Map, K: int, side: str = "positive") -> LargestBound:
     >>> lb = largest_bound_up_to(maps.get("3x+1"), 100)
     >>> lb.integer, lb.length, lb.odd
     (1192, 65, 41)
+    >>> lb = largest_bound_up_to(maps.get("3x+1"), 10**12)
+    >>> lb.length, lb.odd, lb.integer > 10**22
+    (217976794617, 137528045312, True)
     >>> largest_bound_up_to(maps.get("mod3-4x"), 3).applies
     False
 
     Notes
     -----
-    Why the prefilter is safe: see ``_PREFILTER_METHOD`` in the source (also
-    in ``LargestBound.method``). The float value of ``Λ`` is computed with an
-    explicit error budget, ``M_hi`` is a rigorous upper bound of ``M*``
-    whenever ``|Λ_float| > err``, and a type is discarded only when
-    ``M_hi < best + 1`` for a ``best`` that has been confirmed exactly.
+    The continued-fraction argument is proved in docs/census.md
+    ("Largest bound"). The prefilter's safety: see ``_PREFILTER_METHOD`` in
+    the source (also in ``LargestBound.method``): the float value of ``Λ``
+    is computed with an explicit error budget, ``M_hi`` is a rigorous upper
+    bound of ``M*`` whenever ``|Λ_float| > err``, and a type is discarded
+    only when ``M_hi < best + 1`` for a ``best`` confirmed exactly.
+
+    References
+    ----------
+    Eliahou 1993 (the bound of one type); Khinchin 1935 and Graham, Knuth,
+    Patashnik 1994 section 4.5 (best one-sided approximations).
     """
     if isinstance(K, bool) or not isinstance(K, int) or K < 1:
         raise InputError(f"the largest length K must be an integer >= 1, got {K!r}")
+    if side not in SIDES:
+        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    if method not in ("auto", "continued-fraction", "prefilter"):
+        raise InputError(f"method must be auto, continued-fraction or prefilter, got {method!r}")
+    if method == "continued-fraction" and not continued_fraction_applies(m):
+        raise InputError(
+            f"{m.label}: the continued-fraction method needs the form n/2, (a n + b)/2 with "
+            "a > 0 not a power of 2 and b != 0"
+        )
+    if method != "prefilter" and continued_fraction_applies(m):
+        return _largest_by_continued_fraction(m, K, side)
+    if _halving_two_branch(m) and K > PREFILTER_MAX_LENGTHS:
+        raise InputError(
+            f"{m.label}: the largest bound over {K} lengths needs the per-length prefilter "
+            f"(the multiplier is a power of 2), limited to {PREFILTER_MAX_LENGTHS} lengths"
+        )
     return _largest(m, 1, K, side)
 
 
@@ -188,6 +270,22 @@ def _halving_two_branch(m: Map) -> bool:
         and m.branches[1].multiplier > 0
         and m.branches[1].offset != 0
     )
+
+
+def continued_fraction_applies(m: Map) -> bool:
+    """Whether :func:`largest_bound_up_to` uses the continued fraction of ``log2 a`` for ``m``.
+
+    True for maps ``n -> n/2`` (even), ``(a n + b)/2`` (odd) with ``a > 0``
+    not a power of 2 and ``b != 0``.
+
+    >>> from cyclewright import maps
+    >>> continued_fraction_applies(maps.get("3x+1")), continued_fraction_applies(maps.get("mod3-4x"))
+    (True, False)
+    """
+    if not _halving_two_branch(m):
+        return False
+    a = m.branches[1].multiplier
+    return a >= 3 and a & (a - 1) != 0
 
 
 def _largest(m: Map, k_lo: int, k_hi: int, side: str) -> LargestBound:
@@ -355,3 +453,188 @@ def _candidates_general(m: Map, k_lo: int, k_hi: int, side: str):
             cands.append(((bmax + tot / (abs(lam) - err)) * (1 + 1e-12) + 1e-9, k, content))
     cands.sort(key=lambda t: -t[0])
     return cands, considered, None
+
+
+# ------------------------------------------------- continued-fraction method
+_CF_METHOD = (
+    "continued fraction: for n/2, (an+b)/2 the bound of a type (k, x) is the largest m with "
+    "2^(k/x) m <= a m + b (growing side; reversed on the other), a monotone function of k/x "
+    "alone; the extreme ratio with k <= K is the Farey neighbour of log2 a with numerator "
+    "<= K from above (growing side) or below, an approximant on the Stern-Brocot path of "
+    "log2 a (partial quotients certified by interval arithmetic); its integer bound is "
+    "decided by interval arithmetic at rising precision (exact rationals when x = 1); "
+    "proof in docs/census.md"
+)
+
+
+@dataclass(frozen=True)
+class _Neighbours:
+    below: tuple[int, int]  # (p, q): largest p/q < theta with p <= K ((0, 1) if none)
+    above: tuple[int, int]  # (p, q): smallest p/q > theta with p <= K ((1, 0) if none)
+    below_text: str
+    above_text: str
+    steps: int  # partial quotients used
+
+
+def _describe(n: int, j: int, t: int, p2: int, p1: int) -> str:
+    if j == t:
+        return f"convergent p_{n}/q_{n} of [a_0; a_1, ...], a_{n} = {t}"
+    return f"semiconvergent (p_{n - 2} + {j} p_{n - 1})/(q_{n - 2} + {j} q_{n - 1}), j = {j} of a_{n} = {t}"
+
+
+def farey_neighbours_log(a: int, K: int, base: int = 2) -> tuple[tuple[int, int], tuple[int, int]]:
+    """The fractions ``p/q`` with ``p <= K`` nearest to ``log_base a`` from below and from above.
+
+    Found by the Stern-Brocot descent towards ``log_base a`` with whole runs
+    of equal turns taken at once (one per partial quotient), stopped when the
+    next mediant's numerator exceeds ``K``; both are convergents or
+    semiconvergents. ``O(log K)`` certified partial quotients.
+
+    Parameters
+    ----------
+    a : int
+        ``> 1``, ``log_base a`` irrational.
+    K : int
+        Largest numerator, ``>= 1``.
+    base : int
+
+    Returns
+    -------
+    tuple
+        ``((p, q) below, (p, q) above)``; ``(1, 0)`` above when no fraction
+        with ``p <= K`` lies above.
+
+    Examples
+    --------
+    >>> farey_neighbours_log(3, 100000)     # log2 3: types (k, x) of 3x+1
+    ((50508, 31867), (75235, 47468))
+    >>> farey_neighbours_log(3, 16785920)[1]
+    (301994, 190537)
+
+    References
+    ----------
+    Graham, Knuth and Patashnik, *Concrete Mathematics*, section 4.5;
+    Khinchin, *Continued Fractions*, theorems 15-16 (best one-sided approximations).
+    """
+    nb = _neighbours(a, K, base)
+    return nb.below, nb.above
+
+
+def _neighbours(a: int, K: int, base: int = 2) -> _Neighbours:
+    if isinstance(K, bool) or not isinstance(K, int) or K < 1:
+        raise InputError(f"K must be an integer >= 1, got {K!r}")
+    terms_wanted = 16
+    while True:
+        terms = continued_fraction_log(a, base, terms_wanted)
+        if len(terms) < terms_wanted:
+            raise InputError(
+                f"log_{base} {a} is rational: the continued-fraction method needs it irrational"
+            )
+        # Stern-Brocot: L = p_{n-2}/q_{n-2} side below, R above; start L = 0/1, R = 1/0.
+        lp, lq, rp, rq = 0, 1, 1, 0
+        ltext, rtext = "0/1 (none)", "1/0 (none)"
+        for n, t in enumerate(terms):
+            if n % 2 == 0:  # mediants below theta: L <- L + j R
+                j = min(t, (K - lp) // rp)
+                if j >= 1:
+                    ltext = _describe(n, j, t, lp, rp)
+                    lp, lq = lp + j * rp, lq + j * rq
+            else:  # mediants above theta: R <- R + j L
+                j = min(t, (K - rp) // lp) if lp else 0
+                if j >= 1:
+                    rtext = _describe(n, j, t, rp, lp)
+                    rp, rq = rp + j * lp, rq + j * lq
+            if j < t:  # the next mediant has numerator > K: L, R are the neighbours
+                return _Neighbours((lp, lq), (rp, rq), ltext, rtext, n + 1)
+        terms_wanted *= 2
+
+
+def _certified_bound(a: int, b: int, k: int, x: int, growth: bool) -> tuple[int, Interval]:
+    """Largest integer m >= 0 with 2^(k/x) m <= a m + b (growth) or m <= b / (a - 2^(k/x)), and M*.
+
+    ``b = |b|``; ``M* = b / (2^(k/x) - a)`` (growth) or ``b / (a - 2^(k/x))``.
+    For ``x = 1`` exact rationals; otherwise ``gcd(k, x) = 1`` and ``x >= 2``
+    make ``2^(k/x)`` irrational, so ``M*`` is never an integer and an
+    interval enclosure at rising precision decides ``floor(M*)``.
+    """
+    if x == 1:
+        den = (2**k - a) if growth else (a - 2**k)
+        if den <= 0:  # pragma: no cover - excluded by the choice of side
+            raise AssertionError("internal error: the type is on the wrong side of log2 a")
+        val = Fraction(b, den)
+        return val.numerator // val.denominator, Interval(val, val)
+    prec = 96 + 2 * k.bit_length() + b.bit_length() + a.bit_length()
+    M = None
+    while prec <= _MAX_PREC:
+        with _ivprec(prec) as iv:
+            t = iv.exp(iv.log(iv.mpf(2)) * iv.mpf(k) / iv.mpf(x))
+            den = (t - a) if growth else (a - t)
+            lo_den = _mpf_to_fraction(den._mpi_[0])
+            if lo_den > 0:
+                out = _iv_to_interval(iv.mpf(b) / den)
+                if M is None:
+                    f_lo = out.lo.numerator // out.lo.denominator
+                    f_hi = out.hi.numerator // out.hi.denominator
+                    if f_lo == f_hi:
+                        M = f_lo
+                if M is not None and out.width * 2**40 <= max(out.hi, 1):
+                    lo = max(out.lo, Fraction(M))
+                    hi = min(out.hi, Fraction(M + 1))
+                    return M, Interval(lo, hi)
+        prec *= 2
+    raise ArithmeticError(  # pragma: no cover - M* is irrational, so this does not happen
+        f"precision limit reached deciding the bound of type ({k}, {x})"
+    )
+
+
+def _largest_by_continued_fraction(m: Map, K: int, side: str) -> LargestBound:
+    a, b = m.branches[1]
+    beff = b if side == "positive" else -b
+    growth = beff > 0
+    nb = _neighbours(a, K)
+    (k, x), text = (nb.above, nb.above_text) if growth else (nb.below, nb.below_text)
+    label = m.label
+    if x == 0 or k == 0:  # no type of length <= K on this side of log2 a: no cycle
+        return LargestBound(
+            label,
+            side,
+            (1, K),
+            True,
+            0,
+            None,
+            None,
+            nb.steps,
+            0,
+            _CF_METHOD,
+            approximant="none with length <= K",
+        )
+    M, interval = _certified_bound(a, abs(b), k, x, growth)
+    content = (k - x, x)
+    full = None
+    if k <= EXACT_LENGTH_LIMIT:
+        full = _bound_of_content(m, content, side)
+        if full.integer != M:  # pragma: no cover - two independent evaluations must agree
+            raise RuntimeError(
+                f"internal error: bound of type ({k}, {x}) is {M} by interval arithmetic, "
+                f"{full.integer} exactly"
+            )
+        interval = full.interval or interval
+    if growth:
+        formula = f"|min| <= {beff}/({a}((2^{k}/{a}^{x})^(1/{x}) - 1))"
+    else:
+        formula = f"|min| <= {abs(beff)}/({a}(1 - (2^{k}/{a}^{x})^(1/{x})))"
+    return LargestBound(
+        label,
+        side,
+        (1, K),
+        True,
+        M,
+        content,
+        full,
+        nb.steps,
+        1,
+        _CF_METHOD,
+        interval=interval,
+        formula=formula,
+        approximant=f"k/x = {k}/{x}: {text} of log2 {a}",
+    )

@@ -472,7 +472,7 @@ def _bound_of_content(
     if st.D == 0 or (st.D > 0) != st.growth:
         need = ">" if st.growth else "<"
         why = (
-            f"D = d^k - A = {st.D}: a {side} cycle of this type needs D {need} 0 "
+            f"D = d^k - A = {_short_int(st.D)}: a {side} cycle of this type needs D {need} 0 "
             f"(the product of (1 + b_r/(a_r n)) along it is {'above' if st.growth else 'below'} 1)"
         )
         return MinimumBound(
@@ -512,4 +512,11 @@ def _formula(m: Map, content: tuple[int, ...], st: _Setup) -> str:
         return f"|min| <= {abs(bb)}/({a}(1 - (2^{k}/{a}^{x})^(1/{x})))"
     terms = " ".join(f"(1 + {b}/({a} m))^{c}" for a, b, c in st.S) or "1"
     rel = ">=" if st.growth else "<="
-    return f"|min| <= largest m with {terms} {rel} {st.d}^{k}/{st.A}"
+    return f"|min| <= largest m with {terms} {rel} {st.d}^{k}/{_short_int(st.A)}"
+
+
+def _short_int(n: int) -> str:
+    """``n`` in decimal, or its sign and bit length when it is too long to print."""
+    if abs(n).bit_length() <= 4000:
+        return str(n)
+    return f"{'-' if n < 0 else ''}(a {abs(n).bit_length()}-bit integer)"
