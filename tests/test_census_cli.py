@@ -42,11 +42,11 @@ def test_census_json_and_certificate(tmp_path):
 
 
 def test_census_table_and_family():
-    out = run_cli("census", "3x+1", "--max-length", "500", "--workers", "1")
+    out = run_cli("census", "3x+1", "--max-length", "500", "--side", "both", "--workers", "1")
     assert out.returncode == 0, out.stderr
     assert "-17" in out.stdout and "exactly 5 integer cycles" in out.stdout
     fam = run_cli(
-        "census", "3x+k", "--k", "1..13", "--max-length", "20", "--workers", "1", "--json"
+        "census", "3x+k", "--offsets", "1..13", "--max-length", "20", "--workers", "1", "--json"
     )
     assert fam.returncode == 0, fam.stderr
     rows = {r["k"]: r["primitive_minima"] for r in json.loads(fam.stdout)["rows"]}
@@ -60,7 +60,7 @@ def test_census_table_and_family():
         (["census", "3x+1", "--max-length", "0"], "--max-length must be at least 1"),
         (["census", "3x+1", "--max-length", "100000", "--max-scan", "1000"], "needs a scan of 1.."),
         (["census", "mod3-4x", "--max-length", "80"], "no applicable method"),
-        (["census", "3x+k", "--max-length", "10"], "a family needs --k"),
+        (["census", "3x+k", "--max-length", "10"], "a family needs --offsets"),
         (["verify", "/nonexistent/c.json"], "cannot read"),
     ],
 )

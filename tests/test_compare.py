@@ -80,7 +80,7 @@ def test_compare_cli(tmp_path):
         "compare",
         "3x+1",
         "3x+k",
-        "--k",
+        "--offsets",
         "5..7",
         "--max-length",
         "12",
@@ -135,6 +135,8 @@ def test_compare_rows_agree_with_the_individual_commands(tmp_path):
                 name,
                 "--max-length",
                 "14",
+                "--side",
+                "both",
                 "--workers",
                 "1",
                 "--store",
@@ -143,7 +145,9 @@ def test_compare_rows_agree_with_the_individual_commands(tmp_path):
             ).stdout
         )
         assert row["census_minima"] == [c["minimum"] for c in cen["cycles"] if c["minimum"] != 0]
-        cnt = json.loads(run_cli("count", name, "-k", str(row["k"]), "-x", "7", "--json").stdout)
+        cnt = json.loads(
+            run_cli("count", name, "--length", str(row["k"]), "--odd", "7", "--json").stdout
+        )
         assert (row["necklaces_at_x"], row["candidates_at_x"]) == (
             cnt["necklaces"],
             cnt["candidates"],

@@ -37,7 +37,7 @@ def test_count_json_check_values(capsys):
 
 def test_count_table_3x5(capsys):
     # OEIS A226607: minima 19 and 23
-    code, out, _ = run(capsys, "count", "3x+5", "-k", "5", "-x", "3")
+    code, out, _ = run(capsys, "count", "3x+5", "--length", "5", "--odd", "3")
     assert code == 0
     assert "19" in out and "23" in out and "11100" in out
     assert "heuristic" in out and "proved" in out and "exact" in out
@@ -51,7 +51,9 @@ def test_count_content_for_divisor_3(capsys):
 
 
 def test_count_not_enumerated(capsys):
-    code, out, _ = run(capsys, "count", "3x+1", "-k", "40", "-x", "25", "--limit", "0", "--json")
+    code, out, _ = run(
+        capsys, "count", "3x+1", "--length", "40", "--odd", "25", "--limit", "0", "--json"
+    )
     assert code == 0
     doc = json.loads(out)
     assert doc["integer_cycles"] is None
@@ -66,12 +68,12 @@ def test_count_not_enumerated(capsys):
         ["count", "3x+1", "--length", "5", "--odd", "-1"],  # x < 0
         ["count", "3x+1", "--length", "5", "--content", "0:2,1:2"],  # content sums to 4
         ["count", "4x+2", "--length", "2", "--odd", "1"],  # D = 0
-        ["count", "3x+1", "-k", "200", "-x", "126", "--limit", "1e80"],  # memory refusal
-        ["count", "3x+1", "-k", "13", "-x", "8", "--limit", "lots"],
-        ["count", "3x+1", "-k", "13", "--content", "0;5"],
-        ["count", "mod3-4x", "-k", "3", "-x", "1"],
-        ["count", "3x+1", "-k", "13"],
-        ["count", "nosuchmap", "-k", "13", "-x", "8"],
+        ["count", "3x+1", "--length", "200", "--odd", "126", "--limit", "1e80"],  # memory refusal
+        ["count", "3x+1", "--length", "13", "--odd", "8", "--limit", "lots"],
+        ["count", "3x+1", "--length", "13", "--content", "0;5"],
+        ["count", "mod3-4x", "--length", "3", "--odd", "1"],
+        ["count", "3x+1", "--length", "13"],
+        ["count", "nosuchmap", "--length", "13", "--odd", "8"],
         ["sweep", "3x+1", "--odd", "5..1"],
         ["sweep", "3x+1", "--odd", "1..5", "--extra-lengths", "-1"],
         ["sweep", "3x+1", "--odd", "1..5", "--plot", "out.jpg"],
@@ -88,7 +90,9 @@ def test_bad_input_one_line_exit_2(capsys, args, tmp_path, monkeypatch):
 
 
 def test_memory_refusal_states_estimate(capsys):
-    code, _, err = run(capsys, "count", "3x+1", "-k", "200", "-x", "126", "--limit", "10^80")
+    code, _, err = run(
+        capsys, "count", "3x+1", "--length", "200", "--odd", "126", "--limit", "10^80"
+    )
     assert code == 2 and "could need up to" in err and "lower the limit" in err
 
 

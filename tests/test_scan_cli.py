@@ -13,8 +13,9 @@ import pytest
 
 import cyclewright.cli.options
 from cyclewright.cli.app import main
-from cyclewright.cli.commands.scan_cmd import _Progress, parse_bound
 from cyclewright.cli.errors import BadInput
+from cyclewright.cli.options import parse_int
+from cyclewright.cli.progress import ProgressDisplay, events
 
 
 @pytest.fixture(autouse=True)
@@ -77,7 +78,7 @@ def test_help_has_examples(capsys):
     with pytest.raises(SystemExit):
         main(["scan", "--help"])
     out = capsys.readouterr().out
-    assert "Examples:" in out and "--max-cycle-length" in out and "--scheduler" in out
+    assert "Examples:" in out and "--max-length" in out and "--scheduler" in out
 
 
 @pytest.mark.parametrize(
@@ -88,7 +89,7 @@ def test_help_has_examples(capsys):
         (["--to", "2^63"], "store schema"),
         (["--to", "100", "--workers", "0"], "workers"),
         (["--to", "ten"], "--to must be an integer"),
-        (["--to", "100", "--max-steps", "0"], "max_steps"),
+        (["--to", "100", "--max-steps", "0"], "--max-steps"),
         (["--to", "100", "--executor", "dask"], "scheduler"),
         (["--to", "100", "--side", "up"], "side"),
         (["--to", "100", "--store", "x.sqlite", "--no-store"], "exclude"),
@@ -161,24 +162,24 @@ def test_exit_code_in_a_real_process(tmp_path):
 
 
 def test_parse_bound():
-    assert parse_bound("10^10+10^8", "--to") == 10**10 + 10**8
-    assert parse_bound("1_000", "--to") == 1000
-    assert parse_bound("2^63-1", "--to") == 2**63 - 1
-    assert parse_bound("1.5e3", "--to") == 1500
+    assert parse_int("10^10+10^8", "--to") == 10**10 + 10**8
+    assert parse_int("1_000", "--to") == 1000
+    assert parse_int("2^63-1", "--to") == 2**63 - 1
+    assert parse_int("1.5e3", "--to") == 1500
     for bad in ("1.55e1", "10^-2", "", "x"):
         with pytest.raises(BadInput):
-            parse_bound(bad, "--to")
+            parse_int(bad, "--to")
 
 
-def test_progress_printer_waits_a_second(monkeypatch, capsys):
+def test_progress_printer_waits(capsys):
     from cyclewright.cycles.scan.result import ScanProgress
 
     clock = [100.0]
-    monkeypatch.setattr("cyclewright.cli.commands.scan_cmd.time.monotonic", lambda: clock[0])
-    p = _Progress()
+    display = ProgressDisplay(tty=False, clock=lambda: clock[0])
+    p = events(display, "scan", "starts")
     p(ScanProgress("positive", 10, 100, 0, 0.5, 10))
     assert capsys.readouterr().err == ""
-    clock[0] += 1.5
+    clock[0] += 6
     p(ScanProgress("positive", 50, 100, 3, 1.5, 50))
     err = capsys.readouterr().err
     assert "50/100 starts" in err and "3 unresolved" in err

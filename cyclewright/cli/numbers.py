@@ -1,7 +1,10 @@
 """Integers written the way researchers write them: ``10^9``, ``2^63-1``, ``3*2^40``, ``1.5e9``.
 
-One parser for every command and for study files; exact (no float is
-involved) and guarded against absurd sizes.
+One parser for every command option, every range and every study file;
+exact (no float is involved) and guarded against absurd sizes.
+
+- :func:`int_expression` -- ``"5*2^60"`` -> the integer.
+- :func:`int_range` -- ``"1..10^2"`` (both ends expressions, optional step) -> ``range``.
 """
 
 from __future__ import annotations
@@ -9,7 +12,7 @@ from __future__ import annotations
 import re
 from fractions import Fraction
 
-__all__ = ["int_expression", "MAX_DIGITS"]
+__all__ = ["int_expression", "int_range", "MAX_DIGITS"]
 
 #: Refuse results with more decimal digits than this (a typo, not a request).
 MAX_DIGITS = 100_000
@@ -83,3 +86,35 @@ def int_expression(text: str | int) -> int:
             f"must be an integer (like 1000000, 10^9, 2^63-1, 3*2^40 or 1e9), got {text!r}"
         ) from None
     return total
+
+
+def int_range(text: str | int) -> range:
+    """The inclusive range ``text`` denotes: ``"1..200"``, ``"1..10^2"``, ``"5"``, ``"1..50..2"``.
+
+    Both ends (and the step) are integer expressions as in :func:`int_expression`;
+    the end is included. Raises ``ValueError`` with a one-line reason.
+
+    >>> list(int_range("1..5")), list(int_range("1..9..4")), int_range("2^3")
+    ([1, 2, 3, 4, 5], [1, 5, 9], range(8, 9))
+    >>> int_range("1..10^2")[-1], int_range("-3..-1")[0]
+    (100, -3)
+    """
+    if isinstance(text, int) and not isinstance(text, bool):
+        return range(text, text + 1)
+    if not isinstance(text, str):
+        raise ValueError(f"must be a range like 1..200, got {text!r}")
+    parts = text.split("..")
+    if len(parts) > 3 or any(not p.strip() for p in parts):
+        raise ValueError(f"must be a range like 1..200 or 1..10^3 (end included), got {text!r}")
+    try:
+        nums = [int_expression(p) for p in parts]
+    except ValueError as exc:
+        raise ValueError(f"in the range {text!r}: {exc}") from None
+    lo, hi, step = nums[0], nums[-1] if len(nums) > 1 else nums[0], 1
+    if len(nums) == 3:
+        hi, step = nums[1], nums[2]
+    if step <= 0:
+        raise ValueError(f"{text!r}: the step must be positive")
+    if hi < lo:
+        raise ValueError(f"{text!r}: the range is empty (end before start)")
+    return range(lo, hi + 1, step)

@@ -1,36 +1,451 @@
-"""Options shared by commands, and map resolution for the CLI."""
+"""The command-line vocabulary, declared once: shared options, parameter types, map resolution.
+
+One concept has one option name, one default and one help text in every
+command. Commands take their options from here (``@side_option``,
+``@max_steps_option``...), never spell them out themselves;
+``tests/test_cli_vocabulary.py`` walks every command and fails when a
+concept appears under two names or with two defaults or help texts.
+
+Inside
+------
+- :class:`IntExpr`, :class:`IntRange` -- click parameter types for exact
+  integer expressions (``10^30``, ``5*2^60``, ``1_000_000``, ``-17``) and
+  inclusive ranges of them (``1..10^2``), both on :mod:`cyclewright.cli.numbers`.
+- :class:`CeilingType` -- an integer expression or ``none``.
+- :data:`CONCEPTS` -- concept (the option's destination) -> its one flag.
+- decorators: :func:`map_argument`, :func:`side_option`,
+  :func:`max_steps_option`, :func:`length_option`, :func:`max_length_option`,
+  :func:`odd_option`, :func:`odd_range_option`, :func:`offsets_option`,
+  :func:`all_offsets_option`, :func:`store_options`, :func:`ceiling_option`,
+  :func:`limit_option`, :func:`show_option`, :func:`to_option`,
+  :func:`from_option`, :func:`workers_option`, :func:`executor_options`,
+  :func:`out_option`, :func:`csv_option`, :func:`plot_option`, :func:`force_option`,
+  :func:`maps_option`, :func:`json_option`.
+- :func:`resolve_map`, :func:`catalog_for`, :func:`resolve_store`,
+  :func:`parse_int`.
+
+Old spellings (``-k``, ``-K``, ``-x``, ``--k``, ``--all-k``,
+``--max-cycle-length``) are still read, as hidden aliases: they do not
+appear in ``--help``.
+"""
 
 from __future__ import annotations
 
 import functools
+from pathlib import Path
 
 import click
 
+from cyclewright.cycles.scan.chunks import DEFAULT_MAX_STEPS
 from cyclewright.maps import Map, MapError, load_catalog
 
 from .errors import BadInput
+from .numbers import int_expression, int_range
 
-__all__ = ["maps_option", "json_option", "resolve_map", "catalog_for"]
+__all__ = [
+    "IntExpr",
+    "IntRange",
+    "CeilingType",
+    "SharedOption",
+    "CONCEPTS",
+    "SIDES",
+    "DEFAULT_SIDE",
+    "DEFAULT_MAX_STEPS",
+    "DEFAULT_CEILING",
+    "DEFAULT_SHOW",
+    "map_argument",
+    "side_option",
+    "max_steps_option",
+    "length_option",
+    "max_length_option",
+    "odd_option",
+    "odd_range_option",
+    "offsets_option",
+    "all_offsets_option",
+    "store_options",
+    "ceiling_option",
+    "limit_option",
+    "show_option",
+    "to_option",
+    "from_option",
+    "workers_option",
+    "executor_options",
+    "out_option",
+    "csv_option",
+    "plot_option",
+    "force_option",
+    "maps_option",
+    "json_option",
+    "resolve_map",
+    "resolve_store",
+    "catalog_for",
+    "parse_int",
+]
+
+#: The sides of a map's integers; ``both`` runs the positive and the negative side.
+SIDES = ("positive", "negative", "both")
+#: The one default side of every command (and study analysis) that takes a side.
+DEFAULT_SIDE = "positive"
+#: The one default value ceiling (``none`` switches it off).
+DEFAULT_CEILING = 10**15
+#: Rows (or values) a table lists by default; ``--json`` always gives everything.
+DEFAULT_SHOW = 40
 
 
-def maps_option(f):
-    """``--maps FILE`` (repeatable): TOML map files that extend the catalog."""
-    return click.option(
-        "--maps",
-        "map_files",
-        multiple=True,
-        type=click.Path(dir_okay=False),
-        help="TOML file of map definitions (repeatable); its names win over the catalog.",
-    )(f)
+def _name(param: click.Parameter | None, ctx: click.Context | None) -> str:
+    if isinstance(param, SharedOption):
+        return param.visible_opts[0]
+    if isinstance(param, click.Option):
+        return param.opts[0]
+    return "value" if param is None else param.human_readable_name
 
 
-def json_option(f):
-    """``--json``: one JSON document on stdout instead of a table."""
-    return click.option(
-        "--json", "as_json", is_flag=True, help="Print one JSON document instead of tables."
-    )(f)
+# ------------------------------------------------------------------ parameter types
+class IntExpr(click.ParamType):
+    """An exact integer expression (``10^30``, ``2^40``, ``5*2^60``, ``1_000_000``, ``-17``).
+
+    Bounds are checked here, so every command says the same thing:
+    ``--max-steps must be at least 1, got '0'``.
+    """
+
+    name = "integer"
+
+    def __init__(self, minimum: int | None = None, maximum: int | None = None) -> None:
+        self.minimum = minimum
+        self.maximum = maximum
+
+    def convert(self, value, param, ctx):
+        return parse_int(value, _name(param, ctx), minimum=self.minimum, maximum=self.maximum)
+
+    def __repr__(self) -> str:
+        return f"IntExpr({self.minimum}, {self.maximum})"
 
 
+class IntRange(click.ParamType):
+    """An inclusive range of integer expressions: ``1..200``, ``1..10^2``, ``7``, ``1..50..2``."""
+
+    name = "range"
+
+    def __init__(self, minimum: int | None = None) -> None:
+        self.minimum = minimum
+
+    def convert(self, value, param, ctx):
+        if isinstance(value, range):
+            r = value
+        else:
+            try:
+                r = int_range(value)
+            except ValueError as exc:
+                raise BadInput(f"{_name(param, ctx)}: {exc}") from None
+        if self.minimum is not None and r.start < self.minimum:
+            raise BadInput(
+                f"{_name(param, ctx)} must start at {self.minimum} or above, got {value!r}"
+            )
+        return r
+
+    def __repr__(self) -> str:
+        return f"IntRange({self.minimum})"
+
+
+class CeilingType(IntExpr):
+    """A value ceiling: an integer expression >= 1, or ``none`` for no ceiling."""
+
+    name = "ceiling"
+
+    def __init__(self) -> None:
+        super().__init__(minimum=1)
+
+    def convert(self, value, param, ctx):
+        if value is None or (isinstance(value, str) and value.strip().lower() == "none"):
+            return None
+        return super().convert(value, param, ctx)
+
+
+class SharedOption(click.Option):
+    """A click option whose old spellings (``hidden_names``) work but stay out of ``--help``."""
+
+    def __init__(self, *args, hidden_names: tuple[str, ...] = (), **kwargs) -> None:
+        super().__init__(*args, **kwargs)
+        self.hidden_names = tuple(hidden_names)
+
+    @property
+    def visible_opts(self) -> list[str]:
+        return [o for o in self.opts if o not in self.hidden_names]
+
+    def get_help_record(self, ctx):
+        saved = self.opts
+        self.opts = self.visible_opts
+        try:
+            return super().get_help_record(ctx)
+        finally:
+            self.opts = saved
+
+
+#: concept (the destination name the command function receives) -> its one flag.
+CONCEPTS: dict[str, str] = {}
+
+
+def _shared(flag: str, dest: str, *, hidden: tuple[str, ...] = (), **kwargs):
+    """Declare one concept's option; returns a decorator factory ``f(required=False)``."""
+    CONCEPTS[dest] = flag
+
+    def factory(f=None, *, required: bool = False):
+        kw = dict(kwargs)
+        if required:
+            kw["required"] = True
+            kw.pop("default", None)
+            kw.pop("show_default", None)
+        decorator = click.option(flag, *hidden, dest, cls=SharedOption, hidden_names=hidden, **kw)
+        return decorator(f) if f is not None else decorator
+
+    return factory
+
+
+# ------------------------------------------------------------------ the vocabulary
+def map_argument(f):
+    """The map argument ``MAP``: a catalog name, an alias, ``ax+b`` shorthand or a --maps name."""
+    return click.argument("map_spec", metavar="MAP")(f)
+
+
+side_option = _shared(
+    "--side",
+    "side",
+    type=click.Choice(SIDES),
+    default=DEFAULT_SIDE,
+    show_default=True,
+    help="Positive integers, negative integers (-N .. -M) or both sides.",
+)
+
+max_steps_option = _shared(
+    "--max-steps",
+    "max_steps",
+    type=IntExpr(minimum=1),
+    default=DEFAULT_MAX_STEPS,
+    show_default=True,
+    metavar="S",
+    help="Step cap: an orbit not decided within S steps is reported unresolved.",
+)
+
+length_option = _shared(
+    "--length",
+    "length",
+    hidden=("-k",),
+    type=IntExpr(minimum=1),
+    default=None,
+    metavar="K",
+    help="Length k of the type (number of steps of the cycle).",
+)
+
+max_length_option = _shared(
+    "--max-length",
+    "max_length",
+    hidden=("-K", "--max-cycle-length"),
+    type=IntExpr(minimum=1),
+    default=None,
+    metavar="K",
+    help="Largest cycle length K taken into account.",
+)
+
+odd_option = _shared(
+    "--odd",
+    "odd",
+    hidden=("-x",),
+    type=IntExpr(minimum=0),
+    default=None,
+    metavar="X",
+    help="Odd steps x of the type (steps off residue 0).",
+)
+
+odd_range_option = _shared(
+    "--odd",
+    "odd_range",
+    hidden=("-x",),
+    type=IntRange(minimum=0),
+    default=None,
+    metavar="RANGE",
+    help="Range of x, the odd steps (steps off residue 0), e.g. 1..2000 or 1..10^3.",
+)
+
+offsets_option = _shared(
+    "--offsets",
+    "offsets",
+    hidden=("--k",),
+    type=IntRange(),
+    default=None,
+    metavar="RANGE",
+    help="For a family template such as 3x+k: the offsets k to take, e.g. 1..200.",
+)
+
+all_offsets_option = _shared(
+    "--all-offsets",
+    "all_offsets",
+    hidden=("--all-k",),
+    is_flag=True,
+    help="Family: every offset giving a valid map, not only those prime to 2a.",
+)
+
+_store = _shared(
+    "--store",
+    "store",
+    type=click.Path(),
+    default=None,
+    metavar="PATH",
+    help=(
+        "Where scan results are kept: a directory (one store per map definition, created "
+        "if missing) or a .sqlite file for one map [default: the user data directory]."
+    ),
+)
+
+_no_store = _shared(
+    "--no-store",
+    "no_store",
+    is_flag=True,
+    help="Keep no scan results (nothing is reused or resumed).",
+)
+
+
+def store_options(f):
+    """``--store PATH`` and ``--no-store``; the command turns them into one value with
+    :func:`resolve_store`."""
+    return _store(_no_store(f))
+
+
+ceiling_option = _shared(
+    "--ceiling",
+    "ceiling",
+    type=CeilingType(),
+    default="10^15",
+    show_default=True,
+    metavar="C",
+    help="Stop an orbit once |value| exceeds C (escaped: not a proof of divergence); 'none' for no ceiling.",
+)
+
+limit_option = _shared(
+    "--limit",
+    "limit",
+    type=IntExpr(minimum=0),
+    default=None,
+    metavar="L",
+    help=(
+        "Enumerate a type's necklaces when there are at most L of them "
+        "[default: 10^6 for one type, 10^4 per row of a sweep]."
+    ),
+)
+
+show_option = _shared(
+    "--show",
+    "show",
+    hidden=("--rows",),
+    type=IntExpr(minimum=0),
+    default=DEFAULT_SHOW,
+    show_default=True,
+    metavar="N",
+    help="Rows (or values) listed in tables; --json and --csv give everything.",
+)
+
+to_option = _shared(
+    "--to",
+    "to",
+    type=IntExpr(minimum=0),
+    default=None,
+    metavar="N",
+    help="Largest |start| (e.g. 10^9).",
+)
+
+from_option = _shared(
+    "--from",
+    "start",
+    type=IntExpr(minimum=1),
+    default=1,
+    show_default=True,
+    metavar="M",
+    help="Smallest |start|.",
+)
+
+workers_option = _shared(
+    "--workers",
+    "workers",
+    type=IntExpr(minimum=1),
+    default=None,
+    metavar="W",
+    help="Worker processes [default: all cores].",
+)
+
+_executor = _shared(
+    "--executor",
+    "executor",
+    type=click.Choice(["local", "dask"]),
+    default="local",
+    show_default=True,
+    help="Where scan chunks run: local processes or a Dask cluster.",
+)
+
+_scheduler = _shared(
+    "--scheduler",
+    "scheduler",
+    default=None,
+    metavar="ADDR",
+    help="Dask scheduler address (with --executor dask).",
+)
+
+
+def executor_options(f):
+    """``--executor local|dask`` and ``--scheduler ADDR``."""
+    return _executor(_scheduler(f))
+
+
+out_option = _shared(
+    "--out",
+    "out",
+    type=click.Path(file_okay=False),
+    default="demo-out",
+    show_default=True,
+    metavar="DIR",
+    help="Output directory of the report and its data files.",
+)
+
+csv_option = _shared(
+    "--csv",
+    "csv_path",
+    default=None,
+    metavar="FILE",
+    help="Write the table as CSV to FILE ('-' for stdout).",
+)
+
+plot_option = _shared(
+    "--plot",
+    "plot_path",
+    type=click.Path(dir_okay=False),
+    default=None,
+    metavar="FILE",
+    help="Write the plot to FILE (format from the extension, e.g. .png).",
+)
+
+force_option = _shared(
+    "--force",
+    "force",
+    is_flag=True,
+    help="Overwrite outputs that already exist (files, or an output directory holding something else).",
+)
+
+maps_option = _shared(
+    "--maps",
+    "map_files",
+    multiple=True,
+    type=click.Path(dir_okay=False),
+    metavar="FILE",
+    help="TOML file of map definitions (repeatable); its names win over the catalog.",
+)
+
+json_option = _shared(
+    "--json",
+    "as_json",
+    is_flag=True,
+    help="Print one JSON document instead of tables.",
+)
+
+
+# ------------------------------------------------------------------ resolution
 @functools.lru_cache(maxsize=16)
 def _catalog(files: tuple[str, ...]):
     return load_catalog(list(files))
@@ -52,20 +467,49 @@ def resolve_map(spec: str, map_files=()) -> Map:
         raise BadInput(str(exc)) from None
 
 
+def resolve_store(store: str | None, no_store: bool) -> str | bool | None:
+    """The ``store`` argument of the API from ``--store PATH`` and ``--no-store``.
+
+    ``None`` is the user data directory, ``False`` no store; an existing file
+    or a name ending in ``.sqlite`` is one map's store file; any other path is
+    a directory of stores, created when missing.
+
+    >>> resolve_store(None, True), resolve_store(None, False)
+    (False, None)
+    """
+    if no_store and store:
+        raise BadInput("--store and --no-store exclude each other")
+    if no_store:
+        return False
+    if not store:
+        return None
+    p = Path(store)
+    if p.is_file() or p.suffix in (".sqlite", ".db") or (p.exists() and not p.is_dir()):
+        return store
+    try:
+        p.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise BadInput(
+            f"--store {store}: cannot create the directory ({exc.strerror or exc})"
+        ) from None
+    return store
+
+
 def parse_int(text, what: str, *, minimum: int | None = None, maximum: int | None = None) -> int:
-    """An integer option written as ``1000000``, ``10^9``, ``2^63-1``, ``3*2^40`` or ``1e9``.
+    """An integer written as ``1000000``, ``10^9``, ``2^63-1``, ``3*2^40`` or ``1e9``.
 
-    Bad input becomes a one-line :class:`BadInput` naming the option.
+    For positional arguments and values that are not options; bad input
+    becomes a one-line :class:`BadInput` naming ``what``.
 
-    >>> parse_int("2^40", "--verified-to")
+    >>> parse_int("2^40", "N")
     1099511627776
     """
-    from .numbers import int_expression
-
     try:
         value = int_expression(text)
     except ValueError as exc:
         raise BadInput(f"{what} {exc}") from None
+    if isinstance(text, int):
+        text = str(text)
     if minimum is not None and value < minimum:
         raise BadInput(f"{what} must be at least {minimum}, got {text!r}")
     if maximum is not None and value > maximum:

@@ -329,7 +329,7 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     p = spec.params
     K = p["max_length"]
     if p["family"]:
-        ks = p["k"]
+        ks = p["offsets"]
         sec = Section(f"Family census {p['family']}, k = {ks.start}..{ks.stop - 1}, length <= {K}")
         ctx.say(f"family census {p['family']}")
         side = "positive" if p["side"] == "both" else p["side"]

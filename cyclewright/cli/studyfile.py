@@ -24,6 +24,11 @@ Schema
     maps = ["3x+1"]                          # optional; default: every map of the study
     odd = "1..60"
 
+Numbers and ranges are written as on the command line (``to = "10^9"``,
+``odd = "1..10^2"``; :mod:`cyclewright.cli.numbers`), keys carry the option
+names (``max_steps`` for ``--max-steps``, ``offsets`` for ``--offsets``) and
+the defaults are the command line's (:mod:`cyclewright.cli.options`).
+
 Every error names the file, the table and the key, e.g.
 ``demo.toml: [[analysis]] #2 (census): key 'max_length': must be an integer >= 1, got 0``.
 """
@@ -35,10 +40,12 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from cyclewright.maps import Map, MapError, load_catalog, load_map_file, parse_int_range
+from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
+from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table
 
-from .numbers import int_expression
+from .numbers import int_expression, int_range
+from .options import DEFAULT_CEILING, DEFAULT_MAX_STEPS, DEFAULT_SIDE, SIDES
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -77,14 +84,9 @@ def _choice(*options: str) -> Callable[[object], str]:
 
 
 def _range_text(v) -> range:
-    if isinstance(v, int) and not isinstance(v, bool):
-        return range(v, v + 1)
-    if not isinstance(v, str):
+    if isinstance(v, bool) or not isinstance(v, (int, str)):
         raise ValueError(f'must be a range like "1..60", got {v!r}')
-    try:
-        r = parse_int_range(v)
-    except MapError as exc:
-        raise ValueError(str(exc)) from None
+    r = int_range(v)  # raises ValueError with the reason
     if r.start < 1:
         raise ValueError(f"must start at 1 or above, got {v!r}")
     return r
@@ -102,51 +104,54 @@ def _str(v) -> str:
     return v
 
 
-SIDE = _choice("positive", "negative", "both")
+SIDE = _choice(*SIDES)
+
+#: Old key names still read (they are renamed before validation).
+KEY_ALIASES = {"k": "offsets"}
 
 # kind -> key -> (checker, default); "maps" and "kind" are common to all kinds
 PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "count": {
         "length": (_int(1, 100_000), None),
         "odd": (_int(0, 100_000), None),
-        "limit": (_int(0, 10**8), 10**6),
+        "limit": (_int(0, 10**8), DEFAULT_LIMIT),
     },
     "sweep": {
         "odd": (_range_text, "1..40"),
         "extra_lengths": (_int(0, 50), 0),
-        "side": (_choice("positive", "negative"), "positive"),
-        "limit": (_int(0, 10**8), 10**5),
+        "side": (_choice("positive", "negative"), DEFAULT_SIDE),
+        "limit": (_int(0, 10**8), DEFAULT_SWEEP_LIMIT),
     },
     "scan": {
         "to": (_int(1, 2**62), 10**6),
         "from": (_int(1, 2**62), 1),
-        "side": (SIDE, "both"),
-        "max_steps": (_int(1, 10**9), 10_000),
+        "side": (SIDE, DEFAULT_SIDE),
+        "max_steps": (_int(1, 10**9), DEFAULT_MAX_STEPS),
     },
     "census": {
         "max_length": (_int(1, 10**7), 30),
-        "side": (SIDE, "both"),
+        "side": (SIDE, DEFAULT_SIDE),
         "method": (_choice("auto", "bound-scan", "itineraries", "necklaces", "both"), "auto"),
         "family": (_str, ""),
-        "k": (_range_text, "1..1"),
+        "offsets": (_range_text, "1..1"),
     },
     "floor": {
         "verified_to": (_int(1), 2**40),
-        "side": (SIDE, "positive"),
+        "side": (SIDE, DEFAULT_SIDE),
         "next": (_int(0, 50), 3),
     },
     "compare": {
         "max_length": (_int(1, 10**7), 20),
         "to": (_int(1, 2**62), 10**5),
         "odd": (_int(1, 100_000), 20),
-        "max_steps": (_int(1, 10**6), 500),
+        "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
         "plot": (_bool, True),
     },
     "graph": {
         "to": (_int(1, 10**6), 200),
-        "side": (SIDE, "positive"),
+        "side": (SIDE, DEFAULT_SIDE),
         "plot": (_bool, True),
-        "ceiling": (_int(1), 10**12),
+        "ceiling": (_int(1), DEFAULT_CEILING),
     },
 }
 
@@ -288,6 +293,11 @@ def parse_study(
         where = f"{origin}: [[analysis]] #{i}"
         if not isinstance(table, Mapping):
             raise StudyError(f"{where}: must be a table")
+        table = (
+            {KEY_ALIASES.get(k, k): v for k, v in table.items()}
+            if isinstance(table, Mapping)
+            else table
+        )
         kind = table.get("kind")
         if kind not in PARAMS:
             raise StudyError(

@@ -14,7 +14,7 @@ analysis consumes them unchanged.
 from .mapfile import load_map_file, maps_from_toml_data
 from .model import Branch, Map, MapError
 from .registry import ENTRY_POINT_GROUP, Catalog, as_map, get, load_catalog
-from .shorthand import parse_int_range, parse_shorthand
+from .shorthand import parse_shorthand
 
 __all__ = [
     "Branch",
@@ -28,5 +28,4 @@ __all__ = [
     "load_map_file",
     "maps_from_toml_data",
     "parse_shorthand",
-    "parse_int_range",
 ]

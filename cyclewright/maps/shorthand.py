@@ -6,7 +6,6 @@ Inside
   default; ``undivided=True`` gives branch 1 = ``(2a, 2b)``, whose step counts
   are the classic ones).
 - :func:`looks_like_shorthand` -- cheap test used when resolving map names.
-- :func:`parse_int_range` -- ``"1..200"`` style ranges, shared by family options.
 
 The divided form sends even ``n`` to ``n/2`` and odd ``n`` to ``(a n + b)/2``;
 it needs ``a + b`` even.
@@ -18,7 +17,7 @@ import re
 
 from .model import Map, MapError
 
-__all__ = ["parse_shorthand", "looks_like_shorthand", "parse_int_range"]
+__all__ = ["parse_shorthand", "looks_like_shorthand"]
 
 _PATTERN = re.compile(r"^\s*([+-]?)\s*(\d*)\s*[xn]\s*(?:([+-])\s*(\d+))?\s*$")
 
@@ -100,32 +99,3 @@ def parse_shorthand(text: str, *, undivided: bool = False) -> Map:
         description=f"n/2 on even n, ({a}n{'+' if b >= 0 else '-'}{abs(b)})/2 on odd n",
         source="shorthand",
     )
-
-
-def parse_int_range(text: str) -> range:
-    """Parse ``"1..200"``, ``"5"`` or ``"1..50..2"`` (inclusive end, optional step).
-
-    >>> list(parse_int_range("1..5"))
-    [1, 2, 3, 4, 5]
-    >>> list(parse_int_range("1..9..4"))
-    [1, 5, 9]
-    """
-    parts = [p.strip() for p in text.split("..")]
-    try:
-        nums = [int(p) for p in parts]
-    except ValueError:
-        raise MapError(f"{text!r} is not a range like 1..200") from None
-    if len(nums) == 1:
-        return range(nums[0], nums[0] + 1)
-    if len(nums) == 2:
-        lo, hi = nums
-        step = 1
-    elif len(nums) == 3:
-        lo, hi, step = nums
-    else:
-        raise MapError(f"{text!r} is not a range like 1..200")
-    if step <= 0:
-        raise MapError(f"{text!r}: the step must be positive")
-    if hi < lo:
-        raise MapError(f"{text!r}: the range is empty (end before start)")
-    return range(lo, hi + 1, step)

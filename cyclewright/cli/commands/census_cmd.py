@@ -2,34 +2,30 @@
 
 from __future__ import annotations
 
-import sys
-
 import click
 
 from cyclewright.cycles.census import MAX_SCAN, census, census_family, parse_family
 from cyclewright.cycles.certificate import write_certificate
-from cyclewright.maps import MapError, parse_int_range
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map
-from ..render import emit_json, make_table, short, stderr_console, stdout_console
-from .count_cmd import parse_count
+from ..options import (
+    IntExpr,
+    all_offsets_option,
+    json_option,
+    map_argument,
+    maps_option,
+    max_length_option,
+    offsets_option,
+    resolve_map,
+    resolve_store,
+    side_option,
+    store_options,
+    workers_option,
+)
+from ..progress import events, progress_display
+from ..render import emit_json, make_table, short, stdout_console
 
 __all__ = ["COMMANDS"]
-
-
-def _progress():
-    if not sys.stderr.isatty():
-        return None
-    con = stderr_console()
-
-    def cb(p) -> None:
-        done = getattr(p, "done", None)
-        total = getattr(p, "total", None)
-        if done is not None and total:
-            con.print(f"scan: {done:,} / {total:,} starts", end="\r")
-
-    return cb
 
 
 @click.command(
@@ -37,46 +33,40 @@ def _progress():
     epilog=(
         "\b\nExamples:\n"
         "  cyclewright census 3x+1 --max-length 10000\n"
-        "  cyclewright census 3x+5 --max-length 30 --side positive --certificate c.json\n"
+        "  cyclewright census 3x+5 --max-length 30 --side both --certificate c.json\n"
         "  cyclewright census mod3-4x --max-length 16 --method itineraries\n"
-        '  cyclewright census "3x+k" --k 1..200 --max-length 30\n'
+        '  cyclewright census "3x+k" --offsets 1..200 --max-length 30\n'
         "\b\nMethods: bound-scan (proved bound on cycle minima + exhaustive scan),\n"
         "itineraries (all words by meet in the middle), necklaces (every primitive\n"
         "necklace, small K), both (cross-check), auto."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
-@click.option(
-    "--max-length", "-K", "max_length", required=True, help="Largest cycle length K (>= 1)."
-)
-@click.option(
-    "--side", type=click.Choice(["positive", "negative", "both"]), default="both", show_default=True
-)
+@map_argument
+@max_length_option(required=True)
+@side_option
 @click.option(
     "--method",
     type=click.Choice(["auto", "bound-scan", "itineraries", "necklaces", "both"]),
     default="auto",
     show_default=True,
+    help="How completeness is certified.",
 )
-@click.option(
-    "--k",
-    "k_range",
-    default=None,
-    help="For a family template (3x+k): the range of k, e.g. 1..200.",
-)
-@click.option("--all-k", is_flag=True, help="Family: every valid k, not only k prime to 2a.")
+@offsets_option
+@all_offsets_option
 @click.option(
     "--certificate",
     "cert_path",
     type=click.Path(dir_okay=False),
     help="Write a certificate (JSON).",
 )
-@click.option("--store", type=click.Path(dir_okay=False), help="Scan results store (SQLite).")
+@store_options
+@workers_option
 @click.option(
-    "--workers", type=int, default=None, help="Scan worker processes (default: all cores)."
-)
-@click.option(
-    "--max-scan", default=str(MAX_SCAN), show_default=True, help="Refuse scans longer than this."
+    "--max-scan",
+    type=IntExpr(minimum=0),
+    default=MAX_SCAN,
+    show_default=True,
+    help="Refuse scans longer than this.",
 )
 @maps_option
 @json_option
@@ -85,30 +75,32 @@ def census_cmd(
     max_length,
     side,
     method,
-    k_range,
-    all_k,
+    offsets,
+    all_offsets,
     cert_path,
     store,
+    no_store,
     workers,
     max_scan,
     map_files,
     as_json,
 ):
     """All integer cycles of MAP with length at most K, certified complete."""
-    K = parse_count(max_length, "--max-length")
-    if K < 1:
-        raise BadInput(f"--max-length must be at least 1, got {K}")
-    limit = parse_count(max_scan, "--max-scan")
-    if workers is not None and workers < 1:
-        raise BadInput(f"--workers must be at least 1, got {workers}")
-    kw = {"store": store, "workers": workers, "max_scan": limit, "method": method}
+    K = max_length
+    kw = {
+        "store": resolve_store(store, no_store),
+        "workers": workers,
+        "max_scan": max_scan,
+        "method": method,
+    }
     if "k" in map_spec.replace(" ", "").lower().split("x")[-1]:
-        _family(map_spec, k_range, K, side, all_k, cert_path, kw, as_json)
+        _family(map_spec, offsets, K, side, all_offsets, cert_path, kw, as_json)
         return
-    if k_range is not None:
-        raise BadInput("--k applies to a family template such as 3x+k")
+    if offsets is not None:
+        raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
-    c = census(m, K, side=side, progress=_progress(), **kw)
+    with progress_display() as show:
+        c = census(m, K, side=side, progress=events(show, "scan", "starts"), **kw)
     if cert_path:
         write_certificate(c, cert_path)
     if as_json:
@@ -147,29 +139,28 @@ def census_cmd(
         con.print(f"certificate written to {cert_path}")
 
 
-def _family(template, k_range, K, side, all_k, cert_path, kw, as_json):
+def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
     try:
         parse_family(template)
     except Exception as exc:
         raise BadInput(str(exc)) from None
-    if k_range is None:
-        raise BadInput("a family needs --k, e.g. --k 1..200")
+    if ks is None:
+        raise BadInput("a family needs --offsets, e.g. --offsets 1..200")
     if cert_path:
         raise BadInput(
             "--certificate is for a single map; run the census of one member to certify it"
         )
-    try:
-        ks = parse_int_range(k_range)
-    except MapError as exc:
-        raise BadInput(str(exc)) from None
-    con = stderr_console()
-
-    def prog(done, total):
-        if sys.stderr.isatty():
-            con.print(f"family: {done} / {total} members", end="\r")
-
     side = "positive" if side == "both" else side
-    fam = census_family(template, ks, K, side=side, all_k=all_k, progress=prog, **kw)
+    with progress_display() as show:
+        fam = census_family(
+            template,
+            ks,
+            K,
+            side=side,
+            all_k=all_offsets,
+            progress=events(show, "family", "members"),
+            **kw,
+        )
     if as_json:
         emit_json(fam.to_dict())
         return

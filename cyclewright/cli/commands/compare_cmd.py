@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import sys
-from pathlib import Path
 
 import click
 
@@ -12,13 +11,28 @@ from cyclewright.cycles.compare import compare
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.cycles.sweep import sweep
-from cyclewright.maps import MapError, parse_int_range, parse_shorthand
+from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
 from ..files import check_output
-from ..options import json_option, maps_option, resolve_map
-from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
-from .count_cmd import parse_count
+from ..options import (
+    all_offsets_option,
+    csv_option,
+    json_option,
+    maps_option,
+    max_length_option,
+    max_steps_option,
+    odd_option,
+    offsets_option,
+    plot_option,
+    resolve_map,
+    resolve_store,
+    store_options,
+    to_option,
+    workers_option,
+)
+from ..progress import events, progress_display
+from ..render import emit_json, make_table, short, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "ROW_COLUMNS", "resolve_maps", "comparison_sweeps"]
 
@@ -54,16 +68,16 @@ ROW_COLUMNS = [
 ]
 
 
-def resolve_maps(specs, k_range, map_files, all_k=False):
-    """Map names, shorthands and family templates (``3x+k`` with ``--k``) to maps."""
+def resolve_maps(specs, offsets, map_files, all_k=False):
+    """Map names, shorthands and family templates (``3x+k`` with ``--offsets``) to maps."""
     out = []
     for spec in specs:
         if spec.replace(" ", "").lower().endswith(("+k", "-k")):
-            if k_range is None:
-                raise BadInput(f"the family {spec} needs --k, e.g. --k 1..50")
+            if offsets is None:
+                raise BadInput(f"the family {spec} needs --offsets, e.g. --offsets 1..50")
             try:
                 a, sign = parse_family(spec)
-                ks = list(parse_int_range(k_range))
+                ks = list(offsets)
             except (InputError, MapError) as exc:
                 raise BadInput(str(exc)) from None
             members = (
@@ -72,7 +86,9 @@ def resolve_maps(specs, k_range, map_files, all_k=False):
                 else default_family_members(a, ks)
             )
             if not members:
-                raise BadInput(f"{spec}: no member in --k {k_range} gives a valid map")
+                raise BadInput(
+                    f"{spec}: no member in --offsets {ks[0]}..{ks[-1]} gives a valid map"
+                )
             out += [parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}") for k in members]
         else:
             out.append(resolve_map(spec, map_files))
@@ -96,32 +112,23 @@ def comparison_sweeps(cmp, limit: int = 2000) -> dict:
     "compare",
     epilog=(
         "\b\nExamples:\n"
-        "  cyclewright compare 3x+1 5x+1 7x+1 --max-length 20 --to 1e5\n"
+        "  cyclewright compare 3x+1 5x+1 7x+1 --max-length 20 --to 10^5\n"
         "  cyclewright compare 3x+1 mod3-4x --json\n"
-        '  cyclewright compare "3x+k" --k 1..50 --max-length 16 --csv fam.csv\n'
+        '  cyclewright compare "3x+k" --offsets 1..50 --max-length 16 --csv fam.csv\n'
         "  cyclewright compare 3x+1 3x+5 181x+1 --plot cmp.png"
     ),
 )
 @click.argument("map_specs", nargs=-1, required=True, metavar="MAP...")
-@click.option(
-    "--max-length", "-K", "max_length", default="20", show_default=True, help="Census length K."
-)
-@click.option(
-    "--to", "to", default="10^5", show_default=True, help="Scan starts 1..N on both sides."
-)
-@click.option(
-    "--odd", "-x", "odd", default="20", show_default=True, help="Counting figures at x = X."
-)
-@click.option("--k", "k_range", default=None, help="Range of k for a family template such as 3x+k.")
-@click.option("--all-k", is_flag=True, help="Family: every valid k, not only k prime to 2a.")
-@click.option(
-    "--csv", "csv_path", default=None, help="Write the comparison table as CSV (- for stdout)."
-)
-@click.option("--plot", "plot_path", default=None, help="Write the panel plot to FILE.png.")
-@click.option(
-    "--store", type=click.Path(file_okay=False), help="Directory of scan stores (one per map)."
-)
-@click.option("--workers", type=int, default=None, help="Scan worker processes.")
+@max_length_option
+@to_option
+@odd_option
+@max_steps_option
+@offsets_option
+@all_offsets_option
+@csv_option
+@plot_option
+@store_options
+@workers_option
 @maps_option
 @json_option
 def compare_cmd(
@@ -129,36 +136,37 @@ def compare_cmd(
     max_length,
     to,
     odd,
-    k_range,
-    all_k,
+    max_steps,
+    offsets,
+    all_offsets,
     csv_path,
     plot_path,
     store,
+    no_store,
     workers,
     map_files,
     as_json,
 ):
-    """Maps side by side: drift, critical ratio, census, scan, floor, counting; predictions vs findings."""
-    K = parse_count(max_length, "--max-length")
-    N = parse_count(to, "--to")
-    X = parse_count(odd, "--odd")
-    if K < 1 or N < 1 or X < 1:
-        raise BadInput("--max-length, --to and --odd must be at least 1")
-    if workers is not None and workers < 1:
-        raise BadInput(f"--workers must be at least 1, got {workers}")
+    """Maps side by side: drift, critical ratio, census, scan, floor, counting; predictions vs findings.
+
+    Without --max-length, --to and --odd: census length 20, scan 1..10^5 on both
+    sides, counting figures at x = 20.
+    """
+    if odd is not None and odd < 1:
+        raise BadInput("--odd must be at least 1")
+    given = {"max_length": max_length, "to": to, "odd": odd}
     check_output(csv_path, "--csv")
     check_output(plot_path, "--plot")
-    ms = resolve_maps(map_specs, k_range, map_files, all_k)
-    if store:
-        try:
-            Path(store).mkdir(parents=True, exist_ok=True)
-        except OSError as exc:
-            raise BadInput(
-                f"--store {store}: cannot create the directory ({exc.strerror or exc})"
-            ) from None
-    err = stderr_console()
-    progress = (lambda msg: err.print(msg)) if sys.stderr.isatty() else None
-    cmp = compare(ms, max_length=K, to=N, odd=X, store=store, workers=workers, progress=progress)
+    ms = resolve_maps(map_specs, offsets, map_files, all_offsets)
+    with progress_display() as show:
+        cmp = compare(
+            ms,
+            **{k: v for k, v in given.items() if v is not None},
+            cap=max_steps,
+            store=resolve_store(store, no_store),
+            workers=workers,
+            progress=events(show, "compare", "steps"),
+        )
     rows = cmp.rows()
     if csv_path:
         target = sys.stdout if csv_path == "-" else csv_path
@@ -172,6 +180,7 @@ def compare_cmd(
         return
     if csv_path == "-":
         return
+    K, N, X = cmp.max_length, cmp.to, cmp.odd
     con = stdout_console()
     con.print(
         make_table(

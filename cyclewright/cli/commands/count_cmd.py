@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import re
-import sys
 
 import click
 
@@ -11,27 +10,40 @@ from cyclewright.cycles.counting import DEFAULT_LIMIT, count
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, parse_int, resolve_map
-from ..render import emit_json, make_table, short, stderr_console, stdout_console
+from ..numbers import int_expression
+from ..options import (
+    json_option,
+    length_option,
+    limit_option,
+    map_argument,
+    maps_option,
+    odd_option,
+    resolve_map,
+    show_option,
+)
+from ..progress import events, progress_display
+from ..render import emit_json, make_table, short, stdout_console
 
-__all__ = ["COMMANDS", "parse_count", "parse_content"]
-
-
-def parse_count(text: str, what: str) -> int:
-    """A non-negative integer option (``1000000``, ``10^6``, ``1e6``)."""
-    return parse_int(text, what, minimum=0)
+__all__ = ["COMMANDS", "parse_content"]
 
 
 def parse_content(text: str) -> dict[int, int]:
-    """``"0:5,1:8"`` -> ``{0: 5, 1: 8}``."""
+    """``"0:5,1:8"`` -> ``{0: 5, 1: 8}``; counts are integer expressions (``0:2^10``).
+
+    >>> parse_content("0:5, 1:2^3")
+    {0: 5, 1: 8}
+    """
     out: dict[int, int] = {}
     for part in [p for p in re.split(r"[\s,]+", text.strip()) if p]:
-        m = re.fullmatch(r"(\d+):(-?\d+)", part)
-        if not m:
+        m = re.fullmatch(r"(\d+):(\S+)", part)
+        try:
+            if not m:
+                raise ValueError(part)
+            r, c = int(m.group(1)), int_expression(m.group(2))
+        except ValueError:
             raise BadInput(
                 f"cannot read {part!r} in --content: use residue:count pairs, e.g. 0:5,1:8"
-            )
-        r, c = int(m.group(1)), int(m.group(2))
+            ) from None
         if r in out:
             raise BadInput(f"residue {r} appears twice in --content")
         out[r] = c
@@ -40,58 +52,40 @@ def parse_content(text: str) -> dict[int, int]:
     return out
 
 
-def _progress_callback():
-    if not sys.stderr.isatty():
-        return None
-    con = stderr_console()
-
-    def cb(done: int, total: int) -> None:
-        con.print(f"enumerated {done:,} / {total:,} necklaces", end="\r")
-
-    return cb
-
-
 @click.command(
     "count",
     epilog=(
         "\b\nExamples:\n"
         "  cyclewright count 3x+1 --length 13 --odd 8\n"
-        "  cyclewright count 3x+5 -k 5 -x 3 --json\n"
-        "  cyclewright count 3x+1 -k 40 -x 25 --limit 0\n"
+        "  cyclewright count 3x+5 --length 5 --odd 3 --json\n"
+        "  cyclewright count 3x+1 --length 40 --odd 25 --limit 0\n"
         "  cyclewright count mod3-mixed --content 0:2,1:3,2:1\n"
         "\b\nLabels: exact (closed formulas, enumeration), proved (a theorem's bound),\n"
         "certified (interval arithmetic), heuristic (necklaces/|D|, never a proof)."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
-@click.option("--length", "-k", "length", type=int, default=None, help="Length k of the type.")
-@click.option("--odd", "-x", "odd", type=int, default=None, help="Odd steps x (two-branch maps).")
+@map_argument
+@length_option
+@odd_option
 @click.option(
     "--content",
     "content_text",
     default=None,
     help="Counts per residue, r:c,... (any divisor), e.g. 0:5,1:8.",
 )
-@click.option(
-    "--limit",
-    "limit_text",
-    default=str(DEFAULT_LIMIT),
-    show_default=True,
-    help="Enumerate the necklaces when there are at most this many (10^6, 1e6 forms accepted).",
-)
-@click.option(
-    "--show", "show", default=20, show_default=True, type=int, help="Integer cycles to list."
-)
+@limit_option
+@show_option
 @maps_option
 @json_option
-def count_cmd(map_spec, length, odd, content_text, limit_text, show, map_files, as_json) -> None:
+def count_cmd(map_spec, length, odd, content_text, limit, show, map_files, as_json) -> None:
     """Words, necklaces, denominator, proved bound, candidates and integer cycles of one type.
 
     The type is (length k, odd steps x) for two-branch maps and a content
     (how often each residue occurs) in general.
     """
     m = resolve_map(map_spec, map_files)
-    limit = parse_count(limit_text, "--limit")
+    if limit is None:
+        limit = DEFAULT_LIMIT
     content = parse_content(content_text) if content_text else None
     if content is None and m.divisor == 2 and (length is None or odd is None):
         raise BadInput("give --length K and --odd X (or --content r:c,...)")
@@ -100,7 +94,15 @@ def count_cmd(map_spec, length, odd, content_text, limit_text, show, map_files, 
             f"{m.label} has divisor {m.divisor}: give the type as --content r:c,... "
             "(how often each residue occurs)"
         )
-    tc = count(m, length, odd, content=content, limit=limit, progress=_progress_callback())
+    with progress_display() as show_progress:
+        tc = count(
+            m,
+            length,
+            odd,
+            content=content,
+            limit=limit,
+            progress=events(show_progress, "enumerate", "necklaces"),
+        )
     if as_json:
         emit_json(tc.to_dict())
         return

@@ -8,6 +8,7 @@ from pathlib import Path
 import click
 
 from ..errors import BadInput
+from ..options import out_option, workers_option
 from ..render import make_table, stdout_console
 from ..study import run_study
 from ..studyfile import StudyError, load_study
@@ -19,22 +20,12 @@ DEMO = Path(__file__).resolve().parents[2] / "scenarios" / "demo.toml"
     "demo",
     epilog="\b\nExamples:\n  cyclewright demo\n  cyclewright demo --out /tmp/demo-report --workers 2",
 )
-@click.option(
-    "--out",
-    default="demo-out",
-    show_default=True,
-    type=click.Path(file_okay=False),
-    help="Output directory of the report.",
-)
-@click.option(
-    "--workers", type=int, default=None, help="Scan worker processes (default: all cores)."
-)
+@out_option
+@workers_option
 def demo_cmd(out, workers) -> None:
     """Run the built-in demo study: seven maps counted, censused, scanned, floored and compared."""
     if not DEMO.is_file():
         raise BadInput(f"the demo study {DEMO} is missing (run from a source checkout)")
-    if workers is not None and workers < 1:
-        raise BadInput(f"--workers must be at least 1, got {workers}")
     try:
         study = load_study(DEMO)
         summary = run_study(study, out, workers=workers)

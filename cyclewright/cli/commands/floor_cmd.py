@@ -8,7 +8,7 @@ from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.floors import floor
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, parse_int, resolve_map
+from ..options import IntExpr, json_option, map_argument, maps_option, resolve_map, side_option
 from ..render import emit_json, make_table, short, stdout_console
 
 # The floor's work grows with the digits of N (continued fraction terms, precision).
@@ -26,26 +26,22 @@ _MAX_FLOOR_DIGITS = 1000
         "length shown (a proved bound, conditional on that verification)."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
+@map_argument
 @click.option(
     "--verified-to",
     "verified_to",
     required=True,
+    type=IntExpr(minimum=0),
     metavar="N",
     help="Verified range: no unknown cycle has |minimum| <= N (2^68, 1e20 and 3*2^40 forms work).",
 )
-@click.option(
-    "--side",
-    type=click.Choice(["positive", "negative", "both"]),
-    default="positive",
-    show_default=True,
-)
+@side_option
 @click.option(
     "--next",
     "next_types",
     default=5,
     show_default=True,
-    type=int,
+    type=IntExpr(minimum=0, maximum=1000),
     metavar="J",
     help="How many further possible (length, odd steps) types to list.",
 )
@@ -63,14 +59,12 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
     raised until certain).
     """
     m = resolve_map(map_spec, map_files)
-    n = parse_int(verified_to, "--verified-to", minimum=0)
+    n = verified_to
     if len(str(n)) > _MAX_FLOOR_DIGITS:
         raise BadInput(
             f"--verified-to has {len(str(n))} digits; the floor accepts at most "
             f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
         )
-    if not 0 <= next_types <= 1000:
-        raise BadInput(f"--next must be between 0 and 1000, got {next_types}")
     sides = ["positive", "negative"] if side == "both" else [side]
     results = []
     problems = []

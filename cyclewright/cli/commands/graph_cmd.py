@@ -4,16 +4,25 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.graph import (
-    DEFAULT_MAX_STEPS,
-    PLOT_NODE_LIMIT,
-    functional_graph,
-)
+from cyclewright.cycles.graph import PLOT_NODE_LIMIT, functional_graph
 
 from ..errors import BadInput
 from ..files import check_output
-from ..options import json_option, maps_option, parse_int, resolve_map
-from ..render import emit_json, make_table, short, stderr_console, stdout_console
+from ..options import (
+    ceiling_option,
+    force_option,
+    from_option,
+    json_option,
+    map_argument,
+    maps_option,
+    max_steps_option,
+    plot_option,
+    resolve_map,
+    side_option,
+    to_option,
+)
+from ..progress import events, progress_display
+from ..render import emit_json, make_table, short, stdout_console
 
 
 @click.command(
@@ -21,45 +30,22 @@ from ..render import emit_json, make_table, short, stderr_console, stdout_consol
     epilog=(
         "\b\nExamples:\n  cyclewright graph 3x+1 --to 1000 --side both\n"
         "  cyclewright graph 3x+13 --to 400 --graphml g.graphml --plot g.png\n"
-        "  cyclewright graph 5x+1 --to 200 --ceiling 1e12 --json\n"
+        "  cyclewright graph 5x+1 --to 200 --ceiling 10^12 --json\n"
         "\b\n'escaped' counts starts whose orbit passed the ceiling: an exact count,\n"
         "not a proof that those orbits diverge."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
-@click.option("--to", "to", required=True, metavar="N", help="Largest start (absolute value).")
-@click.option(
-    "--from", "start", default="1", show_default=True, metavar="M", help="Smallest start (>= 1)."
-)
-@click.option(
-    "--side",
-    type=click.Choice(["positive", "negative", "both"]),
-    default="positive",
-    show_default=True,
-)
-@click.option(
-    "--max-steps",
-    default=str(DEFAULT_MAX_STEPS),
-    show_default=True,
-    metavar="S",
-    help="New values one walk may add before it stops (unresolved).",
-)
-@click.option(
-    "--ceiling",
-    default="1e15",
-    show_default=True,
-    metavar="C",
-    help="Stop an orbit once |value| exceeds C (escaped); 'none' for no ceiling.",
-)
+@map_argument
+@to_option(required=True)
+@from_option
+@side_option
+@max_steps_option
+@ceiling_option
 @click.option("--graphml", type=click.Path(dir_okay=False), help="Write the graph as GraphML.")
 @click.option("--gexf", type=click.Path(dir_okay=False), help="Write the graph as GEXF.")
 @click.option("--dot", type=click.Path(dir_okay=False), help="Write the graph as DOT (Graphviz).")
-@click.option(
-    "--plot",
-    type=click.Path(dir_okay=False),
-    help=f"Draw the graph (PNG/SVG/PDF by extension; at most {PLOT_NODE_LIMIT} nodes).",
-)
-@click.option("--force", is_flag=True, help="Replace output files that already exist.")
+@plot_option
+@force_option
 @maps_option
 @json_option
 def graph_cmd(
@@ -72,7 +58,7 @@ def graph_cmd(
     graphml,
     gexf,
     dot,
-    plot,
+    plot_path,
     force,
     map_files,
     as_json,
@@ -85,14 +71,7 @@ def graph_cmd(
     basins count the starts that fall into each.
     """
     m = resolve_map(map_spec, map_files)
-    n_to = parse_int(to, "--to", minimum=1)
-    n_from = parse_int(start, "--from", minimum=1)
-    steps = parse_int(max_steps, "--max-steps", minimum=1)
-    ceil = (
-        None
-        if str(ceiling).strip().lower() == "none"
-        else parse_int(ceiling, "--ceiling", minimum=1)
-    )
+    n_to, n_from, steps, ceil = to, start, max_steps, ceiling
     if n_to < n_from:
         raise BadInput(f"empty range: --from {n_from} is above --to {n_to}")
     if ceil is not None and ceil < n_to:
@@ -101,25 +80,22 @@ def graph_cmd(
         "graphml": check_output(graphml, "--graphml", force),
         "gexf": check_output(gexf, "--gexf", force),
         "dot": check_output(dot, "--dot", force),
-        "plot": check_output(plot, "--plot", force),
+        "plot": check_output(plot_path, "--plot", force),
     }
     names = [p for p in outputs.values() if p is not None]
     if len({p.resolve() for p in names}) != len(names):
         raise BadInput("two outputs name the same file")
 
-    err = stderr_console()
-    total = (n_to - n_from + 1) * (2 if side == "both" else 1)
-    progress = None
-    if total > 50_000:
-
-        def progress(done: int, all_: int) -> None:
-            err.print(f"graph: {done}/{all_} starts", end="\r")
-
-    result = functional_graph(
-        m, n_to, start=n_from, side=side, max_steps=steps, ceiling=ceil, progress=progress
-    )
-    if progress is not None:
-        err.print(" " * 40, end="\r")
+    with progress_display() as show:
+        result = functional_graph(
+            m,
+            n_to,
+            start=n_from,
+            side=side,
+            max_steps=steps,
+            ceiling=ceil,
+            progress=events(show, "graph", "starts"),
+        )
     nodes = result.graph.number_of_nodes()
     if outputs["plot"] is not None and nodes > PLOT_NODE_LIMIT:
         raise BadInput(

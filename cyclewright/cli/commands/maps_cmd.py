@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from ..options import catalog_for, json_option, maps_option, resolve_map
+from ..options import catalog_for, json_option, map_argument, maps_option, resolve_map
 from ..render import emit_json, make_table, stderr_console, stdout_console
 
 
@@ -55,7 +55,7 @@ def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
     "show",
     epilog="\b\nExamples:\n  cyclewright maps show 3x+1\n  cyclewright maps show 7x+3 --json",
 )
-@click.argument("map_spec", metavar="MAP")
+@map_argument
 @maps_option
 @json_option
 @click.pass_context

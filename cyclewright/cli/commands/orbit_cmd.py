@@ -4,36 +4,34 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.orbit import DEFAULT_MAX_STEPS, orbit
+from cyclewright.cycles.orbit import orbit
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, parse_int, resolve_map
+from ..options import (
+    ceiling_option,
+    json_option,
+    map_argument,
+    maps_option,
+    max_steps_option,
+    parse_int,
+    resolve_map,
+    show_option,
+)
 from ..render import emit_json, short, stdout_console
 
 
 @click.command(
     "orbit",
-    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 1e30",
+    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 10^30",
 )
-@click.argument("map_spec", metavar="MAP")
+@map_argument
 @click.argument("start", metavar="N")
-@click.option(
-    "--max-steps", default=DEFAULT_MAX_STEPS, show_default=True, type=int, help="Step cap."
-)
-@click.option(
-    "--ceiling", default=None, help="Stop once |value| exceeds this (integer, or 1e30 style)."
-)
-@click.option(
-    "--show",
-    "show_values",
-    default=60,
-    show_default=True,
-    type=int,
-    help="Values to print (table output).",
-)
+@max_steps_option
+@ceiling_option
+@show_option
 @maps_option
 @json_option
-def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_json) -> None:
+def orbit_cmd(map_spec, start, max_steps, ceiling, show, map_files, as_json) -> None:
     """Follow N under MAP: stopping time, the cycle entered, peak (exact).
 
     For ax+b maps the classic undivided step count and peak are shown too.
@@ -41,11 +39,11 @@ def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_js
     """
     m = resolve_map(map_spec, map_files)
     n = parse_int(start, "N")
-    if max_steps < 1:
-        raise BadInput(f"--max-steps must be at least 1, got {max_steps}")
-    ceil = None if ceiling is None else parse_int(ceiling, "--ceiling")
+    ceil = ceiling
     if ceil is not None and ceil < abs(n):
-        raise BadInput(f"--ceiling {ceil} is below |N| = {abs(n)}")
+        raise BadInput(
+            f"--ceiling {ceil} is below |N| = {abs(n)}: give a larger --ceiling, or 'none'"
+        )
     o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
     if as_json:
         emit_json(o.to_dict(max_values=None))
@@ -64,7 +62,7 @@ def orbit_cmd(map_spec, start, max_steps, ceiling, show_values, map_files, as_js
         con.print(
             f"undivided form: total steps {short(o.undivided_total_steps)}, peak {short(o.undivided_peak)}"
         )
-    vals = o.values[:show_values]
+    vals = o.values[:show]
     con.print(
         "values: "
         + " ".join(short(v) for v in vals)

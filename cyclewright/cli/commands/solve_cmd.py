@@ -6,7 +6,7 @@ import click
 
 from cyclewright.cycles.solver import solve
 
-from ..options import json_option, maps_option, resolve_map
+from ..options import json_option, map_argument, maps_option, resolve_map
 from ..render import emit_json, short, stdout_console
 
 
@@ -19,7 +19,7 @@ from ..render import emit_json, short, stdout_console
         "spaces (1^3 0^2, 10^4 0); for divisors above 10, residues separated by commas."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
+@map_argument
 @click.argument("itinerary", nargs=-1, required=True, metavar="ITINERARY...")
 @maps_option
 @json_option

@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import sys
-
 import click
 
 from ..errors import BadInput
-from ..render import emit_json, stderr_console, stdout_console
+from ..options import force_option, json_option, out_option, workers_option
+from ..progress import events, progress_display
+from ..render import emit_json, stdout_console
 from ..study import run_study
 from ..studyfile import StudyError, load_study
 
@@ -23,26 +23,21 @@ from ..studyfile import StudyError, load_study
     ),
 )
 @click.argument("path", type=click.Path(dir_okay=False), metavar="FILE.toml")
-@click.option(
-    "--out", "out", required=True, type=click.Path(file_okay=False), help="Output directory."
-)
-@click.option(
-    "--workers", type=int, default=None, help="Scan worker processes (default: all cores)."
-)
-@click.option("--force", is_flag=True, help="Write into a directory that holds something else.")
-@click.option("--json", "as_json", is_flag=True, help="Print a JSON summary instead of text.")
+@out_option(required=True)
+@workers_option
+@force_option
+@json_option
 def study_cmd(path, out, workers, force, as_json):
     """Run the analyses of a study file and write a report with its data."""
-    if workers is not None and workers < 1:
-        raise BadInput(f"--workers must be at least 1, got {workers}")
     try:
         study = load_study(path)
     except StudyError as exc:
         raise BadInput(str(exc)) from None
-    err = stderr_console()
-    say = (lambda msg: err.print(f"[study] {msg}")) if sys.stderr.isatty() else None
     try:
-        summary = run_study(study, out, workers=workers, force=force, say=say)
+        with progress_display() as show:
+            summary = run_study(
+                study, out, workers=workers, force=force, say=events(show, "study", "analyses")
+            )
     except StudyError as exc:
         raise BadInput(str(exc)) from None
     if as_json:

@@ -4,20 +4,31 @@ from __future__ import annotations
 
 import math
 import sys
-import time
 
 import click
 
 from cyclewright.cycles.counting import DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.cycles.sweep import sweep
-from cyclewright.maps import MapError, parse_int_range
 
 from ..errors import BadInput
 from ..files import atomic_write, check_output, save_figure
-from ..options import json_option, maps_option, resolve_map
-from ..render import emit_json, make_table, short, stderr_console, stdout_console, write_csv
-from .count_cmd import parse_count
+from ..options import (
+    IntExpr,
+    csv_option,
+    force_option,
+    json_option,
+    limit_option,
+    map_argument,
+    maps_option,
+    odd_range_option,
+    plot_option,
+    resolve_map,
+    show_option,
+    side_option,
+)
+from ..progress import events, progress_display
+from ..render import emit_json, make_table, short, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "plot_sweep"]
 
@@ -48,57 +59,34 @@ _TABLE_COLUMNS = [
         "every content of the other residues gets a row."
     ),
 )
-@click.argument("map_spec", metavar="MAP")
-@click.option("--odd", "odd_text", required=True, help="Range of x (odd steps), e.g. 1..2000.")
+@map_argument
+@odd_range_option(required=True)
 @click.option(
     "--extra-lengths",
     "extra",
     default=0,
     show_default=True,
-    type=int,
+    type=IntExpr(minimum=0),
     help="Further lengths per x beyond the critical one.",
 )
-@click.option(
-    "--side",
-    type=click.Choice(["positive", "negative"]),
-    default="positive",
-    show_default=True,
-    help="Cycles of positive or of negative integers.",
-)
-@click.option(
-    "--limit",
-    "limit_text",
-    default=str(DEFAULT_SWEEP_LIMIT),
-    show_default=True,
-    help="Enumerate a row's necklaces when there are at most this many.",
-)
-@click.option(
-    "--csv", "csv_path", default=None, help="Write the rows as CSV to FILE ('-' = stdout)."
-)
-@click.option(
-    "--plot", "plot_path", default=None, help="Write a log-scale plot to FILE.png (matplotlib)."
-)
-@click.option("--force", is_flag=True, help="Overwrite existing --csv / --plot files.")
-@click.option(
-    "--rows",
-    "max_rows",
-    default=40,
-    show_default=True,
-    type=int,
-    help="Rows shown in the table (a spread over the range; all rows go to --csv/--json).",
-)
+@side_option
+@limit_option
+@csv_option
+@plot_option
+@force_option
+@show_option
 @maps_option
 @json_option
 def sweep_cmd(
     map_spec,
-    odd_text,
+    odd_range,
     extra,
     side,
-    limit_text,
+    limit,
     csv_path,
     plot_path,
     force,
-    max_rows,
+    show,
     map_files,
     as_json,
 ) -> None:
@@ -109,20 +97,17 @@ def sweep_cmd(
     stays below the necklace count.
     """
     m = resolve_map(map_spec, map_files)
-    try:
-        xs = parse_int_range(odd_text)
-    except MapError as exc:
-        raise BadInput(f"--odd: {exc}") from None
-    limit = parse_count(limit_text, "--limit")
-    if extra < 0:
-        raise BadInput(f"--extra-lengths must be at least 0, got {extra}")
+    xs = odd_range
+    if limit is None:
+        limit = DEFAULT_SWEEP_LIMIT
     if as_json and csv_path == "-":
         raise BadInput("--json and --csv - both write to stdout; give --csv a file name")
     for path, what in ((csv_path, "--csv"), (plot_path, "--plot")):
         check_output(path, what, force)
     if plot_path and not plot_path.lower().endswith(".png"):
         raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
-    s = sweep(m, xs, extra, side, limit=limit, progress=_progress())
+    with progress_display() as show_progress:
+        s = sweep(m, xs, extra, side, limit=limit, progress=events(show_progress, "sweep", "types"))
     # Outputs are written only after the whole sweep succeeded.
     if csv_path:
         cols = s.columns
@@ -138,23 +123,7 @@ def sweep_cmd(
         return
     if csv_path == "-":
         return
-    _print_human(s, max_rows, csv_path, plot_path)
-
-
-def _progress():
-    """Row counter on stderr (only when it is a terminal), at most a few updates a second."""
-    if not sys.stderr.isatty():
-        return None
-    con = stderr_console()
-    last = [0.0]
-
-    def cb(done: int, total: int) -> None:
-        now = time.monotonic()
-        if done == total or now - last[0] > 0.25:
-            last[0] = now
-            con.print(f"sweep: {done:,} / {total:,} types", end="\r")
-
-    return cb
+    _print_human(s, show, csv_path, plot_path)
 
 
 def _pick_rows(n: int, max_rows: int) -> list[int]:
@@ -205,7 +174,7 @@ def _print_human(s, max_rows: int, csv_path, plot_path) -> None:
     caption = None
     if len(idx) < len(s.rows):
         caption = (
-            f"{len(idx)} of {len(s.rows)} rows shown; --csv or --json for all, --rows to change"
+            f"{len(idx)} of {len(s.rows)} rows shown; --csv or --json for all, --show to change"
         )
     con.print(make_table(None, _TABLE_COLUMNS, table_rows, caption=caption))
     if s.rho:

@@ -6,7 +6,7 @@ import click
 
 from cyclewright.cycles.certificate import verify_certificate
 
-from ..options import json_option
+from ..options import json_option, workers_option
 from ..render import emit_json, stdout_console
 
 
@@ -23,7 +23,7 @@ from ..render import emit_json, stdout_console
     default=None,
     help="Re-derive the cycle list (default: when the range is small).",
 )
-@click.option("--workers", type=int, default=None, help="Worker processes for the rescan.")
+@workers_option
 @json_option
 def verify_cmd(path, rescan, workers, as_json):
     """Re-check every listed cycle exactly, recompute bounds and ranges, optionally rescan."""

@@ -1,0 +1,164 @@
+"""The one progress display of the CLI, fed with :class:`~cyclewright.cycles.progress.ProgressEvent`.
+
+On a terminal (stderr is a tty) it draws a ``rich.progress`` bar per phase
+that disappears when the command ends; otherwise (a log file, a pipe, a
+test) it writes a plain line ``progress: scan: 1,000/10,000 starts`` at most
+once every few seconds, and nothing at all for work that ends sooner.
+
+Every command passes ``progress=display`` (a :class:`ProgressDisplay`) to the
+API; :func:`events` wraps a callback shape that is not yet an event.
+"""
+
+from __future__ import annotations
+
+import sys
+import time
+from collections.abc import Callable
+
+from cyclewright.cycles.progress import ProgressEvent
+
+__all__ = ["ProgressDisplay", "progress_display", "events", "PLAIN_INTERVAL"]
+
+#: Seconds between two plain progress lines (and before the first one).
+PLAIN_INTERVAL = 5.0
+
+
+class ProgressDisplay:
+    """A callable taking :class:`ProgressEvent`; use as a context manager.
+
+    Parameters
+    ----------
+    stream : file, optional
+        Where progress goes (default: ``sys.stderr``).
+    tty : bool, optional
+        Draw a bar (default: whether ``stream`` is a terminal).
+    interval : float
+        Seconds between plain lines.
+    clock : callable
+        Monotonic clock (tests pass their own).
+
+    Examples
+    --------
+    >>> import io
+    >>> out = io.StringIO()
+    >>> t = iter([0.0, 1.0, 6.0, 7.0])
+    >>> with ProgressDisplay(out, tty=False, clock=lambda: next(t)) as show:
+    ...     show(ProgressEvent("scan", 10, 100, "starts"))
+    ...     show(ProgressEvent("scan", 50, 100, "starts"))
+    >>> out.getvalue()
+    'progress: scan: 50/100 starts\\n'
+    """
+
+    def __init__(
+        self,
+        stream=None,
+        *,
+        tty: bool | None = None,
+        interval: float = PLAIN_INTERVAL,
+        clock: Callable[[], float] = time.monotonic,
+    ) -> None:
+        self.stream = stream if stream is not None else sys.stderr
+        try:
+            self.tty = self.stream.isatty() if tty is None else tty
+        except (AttributeError, ValueError):
+            self.tty = False
+        self.interval = interval
+        self.clock = clock
+        self.started = clock()
+        self.last = self.started
+        self._bar = None
+        self._tasks: dict[str, int] = {}
+
+    # --------------------------------------------------------------- events
+    def __call__(self, event: ProgressEvent) -> None:
+        if self.tty:
+            self._draw(event)
+            return
+        now = self.clock()
+        if now - self.last >= self.interval:
+            self.last = now
+            self.stream.write(f"progress: {event}\n")
+            self.stream.flush()
+
+    def _draw(self, event: ProgressEvent) -> None:
+        if self._bar is None:
+            from rich.console import Console
+            from rich.progress import (
+                BarColumn,
+                MofNCompleteColumn,
+                Progress,
+                TextColumn,
+                TimeElapsedColumn,
+                TimeRemainingColumn,
+            )
+
+            self._bar = Progress(
+                TextColumn("{task.description}"),
+                BarColumn(),
+                MofNCompleteColumn(),
+                TextColumn("{task.fields[unit]}"),
+                TimeElapsedColumn(),
+                TimeRemainingColumn(),
+                console=Console(file=self.stream),
+                transient=True,
+            )
+            self._bar.start()
+        label = event.phase + (f" ({event.detail})" if event.detail else "")
+        task = self._tasks.get(label)
+        if task is None:
+            task = self._bar.add_task(label, total=event.total, unit=event.unit)
+            self._tasks[label] = task
+        self._bar.update(
+            task, completed=event.done, total=event.total, description=label, unit=event.unit
+        )
+
+    # --------------------------------------------------------------- lifetime
+    def close(self) -> None:
+        """Remove the bar (a terminal) and end the display."""
+        if self._bar is not None:
+            self._bar.stop()
+            self._bar = None
+            self._tasks.clear()
+
+    def __enter__(self) -> ProgressDisplay:
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+
+def progress_display() -> ProgressDisplay:
+    """The display on stderr (a bar on a terminal, plain periodic lines otherwise)."""
+    return ProgressDisplay()
+
+
+def events(show: Callable[[ProgressEvent], None], phase: str, unit: str = ""):
+    """Wrap a callback shape that is not yet an event into :class:`ProgressEvent` values.
+
+    Accepts ``(done, total)``, an object with ``done``/``total`` (and
+    optionally ``side``), a message string, or an event (passed through).
+
+    >>> seen = []
+    >>> cb = events(seen.append, "sweep", "types")
+    >>> cb(3, 10); cb("3x+1"); str(seen[0]), str(seen[1])
+    ('sweep: 3/10 types', 'sweep: 0 types (3x+1)')
+    """
+    count = [0]
+
+    def callback(*args) -> None:
+        if len(args) == 1 and isinstance(args[0], ProgressEvent):
+            show(args[0])
+        elif len(args) == 2:
+            show(ProgressEvent(phase, int(args[0]), args[1], unit))
+        elif len(args) == 1 and isinstance(args[0], str):
+            show(ProgressEvent(phase, count[0], None, unit, args[0]))
+            count[0] += 1
+        elif len(args) == 1 and hasattr(args[0], "done"):
+            p = args[0]
+            parts = [str(getattr(p, "side", "") or "")]
+            if getattr(p, "unresolved", None):
+                parts.append(f"{p.unresolved:,} unresolved so far")
+            detail = ", ".join(x for x in parts if x)
+            show(ProgressEvent(phase, int(p.done), getattr(p, "total", None), unit, detail))
+
+    return callback
