@@ -23,7 +23,7 @@ M31 = maps.get("3x+1")
 
 
 def _product_allows(m, content, side, n: int) -> bool:
-    """Independent exact check of the necessary condition (DESIGN.md section 1, Eliahou 1993):
+    """Independent exact check of the necessary condition (docs/design.md, section 4; Eliahou 1993):
     prod_r (1 + s b_r/(a_r n))^{c_r} compared with d^k / A using Fractions only."""
     s = 1 if side == "positive" else -1
     k = sum(content)
@@ -48,7 +48,7 @@ def _product_allows(m, content, side, n: int) -> bool:
 @pytest.mark.parametrize("name", ["3x+1", "3x+5", "5x+1", "3x-1", "3x+1-undivided"])
 @pytest.mark.parametrize("side", ["positive", "negative"])
 def test_integer_bound_is_exactly_the_largest_allowed_minimum(name, side):
-    # Eliahou 1993 / DESIGN.md section 1: M is the largest n passing the product inequality
+    # Eliahou 1993 / docs/design.md, section 4: M is the largest n passing the product inequality
     m = maps.get(name)
     for k in range(1, 31):
         for x in range(1, k + 1):
@@ -68,7 +68,7 @@ def test_integer_bound_is_exactly_the_largest_allowed_minimum(name, side):
 
 
 def test_interval_matches_closed_form_in_mpmath():
-    # DESIGN.md section 1 formula n_min <= b / (a ((2^k/a^x)^(1/x) - 1)), evaluated by
+    # docs/design.md, section 4, formula n_min <= b / (a ((2^k/a^x)^(1/x) - 1)), evaluated by
     # mpmath at 60 digits (reference library)
     mpmath.mp.dps = 60
     try:
@@ -129,7 +129,7 @@ def test_bound_is_attained_by_negative_3x1_cycles():
 
 
 def test_negative_side_is_positive_side_of_conjugate():
-    # conjugation n -> -T(-n) (DESIGN.md section 1); common practice, no source
+    # conjugation n -> -T(-n) (docs/design.md, section 1); common practice, no source
     for name in ["3x+1", "5x+1", "3x+7"]:
         m = maps.get(name)
         conj = m.conjugate()

@@ -173,7 +173,7 @@ def test_2_68():
 
 
 def test_undivided_form_adds_the_odd_steps():
-    # DESIGN §1 convention: undivided length = divided length + odd steps
+    # docs/design.md, section 1, convention: undivided length = divided length + odd steps
     f = floor(maps.get("3x+1-undivided"), 2**40)
     assert (f.least_length, f.odd_steps) == (17_087_915 + 10_781_274, 10_781_274)
 

@@ -107,7 +107,7 @@ MAP_BRANCHES = {
 
 @pytest.mark.parametrize("name", sorted(MAP_BRANCHES))
 def test_incremental_numerators_equal_composite(name):
-    # DESIGN.md section 1 recursion (Böhm and Sontacchi 1978): B carried along the
+    # docs/design.md, sections 2-3: the recursion (Böhm and Sontacchi 1978): B carried along the
     # search tree equals the composite computed from scratch for every word
     d, br = MAP_BRANCHES[name]
     contents = [type_content(9, 4), type_content(12, 7)] if d == 2 else [(2, 2, 2), (3, 1, 2)]

@@ -8,8 +8,8 @@ Inside
   as a certified interval, whether the bound applies (relevant offsets of one
   sign) and whether the denominator's sign allows a cycle at all.
 
-The bound (DESIGN.md section 1)
--------------------------------
+The bound (docs/design.md, section 4)
+--------------------------------------
 Let ``n_1, ..., n_k`` be a cycle with itinerary of content ``c`` and all
 elements positive. Along it ``n_{i+1} / n_i = (a_i/d)(1 + β_i / n_i)`` with
 ``β_r = b_r / a_r``; the ratios multiply to 1, so
