@@ -38,6 +38,14 @@ _EXPORTS = {
     "PROVED": "cycles.labels",
     "HEURISTIC": "cycles.labels",
     "InputError": "cycles.errors",
+    # the shared vocabulary: sides, step cap and ceiling, progress events
+    "Side": "cycles.sides",
+    "SIDES": "cycles.sides",
+    "DEFAULT_SIDE": "cycles.sides",
+    "PerSide": "cycles.sides",
+    "DEFAULT_MAX_STEPS": "cycles.limits",
+    "DEFAULT_CEILING": "cycles.limits",
+    "ProgressEvent": "cycles.progress",
     # itineraries and exact cycles
     "parse_itinerary": "cycles.itinerary",
     "format_itinerary": "cycles.itinerary",
@@ -46,7 +54,7 @@ _EXPORTS = {
     "RationalCycle": "cycles.solver",
     "orbit": "cycles.orbit",
     "Orbit": "cycles.orbit",
-    "FoundCycle": "cycles.integer_cycle",
+    "IntegerCycle": "cycles.integer_cycle",
     # counting
     "word_count": "cycles.necklaces",
     "necklace_count": "cycles.necklaces",
@@ -64,6 +72,7 @@ _EXPORTS = {
     "linear_form_bound": "cycles.linear_forms",
     "LinearFormBound": "cycles.linear_forms",
     "largest_bound_up_to": "cycles.largest_bound",
+    "bound_for_length": "cycles.largest_bound",
     "LargestBound": "cycles.largest_bound",
     # continued fractions and floors
     "continued_fraction_log": "cycles.continued_fractions",
@@ -75,7 +84,6 @@ _EXPORTS = {
     # searches
     "scan": "cycles.scan.run",
     "ScanResult": "cycles.scan.result",
-    "ScanProgress": "cycles.scan.result",
     "functional_graph": "cycles.graph",
     "FunctionalGraph": "cycles.graph",
     "integral_cycles_by_itinerary": "cycles.wordsearch",

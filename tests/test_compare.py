@@ -27,11 +27,11 @@ def test_rows_agree_with_individual_analyses(cmp):
     for p in cmp.profiles:
         m = p.map
         r = p.row()
-        c = census(m, 16, store=False, workers=1)
+        c = census(m, 16, store=False, workers=1, side="both")
         assert r["census_minima"] == [x.minimum for x in c.cycles if x.minimum != 0]
         tc = count(m, r["k"], 8)
         assert (r["necklaces_at_x"], r["candidates_at_x"]) == (tc.necklaces, tc.candidates)
-        e = excursions(m, 2000, cap=1000)
+        e = excursions(m, 2000, max_steps=1000)
         assert r["largest_peak"] >= e.peak
     r1 = cmp.profiles[0].row()
     assert r1["floor_positive_length"] == floor(maps.get("3x+1"), 2000, "positive").least_length
@@ -56,7 +56,7 @@ def test_drift_values(cmp):
 def test_found_never_exceeds_candidates(name):
     # a theorem (distinct cycles have distinct minima, all multiples of |D| up to the largest numerator)
     m = maps.get(name)
-    c = census(m, 14, store=False, workers=1)
+    c = census(m, 14, store=False, workers=1, side="both")
     p = predictions(m, c)
     for row in p.rows:
         if row.candidates is not None:

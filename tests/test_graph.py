@@ -14,10 +14,11 @@ from cyclewright.cli.app import main
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.graph import functional_graph
 from cyclewright.cycles.orbit import orbit
+from cyclewright.cycles.solver import solve
 
 
 def _primitive_minima(g, sign=1):
-    return [c.minimum for c in g.cycles if c.primitive and c.minimum * sign > 0]
+    return [c.minimum for c in g.cycles if c.lagarias_primitive and c.minimum * sign > 0]
 
 
 # --------------------------------------------------------------------------
@@ -31,16 +32,18 @@ def test_3x_plus_5():
     g = functional_graph(maps.get("3x+5"), 400)
     assert g.cycle_minima(in_range=True) == [1, 5, 19, 23, 187, 347]
     assert _primitive_minima(g) == [1, 19, 23, 187, 347]
-    assert all(c.verified for c in g.cycles)
+    for c in g.cycles:  # every cycle is solve()'s integral cycle of its itinerary
+        rc = solve(g.map, c.itinerary)
+        assert rc.integral and rc.fixed_point == c.minimum
     assert g.escaped == g.unresolved == 0
-    assert sum(c.basin for c in g.cycles) == g.starts == 400
+    assert sum(g.basins) == g.starts == 400
 
 
 def test_3x_plus_13():
     # OEIS A226607 (k = 13): 1, 131, 211, 227, 251, 259, 283, 287, 319; plus 13 * {1, 2}
     g = functional_graph(maps.get("3x+13"), 330)
     assert _primitive_minima(g) == [1, 131, 211, 227, 251, 259, 283, 287, 319]
-    assert [c.minimum for c in g.cycles if not c.primitive] == [13]
+    assert [c.minimum for c in g.cycles if not c.lagarias_primitive] == [13]
 
 
 def test_3x_plus_7():
@@ -57,7 +60,11 @@ def test_3x_minus_k():
     g = functional_graph(maps.get("3x-11"), 200)
     assert _primitive_minima(g) == [19]
     # the non-primitive ones are 11 times the cycles of 3x-1 (Lagarias 1990)
-    assert [c.minimum for c in g.cycles if not c.primitive and c.minimum > 0] == [11, 55, 187]
+    assert [c.minimum for c in g.cycles if not c.lagarias_primitive and c.minimum > 0] == [
+        11,
+        55,
+        187,
+    ]
 
 
 def test_3x_plus_1_negative_side():
@@ -74,7 +81,7 @@ def test_5x_plus_1():
     g = functional_graph(maps.get("5x+1"), 200, ceiling=10**9)
     assert g.cycle_minima(in_range=True) == [1, 13, 17]
     assert g.escaped_share > 0.5
-    assert g.escaped + g.unresolved + sum(c.basin for c in g.cycles) == 200
+    assert g.escaped + g.unresolved + sum(g.basins) == 200
     d = g.to_dict()
     assert "not a proof" in d["escaped_note"] and d["labels"]["escaped"] == "exact"
 

@@ -8,7 +8,7 @@ import pytest
 
 from cyclewright import maps
 from cyclewright.cycles.errors import InputError
-from cyclewright.cycles.integer_cycle import FoundCycle, verified_cycle
+from cyclewright.cycles.integer_cycle import IntegerCycle, verified_cycle
 from cyclewright.cycles.scan import scan
 from cyclewright.cycles.scan.chunks import ChunkTask, default_chunk_size, plan_chunks, run_chunk
 from cyclewright.cycles.scan.reference import classify, cycle_minima
@@ -187,7 +187,7 @@ def test_result_to_dict_is_json_with_labels():
     assert doc["counts"]["negative"]["cycles"] == 3
     assert doc["cycles"][0]["elements"] == [1, 2]
     assert "ScanResult(3x+1" in repr(r)
-    assert FoundCycle.from_record(doc["cycles"][1]) == r.cycles[1]
+    assert IntegerCycle.from_record(doc["cycles"][1]) == r.cycles[1]
 
 
 def test_default_store_location(tmp_path):
@@ -202,7 +202,7 @@ def test_progress_callback():
     seen = []
     _scan("3x+1", 1000, chunk_size=100, progress=seen.append)
     assert seen[-1].done == seen[-1].total == 1000
-    assert all(p.side == "positive" for p in seen)
+    assert all(p.phase == "scan" and p.detail.startswith("positive side") for p in seen)
 
 
 # ----------------------------------------------------------------- bad input

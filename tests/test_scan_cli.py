@@ -172,14 +172,14 @@ def test_parse_bound():
 
 
 def test_progress_printer_waits(capsys):
-    from cyclewright.cycles.scan.result import ScanProgress
+    from cyclewright.cycles.progress import ProgressEvent
 
     clock = [100.0]
     display = ProgressDisplay(tty=False, clock=lambda: clock[0])
     p = events(display, "scan", "starts")
-    p(ScanProgress("positive", 10, 100, 0, 0.5, 10))
+    p(ProgressEvent("scan", 10, 100, "starts", "positive side, 0 unresolved"))
     assert capsys.readouterr().err == ""
     clock[0] += 6
-    p(ScanProgress("positive", 50, 100, 3, 1.5, 50))
+    p(ProgressEvent("scan", 50, 100, "starts", "positive side, 3 unresolved"))
     err = capsys.readouterr().err
     assert "50/100 starts" in err and "3 unresolved" in err

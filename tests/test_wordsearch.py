@@ -65,7 +65,8 @@ def test_matches_brute_force_over_all_words(m):
         return
     assert set(r.minima()) == _brute(m, K)
     for c in r.cycles:
-        assert c.integral and c.realized
+        rc = solve(m, c.itinerary)  # the record's itinerary has the record as its cycle
+        assert rc.integral and rc.realized and rc.fixed_point == c.minimum
         elems = [int(e) for e in c.elements]
         for i, v in enumerate(elems):
             assert m.step(v) == elems[(i + 1) % len(elems)]

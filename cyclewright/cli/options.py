@@ -36,7 +36,9 @@ from pathlib import Path
 
 import click
 
-from cyclewright.cycles.scan.chunks import DEFAULT_MAX_STEPS
+from cyclewright.cycles.limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
+from cyclewright.cycles.sides import DEFAULT_SIDE
+from cyclewright.cycles.sides import SIDES as _ACTUAL_SIDES
 from cyclewright.maps import Map, MapError, load_catalog
 
 from .errors import BadInput
@@ -83,11 +85,9 @@ __all__ = [
 ]
 
 #: The sides of a map's integers; ``both`` runs the positive and the negative side.
-SIDES = ("positive", "negative", "both")
-#: The one default side of every command (and study analysis) that takes a side.
-DEFAULT_SIDE = "positive"
-#: The one default value ceiling (``none`` switches it off).
-DEFAULT_CEILING = 10**15
+SIDES = (*_ACTUAL_SIDES, "both")
+# DEFAULT_SIDE, DEFAULT_MAX_STEPS and DEFAULT_CEILING are the API's own
+# (cycles/sides.py, cycles/limits.py), re-exported for the options below.
 #: Rows (or values) a table lists by default; ``--json`` always gives everything.
 DEFAULT_SHOW = 40
 

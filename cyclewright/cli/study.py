@@ -501,10 +501,10 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         max_length=p["max_length"],
         to=p["to"],
         odd=p["odd"],
-        cap=p["max_steps"],
+        max_steps=p["max_steps"],
         store=ctx.stores,
         workers=ctx.workers,
-        progress=ctx.say,
+        progress=lambda event: ctx.say(str(event)),
     )
     rows = cmp.rows()
     labels = rows[0]["labels"] if rows else {}
@@ -594,9 +594,9 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     for m in spec.maps:
         ctx.say(f"graph {m.label}")
         g = functional_graph(m, p["to"], side=p["side"], ceiling=p["ceiling"])
-        for c in g.cycles:
+        for c, basin in zip(g.cycles, g.basins):
             rows.append(
-                [m.label, c.minimum, c.length, c.basin, float(g.basin_share(c)), c.primitive]
+                [m.label, c.minimum, c.length, basin, float(g.basin_share(c)), c.lagarias_primitive]
             )
         rows.append(
             [m.label, "escaped (passed the ceiling)", None, g.escaped, float(g.escaped_share), None]

@@ -31,7 +31,7 @@ Inside
   ``D = 0``, and types whose proved bound leaves no integer minimum on the
   sides asked, are skipped); each integral fixed point is verified exactly.
 
-- :class:`Census` -- the result: cycles (:class:`cyclewright.cycles.integer_cycle.FoundCycle`), per
+- :class:`Census` -- the result: cycles (:class:`cyclewright.cycles.integer_cycle.IntegerCycle`), per
   side the method, the bound and the type attaining it, the scanned range.
 - :func:`census_family` -- the census of every member of ``ax+k`` over a range of ``k``.
 - :func:`parse_family` -- ``"3x+k"`` / ``"3x-k"`` templates.
@@ -56,17 +56,19 @@ from __future__ import annotations
 import math
 import re
 import time
-from collections.abc import Callable, Iterable
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from cyclewright.maps import Map, parse_shorthand
+from cyclewright.maps import Map, as_map, parse_shorthand
 
 from .errors import InputError
-from .integer_cycle import FoundCycle, cycle_from_element
+from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import CERTIFIED, EXACT, PROVED
 from .largest_bound import largest_bound_up_to
+from .progress import ProgressCallback, report
 from .scan.run import scan
+from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
 from .wordsearch import DegenerateMap, integral_cycles_by_itinerary
 
 __all__ = [
@@ -162,7 +164,7 @@ class Census:
     map: Map
     max_length: int
     sides: tuple[str, ...]
-    cycles: tuple[FoundCycle, ...]
+    cycles: tuple[IntegerCycle, ...]
     plans: dict[str, SidePlan]
     zero_cycle: bool
     cross_checked: bool
@@ -181,7 +183,7 @@ class Census:
         return tuple(c.minimum for c in self.cycles if c.minimum == 0)
 
     @property
-    def primitive(self) -> tuple[FoundCycle, ...]:
+    def primitive(self) -> tuple[IntegerCycle, ...]:
         """The cycles that are primitive in Lagarias' sense."""
         return tuple(c for c in self.cycles if c.lagarias_primitive)
 
@@ -238,7 +240,7 @@ def _crossing(m: Map) -> int | None:
     return math.floor(best)
 
 
-def itinerary_work(m: Map, max_length: int) -> int:
+def itinerary_work(m: Map | str, max_length: int) -> int:
     """Half-words the itinerary method joins up to ``max_length`` (for feasibility checks).
 
     For each length ``k`` the join pairs every product class of the prefixes
@@ -249,6 +251,7 @@ def itinerary_work(m: Map, max_length: int) -> int:
     >>> itinerary_work(maps.get("3x+1"), 4)
     50
     """
+    m = as_map(m)
     d = m.divisor
     half = (max_length + 1) // 2
     classes = [1]
@@ -263,7 +266,7 @@ def itinerary_work(m: Map, max_length: int) -> int:
     return total
 
 
-def _zero_cycle(m: Map, K: int) -> FoundCycle | None:
+def _zero_cycle(m: Map, K: int) -> IntegerCycle | None:
     x = 0
     for i in range(1, K + 1):
         x = m.step(x)
@@ -273,15 +276,15 @@ def _zero_cycle(m: Map, K: int) -> FoundCycle | None:
 
 
 def census(
-    m: Map,
+    m: Map | str,
     max_length: int,
     *,
-    side: str = "both",
+    side: Side = DEFAULT_SIDE,
     method: str = "auto",
     store=None,
     workers: int | None = None,
     max_scan: int = MAX_SCAN,
-    progress: Callable | None = None,
+    progress: ProgressCallback | None = None,
 ) -> Census:
     """Every integer cycle of ``m`` with length at most ``max_length``, certified.
 
@@ -303,8 +306,10 @@ def census(
         Scan worker processes.
     max_scan : int
         Refuse when a side would need a scan beyond this many starts.
-    progress : callable, optional
-        Passed to the scan.
+    progress : ProgressCallback, optional
+        Called with :class:`~cyclewright.cycles.progress.ProgressEvent`
+        values: the scan's (phase ``"scan"``) and one per side certified
+        (phase ``"census"``, unit ``"sides"``).
 
     Returns
     -------
@@ -321,7 +326,7 @@ def census(
     >>> from cyclewright import maps
     >>> census(maps.get("3x+5"), 30, side="positive", store=False, workers=1).minima_on("positive")
     (1, 5, 19, 23, 187, 347)
-    >>> census(maps.get("3x+1"), 200, store=False, workers=1).minima
+    >>> census(maps.get("3x+1"), 200, side="both", store=False, workers=1).minima
     (0, 1, -1, -5, -17)
     >>> census(maps.get("mod3-4x"), 12, store=False).plans["positive"].method
     'itineraries'
@@ -331,15 +336,14 @@ def census(
     Eliahou 1993 (the bound); Böhm and Sontacchi 1978 (the fixed point of a
     word); see the module docstring.
     """
+    m = as_map(m)
     t0 = time.perf_counter()
     if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
         raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
-    if side not in ("positive", "negative", "both"):
-        raise InputError(f"side must be positive, negative or both, got {side!r}")
+    sides = sides_of(side)
     if method not in METHODS:
         raise InputError(f"method must be one of {', '.join(METHODS)}, got {method!r}")
     K = max_length
-    sides = ("positive", "negative") if side == "both" else (side,)
     if method == "necklaces":
         return _census_by_necklaces(m, K, sides, t0)
     crossing = _crossing(m)
@@ -404,9 +408,10 @@ def census(
                 )
             need_words = False  # the automatic cross-check is skipped when too costly
 
-    found: dict[int, FoundCycle] = {}
+    found: dict[int, IntegerCycle] = {}
     store_path = None
-    for s, p in plans.items():
+    for i, (s, p) in enumerate(plans.items()):
+        report(progress, "census", i, len(plans), "sides", f"{s} side: {p.method}")
         if p.method != "bound-scan" or not p.scan_to:
             continue
         r = scan(
@@ -429,11 +434,11 @@ def census(
             words = integral_cycles_by_itinerary(m, K)
         except DegenerateMap as exc:
             raise InputError(str(exc)) from None
-        by_words: dict[int, FoundCycle] = {}
+        by_words: dict[int, IntegerCycle] = {}
         for c in words.cycles:
             mn = int(c.minimum)
             if mn == 0 or (mn > 0 and "positive" in plans) or (mn < 0 and "negative" in plans):
-                by_words[mn] = cycle_from_element(m, mn, len(c.elements))
+                by_words[mn] = c
         for s, p in plans.items():
             sign = 1 if s == "positive" else -1
             mine = {v for v in by_words if v * sign > 0}
@@ -451,6 +456,7 @@ def census(
         if cross_checked and any(p.method == "itineraries" for p in plans.values()):
             cross_checked = False  # a side certified by words alone is not cross-checked
 
+    report(progress, "census", len(plans), len(plans), "sides")
     zero = _zero_cycle(m, K)
     if zero is not None:
         found[0] = zero
@@ -495,13 +501,13 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
             f"{m.label}: the necklace method up to length {K} would enumerate {total} necklaces "
             f"(limit {MAX_NECKLACES}); use the itinerary method"
         )
-    found: dict[int, FoundCycle] = {}
+    found: dict[int, IntegerCycle] = {}
     for content in plan:
         tc = count(m, content=dict(enumerate(content)), limit=MAX_NECKLACES)
         for ic in tc.integer_cycles or ():
             mn = ic.minimum
             if mn == 0 or (mn > 0 and "positive" in sides) or (mn < 0 and "negative" in sides):
-                found[mn] = cycle_from_element(m, mn, ic.period)
+                found[mn] = ic
     zero = _zero_cycle(m, K)
     if zero is not None:
         found[0] = zero
@@ -604,9 +610,9 @@ def census_family(
     ks: Iterable[int],
     max_length: int,
     *,
-    side: str = "positive",
+    side: Side = DEFAULT_SIDE,
     all_k: bool = False,
-    progress: Callable[[int, int], None] | None = None,
+    progress: ProgressCallback | None = None,
     **kw,
 ) -> FamilyCensus:
     """The census of every member ``ax+k`` (or ``ax-k``) of a family.
@@ -618,12 +624,14 @@ def census_family(
     ks : iterable of int
         The values of ``k``.
     max_length : int
-    side : str
+    side : {"positive", "negative", "both"}
+        Passed to :func:`census`.
     all_k : bool
         Keep every ``k`` that gives a valid map; by default only ``k`` prime
         to ``2a`` (for 3x+k: prime to 6).
-    progress : callable, optional
-        Called with ``(done, total)`` after each member.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"family"``, unit ``"maps"``) after each member.
     **kw
         Passed to :func:`census` (``store``, ``workers``, ``max_scan``...).
 
@@ -633,6 +641,7 @@ def census_family(
     >>> [(r["k"], r["primitive_minima"]) for r in fam.table()]
     [(1, [1]), (5, [1, 19, 23]), (7, [5])]
     """
+    parse_side(side)
     a, sign = parse_family(template)
     ks = list(ks)
     members = (
@@ -646,6 +655,5 @@ def census_family(
     for i, k in enumerate(members, start=1):
         m = parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}")
         rows.append(census(m, max_length, side=side, **kw))
-        if progress:
-            progress(i, len(members))
+        report(progress, "family", i, len(members), "maps", m.label)
     return FamilyCensus(template, max_length, side, tuple(rows))

@@ -28,25 +28,27 @@ References
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .census import Census, census
 from .counting import count
 from .errors import InputError
 from .excursions import Excursions, excursions
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .limits import DEFAULT_MAX_STEPS
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
+from .progress import ProgressCallback, report
 from .sweep import critical_lengths, rho
 
 __all__ = ["compare", "Comparison", "MapProfile", "predictions", "Predictions", "critical_ratio"]
 
 
-def critical_ratio(m: Map) -> tuple[float, str] | None:
+def critical_ratio(m: Map | str) -> tuple[float, str] | None:
     """``log_d a`` when every multiplier other than 1 equals one ``a > 0`` (else None).
 
     Cycles need ``d^k ≈ A``: with ``j`` steps through multiplier ``a``,
@@ -56,6 +58,7 @@ def critical_ratio(m: Map) -> tuple[float, str] | None:
     >>> critical_ratio(maps.get("3x+1"))
     (1.58496..., 'log_2 3')
     """
+    m = as_map(m)
     others = {a for a in m.multipliers if a != 1}
     if len(others) != 1:
         return None
@@ -130,7 +133,9 @@ class Predictions:
         }
 
 
-def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_000) -> Predictions:
+def predictions(
+    m: Map | str, c: Census, *, limit: int = 10**5, max_types: int = 200_000
+) -> Predictions:
     """Cycles found by a census, type by type, against what the counting argument allows.
 
     Parameters
@@ -160,6 +165,7 @@ def predictions(m: Map, c: Census, *, limit: int = 10**5, max_types: int = 200_0
     >>> [(r.length, r.content[1], r.found, r.candidates) for r in p.rows if r.side == "positive"]
     [(2, 1, 1, 5), (3, 1, 1, 1), (5, 3, 2, 23)]
     """
+    m = as_map(m)
     K = c.max_length
     d = m.divisor
     n_types = math.comb(K + d, d)
@@ -385,36 +391,40 @@ class Comparison:
 
 
 def compare(
-    maps_: Sequence[Map],
+    maps_: Sequence[Map | str],
     *,
     max_length: int = 20,
     to: int = 10**5,
     odd: int = 20,
-    cap: int = 1_000,
+    max_steps: int = DEFAULT_MAX_STEPS,
     store=None,
     workers: int | None = None,
     count_limit: int = 10**5,
-    progress: Callable[[str], None] | None = None,
+    progress: ProgressCallback | None = None,
 ) -> Comparison:
     """Profiles of several maps with the same parameters.
 
     Parameters
     ----------
-    maps_ : sequence of Map
+    maps_ : sequence of Map or str
+        The maps, or their names, aliases or ``ax+b`` shorthands.
     max_length : int
         ``K`` for the census (both sides).
     to : int
         ``N`` for the scan of starts ``1..N`` on both sides and the floor.
     odd : int
         ``X``: the counting figures of the first critical type with ``x = X``.
-    cap : int
-        Step cap per start for the excursion walk.
+    max_steps : int
+        Step cap per start of the excursion walk and of the scan (default
+        :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`).
     store, workers
         Passed to the census' scan; ``store`` may be a directory (one store per map).
     count_limit : int
         Necklace enumeration limit.
-    progress : callable, optional
-        Called with a short message per stage.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"compare"``, unit ``"maps"``, the map and stage as detail)
+        at each stage of each map.
 
     Returns
     -------
@@ -432,27 +442,31 @@ def compare(
 
     if not maps_:
         raise InputError("compare needs at least one map")
+    maps_ = [as_map(x) for x in maps_]
     profiles = []
-    for m in maps_:
-        say = progress or (lambda _msg: None)
-        say(f"{m.label}: census up to length {max_length}")
+    for i, m in enumerate(maps_):
+
+        def say(stage: str, i: int = i, m: Map = m) -> None:
+            report(progress, "compare", i, len(maps_), "maps", f"{m.label}: {stage}")
+
+        say(f"census up to length {max_length}")
         try:
             c = census(m, max_length, side="both", store=store, workers=workers)
             cnote = ""
         except InputError as exc:
             c, cnote = None, str(exc)
-        say(f"{m.label}: excursions and scan to {to}")
+        say(f"excursions and scan to {to}")
         exc_ = {}
         met = {}
         scan_counts = {}
         floors, fnotes = {}, {}
         for side in ("positive", "negative"):
             try:
-                exc_[side] = excursions(m, to, side=side, cap=cap)
+                exc_[side] = excursions(m, to, side=side, max_steps=max_steps)
             except InputError as e:
                 fnotes[side] = str(e)
                 continue
-            sr = scan(m, to, side=side, max_steps=cap, store=store, workers=workers)
+            sr = scan(m, to, side=side, max_steps=max_steps, store=store, workers=workers)
             met[side] = list(sr.minima.get(side, ()))
             scan_counts[side] = {k: int(v) for k, v in sr.counts[side].items()}
             unresolved = sr.unresolved_count.get(side, 0)
@@ -497,4 +511,5 @@ def compare(
                 {"met": met, "scan_counts": scan_counts},
             )
         )
+    report(progress, "compare", len(maps_), len(maps_), "maps")
     return Comparison(tuple(profiles), max_length, to, odd)

@@ -8,7 +8,8 @@ Inside
   the proved bound on a cycle minimum, candidates, integer cycles (by
   enumeration when the necklaces are few enough), the heuristic expectation
   ``necklaces / |D|``, ``Λ = k ln d - ln A`` and its linear-forms lower bound.
-- :class:`IntegerCycle` -- one integer cycle found by the enumeration.
+- integer cycles found by the enumeration are
+  :class:`~cyclewright.cycles.integer_cycle.IntegerCycle` records.
 - :func:`sweep` -- types along the critical line ``d^k ≈ A`` for a range of
   ``x`` to :class:`Sweep`: one row per type, the fitted growth rate of the
   necklace counts against the theoretical ``ρ``, and the smallest ``x`` from
@@ -51,15 +52,15 @@ from __future__ import annotations
 
 import math
 import os
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 
 from cyclewright.maps import Map, as_map
 
 from .errors import InputError
+from .integer_cycle import IntegerCycle, cycle_from_element
 from .intervals import Interval, _log_form
-from .itinerary import format_itinerary
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .linear_forms import LinearFormBound, _linear_form_bound, candidates_from_linear_form
 from .minimum_bound import MinimumBound, _bound_of_content
@@ -71,11 +72,12 @@ from .necklaces import (
     type_content,
     word_count,
 )
+from .progress import ProgressCallback, report
+from .solver import cycle_representative
 
 __all__ = [
     "DEFAULT_LIMIT",
     "DEFAULT_SWEEP_LIMIT",
-    "IntegerCycle",
     "TypeCount",
     "count",
 ]
@@ -87,46 +89,12 @@ DEFAULT_LIMIT = 10**6
 DEFAULT_SWEEP_LIMIT = 10**4
 """The same for each row of a ``sweep`` (kept small so that sweeps stay interactive)."""
 
-_BYTES_PER_LISTED = 240  # an IntegerCycle without its strings, CPython, measured roughly
+_BYTES_PER_LISTED = 240  # an IntegerCycle without its strings and elements, CPython, roughly
 _SECONDS_PER_LETTER = 2e-7  # enumeration cost per necklace letter on a 2020s CPU (rough)
 _MAX_SECONDS = 86400.0  # enumerations estimated above a day are refused
 
 
 # ------------------------------------------------------------------ results
-@dataclass(frozen=True)
-class IntegerCycle:
-    """An integer cycle found by enumerating the necklaces of a type (exact).
-
-    Attributes
-    ----------
-    necklace : str
-        The itinerary's least rotation (as generated).
-    itinerary : str
-        The rotation that starts at the cycle's minimum.
-    minimum : int
-        The element of least absolute value.
-    period : int
-        Length of the primitive root of the itinerary (the cycle's length).
-    primitive : bool
-        True when the itinerary is not a power of a shorter word.
-    """
-
-    necklace: str
-    itinerary: str
-    minimum: int
-    period: int
-    primitive: bool
-
-    def to_dict(self) -> dict:
-        return {
-            "necklace": self.necklace,
-            "itinerary": self.itinerary,
-            "minimum": self.minimum,
-            "period": self.period,
-            "primitive": self.primitive,
-        }
-
-
 @dataclass(frozen=True)
 class TypeCount:
     """Counting figures for one type; see the module docstring for the definitions.
@@ -154,7 +122,9 @@ class TypeCount:
     candidates : int or None
         Exact when enumerated; else the proved bound ``M`` (None when no bound applies).
     integer_cycles : tuple of IntegerCycle or None
-        None when not enumerated.
+        The integer cycles whose itinerary is a necklace of this type (a
+        cycle of length ``p < k`` when the necklace is a power of a word of
+        length ``p``); None when not enumerated.
     unrealized : int or None
         Integral fixed points whose itinerary the map does not follow
         (possible only when a multiplier shares a factor with ``d``).
@@ -418,15 +388,17 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
     """Worst-case memory (bytes) and rough time (seconds) to enumerate ``necklaces`` of length ``k``.
 
     Memory: the search itself needs O(k); the worst case is that every
-    necklace is an integer cycle and is listed, ``240 + 2k`` bytes each.
+    necklace is an integer cycle and is listed, ``240 + 2k`` bytes each plus
+    its ``k`` elements (a pointer and an integer of about ``k`` bits each:
+    ``k (36 + k // 8)`` bytes).
     Time: about ``2e-7 (1 + k/2000)`` seconds per letter (rough; numerators
     have about ``k`` bits).
 
     >>> mem, secs = enumeration_estimate(10**6, 30)
     >>> mem
-    300000000
+    1470000000
     """
-    per = _BYTES_PER_LISTED + 2 * k
+    per = _BYTES_PER_LISTED + 2 * k + k * (36 + k // 8)
     # numerators have about k bits: big-integer steps slow down for long words
     return necklaces * per, necklaces * k * _SECONDS_PER_LETTER * (1 + k / 2000)
 
@@ -440,13 +412,13 @@ def _check_limit(limit) -> int:
 
 
 def count(
-    m: Map,
+    m: Map | str,
     k: int | None = None,
     x: int | None = None,
     *,
     content: Sequence[int] | Mapping[int, int] | None = None,
     limit: int = DEFAULT_LIMIT,
-    progress: Callable[[int, int], None] | None = None,
+    progress: ProgressCallback | None = None,
 ) -> TypeCount:
     """Counting figures for one type.
 
@@ -464,8 +436,10 @@ def count(
         (default ``10**6``). A limit that would let the enumeration list
         more integer cycles than half the memory holds, or run for more than
         a day, is refused (:class:`~cyclewright.cycles.errors.InputError`, with the estimate).
-    progress : callable(done, total), optional
-        Called during the enumeration every 65536 necklaces.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"enumerate"``, unit ``"necklaces"``) every 65536 necklaces
+        of the enumeration and at its end.
 
     Returns
     -------
@@ -499,7 +473,7 @@ def _count_content(
     m: Map,
     c: tuple[int, ...],
     limit: int,
-    progress: Callable[[int, int], None] | None = None,
+    progress: ProgressCallback | None = None,
     side_hint: str | None = None,
 ) -> TypeCount:
     d = m.divisor
@@ -643,14 +617,17 @@ def _enumerate(m: Map, c: tuple[int, ...], D: int, total: int, progress=None):
                 found.append(cyc)
         done += 1
         if progress is not None and not done & 0xFFFF:
-            progress(done, total)
-    if progress is not None:
-        progress(done, total)
+            report(progress, "enumerate", done, total, "necklaces")
+    report(progress, "enumerate", done, total, "necklaces")
     return smallest, largest, tuple(found), unrealized
 
 
 def _integer_cycle(m: Map, arr: list[int], p: int, k: int, n0: int) -> IntegerCycle | None:
-    """Check by exact iteration that the integer n0 follows the word; build the record."""
+    """Check by exact iteration that the integer n0 follows the word; build the record.
+
+    The cycle's length is ``p``, the period of the necklace (``p < k`` when the
+    type's word is a power: the cycle is then traversed ``k / p`` times).
+    """
     d = m.divisor
     word = tuple(arr[1 : k + 1])
     elements = []
@@ -662,13 +639,4 @@ def _integer_cycle(m: Map, arr: list[int], p: int, k: int, n0: int) -> IntegerCy
         n = m.step(n)
     if n != n0:  # pragma: no cover - algebraically impossible
         return None
-    j = min(range(p), key=lambda i: (abs(elements[i]), elements[i]))
-    root = word[:p]
-    from_min = (root[j:] + root[:j]) * (k // p)
-    return IntegerCycle(
-        necklace=format_itinerary(word, d),
-        itinerary=format_itinerary(from_min, d),
-        minimum=elements[j],
-        period=p,
-        primitive=p == k,
-    )
+    return cycle_from_element(m, cycle_representative(elements), p)

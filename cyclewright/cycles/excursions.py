@@ -29,10 +29,12 @@ from fractions import Fraction
 import numpy as np
 from numba import njit
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .labels import EXACT
+from .limits import DEFAULT_MAX_STEPS
+from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = ["excursions", "Excursions"]
 
@@ -91,7 +93,7 @@ class Excursions:
     side: str
     start: int
     to: int
-    cap: int
+    max_steps: int
     peak: int
     peak_start: int
     peak_overflowed: bool
@@ -121,7 +123,7 @@ class Excursions:
             "side": self.side,
             "start": self.start,
             "to": self.to,
-            "cap": self.cap,
+            "max_steps": self.max_steps,
             "peak": self.peak,
             "peak_start": self.peak_start,
             "peak_overflowed": self.peak_overflowed,
@@ -139,8 +141,13 @@ class Excursions:
 
 
 def excursions(
-    m: Map, to: int, *, start: int = 1, side: str = "positive", cap: int = 10_000
-) -> Excursions:
+    m: Map | str,
+    to: int,
+    *,
+    start: int = 1,
+    side: Side = DEFAULT_SIDE,
+    max_steps: int = DEFAULT_MAX_STEPS,
+) -> Excursions | PerSide[Excursions]:
     """Follow every start of ``start..to`` until it drops below its start.
 
     Parameters
@@ -148,13 +155,17 @@ def excursions(
     m : Map
     to, start : int
         The range of absolute values (``1 <= start <= to < 2^62``).
-    side : {"positive", "negative"}
-    cap : int
-        Step cap per start.
+    side : {"positive", "negative", "both"}
+        With ``"both"``, one result per side.
+    max_steps : int
+        Step cap per start (default
+        :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`).
 
     Returns
     -------
-    Excursions
+    Excursions or PerSide of Excursions
+        One :class:`Excursions`; for ``side="both"`` a
+        :class:`~cyclewright.cycles.sides.PerSide` with one per side.
 
     Examples
     --------
@@ -164,22 +175,29 @@ def excursions(
     (4616, 27)
     >>> e.stopped, e.returned       # 1 returns to itself; every other start drops
     (29, 1)
+    >>> [e.peak for e in excursions("3x+1", 30, side="both")]
+    [4616, 136]
     """
-    if side not in ("positive", "negative"):
-        raise InputError(f"side must be positive or negative, got {side!r}")
+    m = as_map(m)
+    parse_side(side)
     if start < 1 or to < start:
         raise InputError(f"empty range {start}..{to}")
     if to >= _LIMIT:
         raise InputError(f"to = {to} is beyond 2^62")
-    if cap < 1:
-        raise InputError("cap must be at least 1")
+    if isinstance(max_steps, bool) or not isinstance(max_steps, int) or max_steps < 1:
+        raise InputError(f"max_steps must be an integer >= 1, got {max_steps!r}")
     if any(abs(a) >= 2**31 or abs(b) >= 2**31 for a, b in m.branches):
         raise InputError(f"{m.label}: coefficients too large for the compiled excursion walk")
+    return on_sides(side, lambda s: _excursions(m, to, start, s, max_steps))
+
+
+def _excursions(m: Map, to: int, start: int, side: str, max_steps: int) -> Excursions:
+    """The walks of one side (arguments checked by :func:`excursions`)."""
     ma = np.array(m.multipliers, dtype=np.int64)
     mb = np.array(m.offsets, dtype=np.int64)
     sign = 1 if side == "positive" else -1
     best, bstart, stopped, returned, capped, over, ttime = _walk_range(
-        start, to, sign, m.divisor, ma, mb, cap, _LIMIT
+        start, to, sign, m.divisor, ma, mb, max_steps, _LIMIT
     )
     mean = Fraction(int(ttime), int(stopped)) if stopped else None
     return Excursions(
@@ -187,7 +205,7 @@ def excursions(
         side,
         start,
         to,
-        cap,
+        max_steps,
         int(best),
         int(bstart),
         bool(best >= _LIMIT),

@@ -61,7 +61,7 @@ import heapq
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .continued_fractions import (
     Approximant,
@@ -74,6 +74,7 @@ from .continued_fractions import (
 from .errors import InputError
 from .intervals import _log_sign, _Precision
 from .labels import EXACT, PROVED
+from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "Floor",
@@ -376,7 +377,9 @@ def _shape(m: Map) -> tuple[int, int, int, int, int]:
     )
 
 
-def floor(m: Map, verified_to: int, side: str = "positive", *, next_types: int = 5) -> Floor:
+def floor(
+    m: Map | str, verified_to: int, side: Side = DEFAULT_SIDE, *, next_types: int = 5
+) -> Floor | PerSide[Floor]:
     """The least length and odd-step count of any further cycle, given a verified range.
 
     If no cycle on ``side`` has its minimum (element of least absolute value)
@@ -393,14 +396,18 @@ def floor(m: Map, verified_to: int, side: str = "positive", *, next_types: int =
         multiplying branch (every ``ax+b`` map).
     verified_to : int
         ``N >= 0``.
-    side : {"positive", "negative"}
-        The negative side is the positive side of ``m.conjugate()``.
+    side : {"positive", "negative", "both"}
+        The negative side is the positive side of ``m.conjugate()``; with
+        ``"both"`` each side gets its own floor.
     next_types : int
         How many further possible types to list.
 
     Returns
     -------
-    Floor
+    Floor or PerSide of Floor
+        One :class:`Floor`; for ``side="both"`` a
+        :class:`~cyclewright.cycles.sides.PerSide` with the floor of each side
+        where the bound applies and, in ``problems``, why it does not elsewhere.
 
     Raises
     ------
@@ -419,21 +426,26 @@ def floor(m: Map, verified_to: int, side: str = "positive", *, next_types: int =
     >>> f = floor(maps.get("3x+1"), 16, side="negative")   # the cycle through -17
     >>> f.least_length, f.odd_steps
     (11, 7)
+    >>> [(f.side, f.least_length) for f in floor("3x+1", 16, side="both")]
+    [('positive', 8), ('negative', 11)]
 
     References
     ----------
     Eliahou 1993 (the method); see the module docstring.
     """
-    if not isinstance(m, Map):
-        raise InputError(f"expected a Map, got {type(m).__name__}")
-    if side not in ("positive", "negative"):
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    m = as_map(m)
+    parse_side(side)
     if isinstance(verified_to, bool) or not isinstance(verified_to, int):
         raise InputError(f"verified_to must be an integer, got {verified_to!r}")
     if verified_to < 0:
         raise InputError(f"verified_to must be at least 0, got {verified_to}")
     if isinstance(next_types, bool) or not isinstance(next_types, int) or next_types < 0:
         raise InputError(f"next_types must be a non-negative integer, got {next_types!r}")
+    return on_sides(side, lambda s: _floor(m, verified_to, s, next_types), tolerate=True)
+
+
+def _floor(m: Map, verified_to: int, side: str, next_types: int) -> Floor:
+    """The floor on one side (arguments checked by :func:`floor`)."""
     work = m if side == "positive" else m.conjugate()
     c, e, a, b_c, b_e = _shape(work)
     N = verified_to

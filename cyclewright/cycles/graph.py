@@ -12,7 +12,8 @@ Inside
   the basins (how many starts fall into each cycle); how many starts passed
   the ceiling or were left unresolved; export to GraphML, GEXF and DOT; a
   matplotlib drawing for small graphs.
-- :class:`GraphCycle` -- one cycle with its basin.
+- cycles are :class:`~cyclewright.cycles.integer_cycle.IntegerCycle`
+  records; ``FunctionalGraph.basins[i]`` is the basin of ``cycles[i]``.
 
 Every node ``n`` has one out-edge ``n -> T(n)``, except the *frontier*
 nodes: a value beyond the ceiling (``beyond_ceiling``) or the value where a
@@ -51,107 +52,29 @@ from pathlib import Path
 
 import networkx as nx
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .files import atomic_write
-from .itinerary import content as _content
-from .itinerary import format_itinerary, primitive_root
+from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import EXACT
-from .solver import cycle_representative, lagarias_primitive, solve
+from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
+from .progress import ProgressCallback, report
+from .sides import DEFAULT_SIDE, Side, parse_side
+from .solver import cycle_representative
 
 __all__ = [
-    "GraphCycle",
     "FunctionalGraph",
     "functional_graph",
-    "DEFAULT_MAX_STEPS",
-    "DEFAULT_CEILING",
     "MAX_STARTS",
     "PLOT_NODE_LIMIT",
 ]
 
-DEFAULT_MAX_STEPS = 10_000
-DEFAULT_CEILING = 10**15
 MAX_STARTS = 2_000_000
 PLOT_NODE_LIMIT = 2_000
 
 ESCAPED = -1
 UNRESOLVED = -2
-
-
-@dataclass(frozen=True)
-class GraphCycle:
-    """A cycle found in the graph (every figure ``exact``).
-
-    Attributes
-    ----------
-    index : int
-        Position in :attr:`FunctionalGraph.cycles` (the node attribute ``basin``).
-    elements : tuple of int
-        The cycle, starting at its minimum.
-    itinerary : tuple of int
-        Residues of the elements (a primitive word).
-    basin : int
-        How many of the starts fall into this cycle (including the cycle's
-        own elements that are starts).
-    verified : bool
-        True when :func:`cyclewright.cycles.solver.solve` on the itinerary gives exactly
-        these integers.
-    primitive : bool
-        Primitive in Lagarias' sense (``gcd`` of elements and offsets is 1).
-    """
-
-    index: int
-    elements: tuple[int, ...]
-    itinerary: tuple[int, ...]
-    basin: int
-    verified: bool
-    primitive: bool
-    divisor: int
-
-    @property
-    def minimum(self) -> int:
-        """The element of least absolute value (the negative one on a tie)."""
-        return self.elements[0]
-
-    @property
-    def length(self) -> int:
-        return len(self.elements)
-
-    @property
-    def content(self) -> tuple[int, ...]:
-        return _content(self.itinerary, self.divisor)
-
-    @property
-    def odd_steps(self) -> int | None:
-        """For two-branch maps, the number of odd elements."""
-        return self.content[1] if self.divisor == 2 else None
-
-    @property
-    def sign(self) -> int:
-        return 1 if self.minimum > 0 else (-1 if self.minimum < 0 else 0)
-
-    def to_dict(self) -> dict:
-        return {
-            "index": self.index,
-            "minimum": self.minimum,
-            "length": self.length,
-            "odd_steps": self.odd_steps,
-            "content": list(self.content),
-            "itinerary": format_itinerary(self.itinerary, self.divisor),
-            "elements": list(self.elements),
-            "primitive": self.primitive,
-            "verified": self.verified,
-            "basin": self.basin,
-            "label": EXACT.value,
-        }
-
-    def __repr__(self) -> str:
-        shown = ", ".join(map(str, self.elements[:8])) + (", ..." if self.length > 8 else "")
-        return (
-            f"GraphCycle(minimum={self.minimum}, length={self.length}, {{{shown}}}, "
-            f"basin={self.basin})"
-        )
 
 
 @dataclass(frozen=True, repr=False)
@@ -171,8 +94,12 @@ class FunctionalGraph:
     ceiling : int or None
         Walks stop once ``|value|`` exceeds it (escaped).
     graph : networkx.DiGraph
-    cycles : tuple of GraphCycle
-        Every cycle reached, sorted by ``|minimum|`` (the negative first on a tie).
+    cycles : tuple of IntegerCycle
+        Every cycle reached, sorted by ``|minimum|`` (the negative first on a
+        tie); its index is the node attribute ``basin``.
+    basins : tuple of int
+        ``basins[i]``: how many starts fall into ``cycles[i]`` (including the
+        cycle's own elements that are starts).
     starts : int
         How many starts.
     escaped, unresolved : int
@@ -186,7 +113,8 @@ class FunctionalGraph:
     max_steps: int
     ceiling: int | None
     graph: nx.DiGraph = field(compare=False)
-    cycles: tuple[GraphCycle, ...]
+    cycles: tuple[IntegerCycle, ...]
+    basins: tuple[int, ...]
     starts: int
     escaped: int
     unresolved: int
@@ -210,8 +138,13 @@ class FunctionalGraph:
     def unresolved_share(self) -> Fraction:
         return Fraction(self.unresolved, self.starts)
 
-    def basin_share(self, cycle: GraphCycle) -> Fraction:
-        return Fraction(cycle.basin, self.starts)
+    def basin(self, cycle: IntegerCycle) -> int:
+        """How many starts fall into ``cycle`` (one of :attr:`cycles`)."""
+        return self.basins[self.cycles.index(cycle)]
+
+    def basin_share(self, cycle: IntegerCycle) -> Fraction:
+        """The share of the starts that fall into ``cycle`` (exact)."""
+        return Fraction(self.basin(cycle), self.starts)
 
     def cycle_minima(self, *, in_range: bool = False) -> list[int]:
         """The cycles' minima; with ``in_range`` only those that are starts.
@@ -232,7 +165,7 @@ class FunctionalGraph:
             return True
         return self.side in ("negative", "both") and lo <= -n <= hi
 
-    def basin_of(self, n: int) -> GraphCycle | str:
+    def basin_of(self, n: int) -> IntegerCycle | str:
         """The cycle a node of the graph leads to, or ``"escaped"``/``"unresolved"``."""
         if n not in self.graph:
             raise InputError(f"{n} is not a node of this graph")
@@ -257,9 +190,13 @@ class FunctionalGraph:
             "edges": self.graph.number_of_edges(),
             "cycles": [
                 dict(
-                    c.to_dict(), basin_share=self.basin_share(c), in_range=self._is_start(c.minimum)
+                    c.to_dict(),
+                    index=i,
+                    basin=b,
+                    basin_share=Fraction(b, self.starts),
+                    in_range=self._is_start(c.minimum),
                 )
-                for c in self.cycles
+                for i, (c, b) in enumerate(zip(self.cycles, self.basins))
             ],
             "escaped": self.escaped,
             "escaped_share": self.escaped_share,
@@ -452,14 +389,14 @@ def _check_int(value, what: str) -> int:
 
 
 def functional_graph(
-    m: Map,
+    m: Map | str,
     to: int,
     *,
     start: int = 1,
-    side: str = "positive",
+    side: Side = DEFAULT_SIDE,
     max_steps: int = DEFAULT_MAX_STEPS,
     ceiling: int | None = DEFAULT_CEILING,
-    progress: Callable[[int, int], None] | None = None,
+    progress: ProgressCallback | None = None,
 ) -> FunctionalGraph:
     """Build the functional graph of ``m`` from every start in a range.
 
@@ -481,12 +418,15 @@ def functional_graph(
         Smallest start (in absolute value), at least 1.
     side : {"positive", "negative", "both"}
     max_steps : int
-        New values per walk before it stops (unresolved).
+        New values per walk before it stops (unresolved); default
+        :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`.
     ceiling : int or None
         Stop a walk once ``|value| > ceiling``; None for no ceiling (then
-        only the step cap stops an escaping orbit).
-    progress : callable, optional
-        Called as ``progress(done, total)`` every few thousand starts.
+        only the step cap stops an escaping orbit); default
+        :data:`~cyclewright.cycles.limits.DEFAULT_CEILING`.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"graph"``, unit ``"starts"``) every few thousand starts.
 
     Returns
     -------
@@ -496,7 +436,7 @@ def functional_graph(
     --------
     >>> from cyclewright import maps
     >>> g = functional_graph(maps.get("3x+1"), 30, side="both")
-    >>> [(c.minimum, c.length, c.basin) for c in g.cycles]
+    >>> [(c.minimum, c.length, b) for c, b in zip(g.cycles, g.basins)]
     [(-1, 1, 14), (1, 2, 30), (-5, 3, 12), (-17, 11, 4)]
     >>> g.escaped, g.unresolved
     (0, 0)
@@ -508,13 +448,11 @@ def functional_graph(
     ----------
     Lagarias 1985 (cycles of 3x+1 on both sides); see the module docstring.
     """
-    if not isinstance(m, Map):
-        raise InputError(f"expected a Map, got {type(m).__name__}")
+    m = as_map(m)
     to = _check_int(to, "to")
     start = _check_int(start, "start")
     max_steps = _check_int(max_steps, "max_steps")
-    if side not in ("positive", "negative", "both"):
-        raise InputError(f"side must be 'positive', 'negative' or 'both', got {side!r}")
+    parse_side(side)
     if start < 1:
         raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
     if to < start:
@@ -543,8 +481,8 @@ def functional_graph(
             starts.append(-s)
     total = len(starts)
     for i, s in enumerate(starts):
-        if progress is not None and i % 4096 == 0:
-            progress(i, total)
+        if i % 4096 == 0:
+            report(progress, "graph", i, total, "starts")
         v = s
         new = 0
         while v not in succ and v not in frontier:
@@ -559,8 +497,7 @@ def functional_graph(
                 frontier[w] = "unresolved"
                 break
             v = w
-    if progress is not None:
-        progress(total, total)
+    report(progress, "graph", total, total, "starts")
 
     g = nx.DiGraph()
     g.add_nodes_from(succ)
@@ -612,26 +549,9 @@ def functional_graph(
     nx.set_node_attributes(g, basin_of, "basin")
     nx.set_node_attributes(g, {n: frontier.get(n, "") for n in g.nodes}, "frontier")
 
-    found = []
-    for idx, elems in enumerate(cycles_sorted):
-        word = tuple(e % d for e in elems)
-        sol = solve(m, primitive_root(word))
-        verified = (
-            sol.integral
-            and len(sol.elements) == len(elems)
-            and {int(e) for e in sol.elements} == set(elems)
-        )
-        found.append(
-            GraphCycle(
-                index=idx,
-                elements=elems,
-                itinerary=word,
-                basin=counts.get(idx, 0),
-                verified=verified,
-                primitive=lagarias_primitive(m, list(elems)),
-                divisor=d,
-            )
-        )
+    # each cycle is rebuilt and proved in exact arithmetic (iteration, and
+    # solve() on its itinerary): an internal error otherwise, never a report
+    found = tuple(cycle_from_element(m, elems[0], len(elems)) for elems in cycles_sorted)
     return FunctionalGraph(
         map=m,
         side=side,
@@ -640,7 +560,8 @@ def functional_graph(
         max_steps=max_steps,
         ceiling=ceiling,
         graph=g,
-        cycles=tuple(found),
+        cycles=found,
+        basins=tuple(counts.get(i, 0) for i in range(len(found))),
         starts=total,
         escaped=counts.get(ESCAPED, 0),
         unresolved=counts.get(UNRESOLVED, 0),

@@ -1,9 +1,16 @@
-"""One integer cycle of a map, verified exactly.
+"""One integer cycle of a map, verified exactly: the one record every analysis returns.
 
 Inside
 ------
-- :class:`FoundCycle` -- one integer cycle: minimum, length, odd steps or
-  content, itinerary, elements, primitivity (of the word; Lagarias').
+- :class:`IntegerCycle` -- one integer cycle: minimum, length, odd steps or
+  content, itinerary, elements, and both notions of primitivity:
+  ``primitive_itinerary`` (the itinerary is not a power of a shorter word)
+  and ``lagarias_primitive`` (the elements share no factor with every
+  offset, Lagarias 1990). The scan, the census, the necklace enumeration of
+  :func:`~cyclewright.cycles.counting.count` and the functional graph all
+  return this record; a rational cycle of an itinerary is a
+  :class:`~cyclewright.cycles.solver.RationalCycle` (a different concept:
+  its elements need not be integers, and its word may be a power).
 - :func:`verified_cycle`, :func:`cycle_from_element` -- build one from a
   start known to lie on a cycle, checked in exact arithmetic and by
   :func:`cyclewright.cycles.solver.solve` on its itinerary.
@@ -18,15 +25,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .itinerary import content as word_content
 from .itinerary import format_itinerary, is_primitive
 from .labels import EXACT
+from .sides import parse_side
 from .solver import cycle_representative, lagarias_primitive, solve
 
 __all__ = [
-    "FoundCycle",
+    "IntegerCycle",
     "verified_cycle",
     "cycle_from_element",
 ]
@@ -34,30 +42,33 @@ __all__ = [
 
 # --------------------------------------------------------------------------- cycles
 @dataclass(frozen=True)
-class FoundCycle:
-    """An integer cycle found by the scan (every figure exact).
+class IntegerCycle:
+    """An integer cycle of a map (every figure exact, verified when built).
 
     Attributes
     ----------
     side : str
-        ``"positive"`` or ``"negative"``: the sign of the minimum.
+        ``"positive"``, ``"negative"`` or ``"zero"``: the sign of the minimum.
     minimum : int
-        The element of least absolute value (negative for negative cycles).
+        The element of least absolute value (negative for negative cycles;
+        the negative one on a tie).
     length : int
-        Number of elements (the period).
+        Number of distinct elements.
     odd_steps : int or None
         For two-branch maps: steps through residue 1.
     content : tuple of int
         How many steps go through each residue.
     itinerary : str
-        The residues visited from the minimum (the parity vector for d = 2).
+        The residues visited from the minimum, one period (the parity vector
+        for d = 2).
     elements : tuple of int
         The cycle from its minimum.
     primitive_itinerary : bool
-        The itinerary is not a power of a shorter word.
+        The itinerary is not a power of a shorter word (true of every cycle
+        whose itinerary has a unique fixed point; recorded for the others).
     lagarias_primitive : bool
-        The elements' gcd with the offsets is 1 (Lagarias 1990); a
-        non-primitive cycle is a multiple of a cycle of a map with smaller offsets.
+        The elements' gcd with the offsets is 1 (Lagarias 1990); a cycle that
+        is not is a multiple of a cycle of a map with smaller offsets.
     denominator : int or None
         ``d^k - A`` of the itinerary (None when it is 0, so ``solve`` has no
         unique fixed point; the cycle is then proved by iteration alone).
@@ -94,7 +105,7 @@ class FoundCycle:
     to_dict = to_record
 
     @classmethod
-    def from_record(cls, rec: dict) -> FoundCycle:
+    def from_record(cls, rec: dict) -> IntegerCycle:
         return cls(
             rec["side"],
             int(rec["minimum"]),
@@ -114,12 +125,10 @@ class FoundCycle:
         more = ", ..." if self.length > 6 else ""
         kind = "" if self.lagarias_primitive else ", not primitive"
         steps = f", {self.odd_steps} odd" if self.odd_steps is not None else ""
-        return (
-            f"FoundCycle(min {self.minimum}, length {self.length}{steps}: {{{shown}{more}}}{kind})"
-        )
+        return f"IntegerCycle(min {self.minimum}, length {self.length}{steps}: {{{shown}{more}}}{kind})"
 
 
-def verified_cycle(m: Map, side: str, start: int, length: int) -> FoundCycle:
+def verified_cycle(m: Map | str, side: str, start: int, length: int) -> IntegerCycle:
     """Rebuild and prove the cycle of ``start`` (kernel coordinates) in exact arithmetic.
 
     The orbit of ``x0 = +-start`` under ``m`` is iterated ``length`` steps; it
@@ -132,8 +141,9 @@ def verified_cycle(m: Map, side: str, start: int, length: int) -> FoundCycle:
     >>> verified_cycle(maps.get("3x+1"), "negative", 17, 11).elements[:4]
     (-17, -25, -37, -55)
     """
+    m = as_map(m)
     d = m.divisor
-    x0 = start if side == "positive" else -start
+    x0 = start if parse_side(side, allow_both=False) == "positive" else -start
     word = []
     elements = []
     x = x0
@@ -155,7 +165,7 @@ def verified_cycle(m: Map, side: str, start: int, length: int) -> FoundCycle:
         prim = is_primitive(word)
         denominator = None
     cont = word_content(word, d)
-    return FoundCycle(
+    return IntegerCycle(
         side="positive" if x0 > 0 else "negative",
         minimum=x0,
         length=length,
@@ -169,8 +179,15 @@ def verified_cycle(m: Map, side: str, start: int, length: int) -> FoundCycle:
     )
 
 
-def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
-    """The verified cycle record of the cycle whose minimum is ``x0`` (any sign, 0 allowed)."""
+def cycle_from_element(m: Map | str, x0: int, length: int) -> IntegerCycle:
+    """The verified cycle record of the cycle whose minimum is ``x0`` (any sign, 0 allowed).
+
+    >>> from cyclewright import maps
+    >>> c = cycle_from_element(maps.get("3x+5"), 19, 5)
+    >>> c.itinerary, c.elements, c.primitive_itinerary, c.lagarias_primitive
+    ('11100', (19, 31, 49, 76, 38), True, True)
+    """
+    m = as_map(m)
     if x0 == 0:
         x, elems, word = 0, [], []
         for _ in range(length):
@@ -180,7 +197,7 @@ def cycle_from_element(m: Map, x0: int, length: int) -> FoundCycle:
         if x != 0:
             raise RuntimeError(f"internal error: 0 does not return after {length} steps")
         cont = word_content(word, m.divisor)
-        return FoundCycle(
+        return IntegerCycle(
             "zero",
             0,
             length,

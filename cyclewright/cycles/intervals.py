@@ -27,20 +27,17 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .necklaces import normalize_content, type_content
 
 __all__ = [
-    "SIDES",
     "Interval",
     "resolve_content",
     "log_form",
 ]
 
-
-SIDES = ("positive", "negative")
 
 # Below this many bits a sign is decided with plain integers.
 _EXACT_BITS = 1 << 15
@@ -151,7 +148,7 @@ def _ivprec(bits: int):
 
 
 # ------------------------------------------------------------------ contents
-def resolve_content(m: Map, content_or_type) -> tuple[int, ...]:
+def resolve_content(m: Map | str, content_or_type) -> tuple[int, ...]:
     """Turn a type or a content into a content tuple ``(c_0, ..., c_{d-1})``.
 
     For ``d = 2`` a pair ``(k, x)`` is the *type* (length, odd steps); a
@@ -164,6 +161,7 @@ def resolve_content(m: Map, content_or_type) -> tuple[int, ...]:
     >>> resolve_content(maps.get("3x+1"), {0: 5, 1: 8})
     (5, 8)
     """
+    m = as_map(m)
     d = m.divisor
     if isinstance(content_or_type, Mapping):
         return normalize_content(content_or_type, d)
@@ -178,7 +176,7 @@ def resolve_content(m: Map, content_or_type) -> tuple[int, ...]:
 
 
 # ------------------------------------------------------------------ log form
-def log_form(m: Map, content_or_type, *, rel_bits: int = 64) -> Interval:
+def log_form(m: Map | str, content_or_type, *, rel_bits: int = 64) -> Interval:
     """``Λ = k ln d - sum_r c_r ln a_r`` (that is ``ln(d^k / A)``) as a certified interval.
 
     Uses ``mpmath.iv`` and raises the working precision until the interval's
@@ -195,6 +193,7 @@ def log_form(m: Map, content_or_type, *, rel_bits: int = 64) -> Interval:
     ----------
     mpmath interval arithmetic (``mpmath.iv``).
     """
+    m = as_map(m)
     content = resolve_content(m, content_or_type)
     return _log_form(m.divisor, tuple(m.branches), content, rel_bits)
 

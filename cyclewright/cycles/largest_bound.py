@@ -41,13 +41,14 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .continued_fractions import continued_fraction_log
 from .errors import InputError
-from .intervals import _MAX_PREC, SIDES, Interval, _iv_to_interval, _ivprec, _mpf_to_fraction
+from .intervals import _MAX_PREC, Interval, _iv_to_interval, _ivprec, _mpf_to_fraction
 from .labels import PROVED
 from .minimum_bound import MinimumBound, _bound_of_content
+from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "LargestBound",
@@ -170,8 +171,8 @@ _PREFILTER_METHOD = (
 
 
 def largest_bound_up_to(
-    m: Map, K: int, side: str = "positive", *, method: str = "auto"
-) -> LargestBound:
+    m: Map | str, K: int, side: Side = DEFAULT_SIDE, *, method: str = "auto"
+) -> LargestBound | PerSide[LargestBound]:
     """The largest proved bound on a cycle minimum over all types of length ``1..K``.
 
     Every integer cycle on ``side`` of length ``<= K`` whose elements share
@@ -194,14 +195,16 @@ def largest_bound_up_to(
     m : Map
     K : int
         Largest length, ``>= 1``.
-    side : {"positive", "negative"}
+    side : {"positive", "negative", "both"}
+        ``"both"`` gives one bound per side.
     method : {"auto", "continued-fraction", "prefilter"}
         ``auto``: the continued fraction where it applies, else the
         prefilter. ``prefilter`` forces the per-type method (for checks).
 
     Returns
     -------
-    LargestBound
+    LargestBound or PerSide of LargestBound
+        For ``side="both"`` a :class:`~cyclewright.cycles.sides.PerSide`.
 
     Examples
     --------
@@ -214,6 +217,8 @@ def largest_bound_up_to(
     (217976794617, 137528045312, True)
     >>> largest_bound_up_to(maps.get("mod3-4x"), 3).applies
     False
+    >>> [b.integer for b in largest_bound_up_to("3x+1", 20, side="both")]
+    [31, 295]
 
     Notes
     -----
@@ -229,10 +234,10 @@ def largest_bound_up_to(
     Eliahou 1993 (the bound of one type); Khinchin 1935 and Graham, Knuth,
     Patashnik 1994 section 4.5 (best one-sided approximations).
     """
+    m = as_map(m)
     if isinstance(K, bool) or not isinstance(K, int) or K < 1:
         raise InputError(f"the largest length K must be an integer >= 1, got {K!r}")
-    if side not in SIDES:
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    parse_side(side)
     if method not in ("auto", "continued-fraction", "prefilter"):
         raise InputError(f"method must be auto, continued-fraction or prefilter, got {method!r}")
     if method == "continued-fraction" and not continued_fraction_applies(m):
@@ -241,26 +246,29 @@ def largest_bound_up_to(
             "a > 0 not a power of 2 and b != 0"
         )
     if method != "prefilter" and continued_fraction_applies(m):
-        return _largest_by_continued_fraction(m, K, side)
+        return on_sides(side, lambda s: _largest_by_continued_fraction(m, K, s))
     if _halving_two_branch(m) and K > PREFILTER_MAX_LENGTHS:
         raise InputError(
             f"{m.label}: the largest bound over {K} lengths needs the per-length prefilter "
             f"(the multiplier is a power of 2), limited to {PREFILTER_MAX_LENGTHS} lengths"
         )
-    return _largest(m, 1, K, side)
+    return on_sides(side, lambda s: _largest(m, 1, K, s))
 
 
-def bound_for_length(m: Map, k: int, side: str = "positive") -> LargestBound:
-    """The largest proved minimum bound over the types of one length ``k``.
+def bound_for_length(
+    m: Map | str, k: int, side: Side = DEFAULT_SIDE
+) -> LargestBound | PerSide[LargestBound]:
+    """The largest proved minimum bound over the types of one length ``k`` (per side for ``"both"``).
 
     >>> from cyclewright import maps
     >>> b = bound_for_length(maps.get("3x+1"), 13)
     >>> b.integer, b.odd
     (11, 8)
     """
+    m = as_map(m)
     if isinstance(k, bool) or not isinstance(k, int) or k < 1:
         raise InputError(f"the length k must be an integer >= 1, got {k!r}")
-    return _largest(m, k, k, side)
+    return on_sides(side, lambda s: _largest(m, k, k, s))
 
 
 def _halving_two_branch(m: Map) -> bool:
@@ -272,7 +280,7 @@ def _halving_two_branch(m: Map) -> bool:
     )
 
 
-def continued_fraction_applies(m: Map) -> bool:
+def continued_fraction_applies(m: Map | str) -> bool:
     """Whether :func:`largest_bound_up_to` uses the continued fraction of ``log2 a`` for ``m``.
 
     True for maps ``n -> n/2`` (even), ``(a n + b)/2`` (odd) with ``a > 0``
@@ -282,6 +290,7 @@ def continued_fraction_applies(m: Map) -> bool:
     >>> continued_fraction_applies(maps.get("3x+1")), continued_fraction_applies(maps.get("mod3-4x"))
     (True, False)
     """
+    m = as_map(m)
     if not _halving_two_branch(m):
         return False
     a = m.branches[1].multiplier
@@ -289,8 +298,6 @@ def continued_fraction_applies(m: Map) -> bool:
 
 
 def _largest(m: Map, k_lo: int, k_hi: int, side: str) -> LargestBound:
-    if side not in SIDES:
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
     if _halving_two_branch(m):
         cands, considered = _candidates_halving(m, k_lo, k_hi, side)
         witness = None

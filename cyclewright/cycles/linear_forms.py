@@ -25,11 +25,12 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .intervals import _iv_to_interval, _ivprec, resolve_content
 from .labels import PROVED
 from .minimum_bound import _setup
+from .sides import DEFAULT_SIDE, Side
 
 __all__ = [
     "RHIN_EXPONENT",
@@ -163,7 +164,7 @@ def _rhin_log_lower(H: int) -> Fraction:
         return _iv_to_interval(val).lo
 
 
-def linear_form_bound(m: Map, content_or_type) -> LinearFormBound:
+def linear_form_bound(m: Map | str, content_or_type) -> LinearFormBound:
     """A proved lower bound for ``|Λ| = |k ln d - ln A|`` from linear forms in logarithms.
 
     ``Λ`` is rewritten over primes: ``Λ = sum_p e_p ln p``. With one prime,
@@ -192,6 +193,7 @@ def linear_form_bound(m: Map, content_or_type) -> LinearFormBound:
     Rhin 1987; Laurent 2008 (module docstring). Both constants are recalled
     from the papers (from memory).
     """
+    m = as_map(m)
     content = resolve_content(m, content_or_type)
     return _linear_form_bound(m.divisor, tuple(m.branches), content)
 
@@ -320,7 +322,7 @@ def _log_base_exact(n: int, base: int) -> int:
 
 
 def candidates_from_linear_form(
-    m: Map, content_or_type, side: str = "positive"
+    m: Map | str, content_or_type, side: Side = DEFAULT_SIDE
 ) -> tuple[int | None, LinearFormBound]:
     """An integer ``M_LF`` with ``|minimum| <= M_LF`` for every cycle of the type, from ``|Λ| >= λ``.
 
@@ -338,6 +340,7 @@ def candidates_from_linear_form(
     >>> len(str(M))
     16
     """
+    m = as_map(m)
     content = resolve_content(m, content_or_type)
     st = _setup(m, content, side)
     lf = _linear_form_bound(m.divisor, tuple(m.branches), content)

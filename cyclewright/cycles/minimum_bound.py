@@ -46,11 +46,9 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
-from .errors import InputError
 from .intervals import (
-    SIDES,
     Interval,
     _iv_to_interval,
     _ivprec,
@@ -58,6 +56,7 @@ from .intervals import (
     resolve_content,
 )
 from .labels import PROVED
+from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "MinimumBound",
@@ -164,8 +163,7 @@ class _Setup:
 
 
 def _setup(m: Map, content: tuple[int, ...], side: str) -> _Setup:
-    if side not in SIDES:
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    parse_side(side, allow_both=False)
     return _setup_cached(m.divisor, tuple(m.branches), content, side)
 
 
@@ -411,7 +409,9 @@ def _certified_sign_g(st: _Setup, content, M: Fraction, prec: int) -> int | None
     return None
 
 
-def minimum_bound(m: Map, content_or_type, side: str = "positive") -> MinimumBound:
+def minimum_bound(
+    m: Map | str, content_or_type, side: Side = DEFAULT_SIDE
+) -> MinimumBound | PerSide[MinimumBound]:
     """The proved bound on the minimum of any cycle of a type on one side.
 
     Parameters
@@ -419,13 +419,15 @@ def minimum_bound(m: Map, content_or_type, side: str = "positive") -> MinimumBou
     m : Map
     content_or_type : (k, x) for two-branch maps, or a content
         See :func:`resolve_content`.
-    side : {"positive", "negative"}
+    side : {"positive", "negative", "both"}
         Cycles of positive or of negative integers (the negative side is the
-        positive side of the conjugate map ``n -> -T(-n)``).
+        positive side of the conjugate map ``n -> -T(-n)``); ``"both"``
+        gives one bound per side.
 
     Returns
     -------
-    MinimumBound
+    MinimumBound or PerSide of MinimumBound
+        For ``side="both"`` a :class:`~cyclewright.cycles.sides.PerSide`.
 
     Examples
     --------
@@ -439,13 +441,16 @@ def minimum_bound(m: Map, content_or_type, side: str = "positive") -> MinimumBou
     35
     >>> minimum_bound(maps.get("mod3-4x"), (1, 1, 1)).applies
     False
+    >>> [b.possible for b in minimum_bound("3x+1", (13, 8), side="both")]
+    [True, False]
 
     References
     ----------
     Böhm and Sontacchi 1978; Eliahou 1993 (module docstring).
     """
+    m = as_map(m)
     content = resolve_content(m, content_or_type)
-    return _bound_of_content(m, content, side)
+    return on_sides(side, lambda s: _bound_of_content(m, content, s))
 
 
 def _bound_of_content(

@@ -35,15 +35,15 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import TypeVar
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .itinerary import format_itinerary
 from .labels import EXACT
+from .limits import DEFAULT_MAX_STEPS
 
-__all__ = ["brent", "orbit", "Orbit", "DEFAULT_MAX_STEPS"]
+__all__ = ["brent", "orbit", "Orbit"]
 
 T = TypeVar("T")
-DEFAULT_MAX_STEPS = 100_000
 
 
 def brent(f: Callable[[T], T], x0: T, max_steps: int) -> tuple[int, int] | None:
@@ -204,7 +204,9 @@ class Orbit:
         )
 
 
-def orbit(m: Map, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | None = None) -> Orbit:
+def orbit(
+    m: Map | str, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | None = None
+) -> Orbit:
     """Follow ``n`` under ``m`` until it closes a cycle, passes ``ceiling`` or ``max_steps``.
 
     Parameters
@@ -212,9 +214,11 @@ def orbit(m: Map, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | Non
     m : Map
     n : int
     max_steps : int
-        Cap on the number of steps (the orbit never loops forever).
+        Cap on the number of steps (the orbit never loops forever); default
+        :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`.
     ceiling : int, optional
-        Stop with status ``"escaped"`` once ``|value|`` exceeds this.
+        Stop with status ``"escaped"`` once ``|value|`` exceeds this (default:
+        no ceiling, a single orbit is exact at any size).
 
     Returns
     -------
@@ -231,6 +235,7 @@ def orbit(m: Map, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | Non
     >>> orbit(maps.get("5x+1"), 7, max_steps=200).status
     'capped'
     """
+    m = as_map(m)
     if isinstance(n, bool) or not isinstance(n, int):
         raise TypeError(f"orbit start must be an integer, got {n!r}")
     if max_steps < 1:

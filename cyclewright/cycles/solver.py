@@ -55,7 +55,7 @@ def cycle_representative(elements: Sequence[Fraction | int]) -> Fraction | int:
     return min(elements, key=lambda q: (abs(q), q))
 
 
-def lagarias_primitive(m: Map, elements: Sequence[int]) -> bool:
+def lagarias_primitive(m: Map | str, elements: Sequence[int]) -> bool:
     """Whether an integer cycle is primitive: ``gcd(elements, offsets) = 1``.
 
     A cycle whose elements share a factor ``g`` with every offset is ``g``
@@ -68,6 +68,7 @@ def lagarias_primitive(m: Map, elements: Sequence[int]) -> bool:
     >>> lagarias_primitive(maps.get("3x+7"), [5, 11, 20, 10])
     True
     """
+    m = as_map(m)
     g = 0
     for b in m.offsets:
         g = math.gcd(g, b)

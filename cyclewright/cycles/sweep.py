@@ -19,10 +19,10 @@ from __future__ import annotations
 
 import math
 import time
-from collections.abc import Callable, Iterable, Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .counting import (
     DEFAULT_SWEEP_LIMIT,
@@ -32,6 +32,8 @@ from .counting import (
 )
 from .errors import InputError
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .progress import ProgressCallback, report
+from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "rho",
@@ -42,7 +44,7 @@ __all__ = [
 
 
 # ------------------------------------------------------------------ sweep
-def rho(m: Map) -> float | None:
+def rho(m: Map | str) -> float | None:
     """The theoretical growth rate of necklaces along the critical line (a float).
 
     For a two-branch map with residue-0 branch ``n/2`` and multiplier ``a > 2``:
@@ -54,6 +56,7 @@ def rho(m: Map) -> float | None:
     >>> round(rho(maps.get("3x+1")), 6)   # equals t^t / (t-1)^(t-1)
     2.839514
     """
+    m = as_map(m)
     if m.divisor != 2 or tuple(m.branches[0]) != (1, 0):
         return None
     a = m.branches[1].multiplier
@@ -89,7 +92,7 @@ def _boundary_length(d: int, a0: int, x: int, P: int) -> int:
 
 
 def critical_lengths(
-    m: Map, content_rest: Sequence[int], extra_lengths: int = 0, side: str = "positive"
+    m: Map | str, content_rest: Sequence[int], extra_lengths: int = 0, side: str = "positive"
 ) -> list[int]:
     """The lengths a sweep uses for one content of the non-zero residues.
 
@@ -108,6 +111,7 @@ def critical_lengths(
     >>> critical_lengths(maps.get("3x+1"), (7,), 1, side="negative")
     [11, 10]
     """
+    m = as_map(m)
     d = m.divisor
     a0 = m.branches[0].multiplier
     if not 0 < a0 < d:
@@ -116,8 +120,7 @@ def critical_lengths(
         )
     if any(a <= 0 for a in m.multipliers):
         raise InputError("a sweep needs positive multipliers (the critical line d^k ≈ A)")
-    if side not in ("positive", "negative"):
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    parse_side(side, allow_both=False)
     x = sum(content_rest)
     P = 1
     for (a, _b), cr in zip(m.branches[1:], content_rest):
@@ -288,14 +291,14 @@ class Sweep:
 
 
 def sweep(
-    m: Map,
+    m: Map | str,
     odd: Iterable[int] = range(1, 101),
     extra_lengths: int = 0,
-    side: str = "positive",
+    side: Side = DEFAULT_SIDE,
     *,
     limit: int = DEFAULT_SWEEP_LIMIT,
-    progress: Callable[[int, int], None] | None = None,
-) -> Sweep:
+    progress: ProgressCallback | None = None,
+) -> Sweep | PerSide[Sweep]:
     """Count every type along the critical line for a range of ``x``.
 
     For each ``x`` (odd steps; for ``d > 2``: steps off residue 0, with one row
@@ -309,16 +312,20 @@ def sweep(
         The values of ``x`` (each ``>= 0``).
     extra_lengths : int
         How many further lengths per ``x``.
-    side : {"positive", "negative"}
+    side : {"positive", "negative", "both"}
+        With ``"both"``, one sweep per side.
     limit : int
         Enumerate a row's necklaces when there are at most this many
         (default ``10**4``, to keep sweeps interactive).
-    progress : callable(done, total), optional
-        Called after each row.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"sweep"``, unit ``"types"``, the side as detail) after each row.
 
     Returns
     -------
-    Sweep
+    Sweep or PerSide of Sweep
+        One :class:`Sweep`; for ``side="both"`` a
+        :class:`~cyclewright.cycles.sides.PerSide` with one per side.
 
     Examples
     --------
@@ -328,7 +335,10 @@ def sweep(
     ('k=13, x=8', 99, 8)
     >>> s.crossover_x
     6
+    >>> [len(s) for s in sweep("3x+1", range(1, 11), side="both")]
+    [10, 10]
     """
+    m = as_map(m)
     xs = sorted(set(int(v) for v in odd))
     if not xs:
         raise InputError("the range of x is empty")
@@ -336,8 +346,7 @@ def sweep(
         raise InputError(f"x must be at least 0, got {xs[0]}")
     if isinstance(extra_lengths, bool) or not isinstance(extra_lengths, int) or extra_lengths < 0:
         raise InputError(f"extra lengths must be an integer >= 0, got {extra_lengths!r}")
-    if side not in ("positive", "negative"):
-        raise InputError(f"side must be 'positive' or 'negative', got {side!r}")
+    parse_side(side)
     limit = _check_limit(limit)
     d = m.divisor
     n_rest = sum(math.comb(x + d - 2, d - 2) for x in xs)
@@ -345,6 +354,12 @@ def sweep(
         raise InputError(
             f"this sweep would have about {n_rest * (extra_lengths + 1)} rows; narrow the range of x"
         )
+    return on_sides(side, lambda s: _sweep(m, xs, extra_lengths, s, limit, progress))
+
+
+def _sweep(m: Map, xs: list[int], extra_lengths: int, side: str, limit: int, progress) -> Sweep:
+    """The sweep of one side (arguments checked by :func:`sweep`)."""
+    d = m.divisor
     t0 = time.perf_counter()
     plan: list[tuple[int, ...]] = []
     for x in xs:
@@ -354,8 +369,7 @@ def sweep(
     rows: list[TypeCount] = []
     for i, c in enumerate(plan):
         rows.append(_count_content(m, c, limit, None, side_hint=side))
-        if progress is not None:
-            progress(i + 1, len(plan))
+        report(progress, "sweep", i + 1, len(plan), "types", side)
     elapsed = time.perf_counter() - t0
     fitted, fit_range = _fit_rate(rows, xs, 0.0)
     corrected, _ = _fit_rate(rows, xs, 1.5)

@@ -42,11 +42,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from .errors import InputError
+from .integer_cycle import IntegerCycle, cycle_from_element
 from .itinerary import primitive_root
-from .solver import RationalCycle, cycle_representative, solve
+from .solver import cycle_representative, solve
 
 __all__ = ["integral_cycles_by_itinerary", "words_table", "DegenerateMap", "WordSearchResult"]
 
@@ -57,7 +58,7 @@ class DegenerateMap(InputError):
     """A word with ``d^k = A`` and ``B = 0``: every point following it is fixed (infinitely many cycles)."""
 
 
-def words_table(m: Map, length: int) -> tuple[list[int], list[int]]:
+def words_table(m: Map | str, length: int) -> tuple[list[int], list[int]]:
     """Composites of all ``d^length`` words, in lexicographic order of the words.
 
     Returns two lists ``A, B`` indexed by the word read as a base-``d``
@@ -69,6 +70,7 @@ def words_table(m: Map, length: int) -> tuple[list[int], list[int]]:
     >>> words_table(maps.get("3x+1"), 2)   # words 00, 01, 10, 11
     ([1, 3, 3, 9], [0, 2, 1, 5])
     """
+    m = as_map(m)
     d = m.divisor
     A, B = [1], [0]
     dt = 1
@@ -114,14 +116,13 @@ def _mulmod(x: np.ndarray, y: int, modulus: int) -> np.ndarray:
 class WordSearchResult:
     """Integer cycles of length at most ``max_length`` found by the itinerary method.
 
-    ``cycles`` are verified :class:`~cyclewright.cycles.solver.RationalCycle` objects, one
-    per cycle, rotated to start at the cycle minimum, sorted by (sign,
-    |minimum|). ``words_examined`` counts the half-words joined (for reports).
+    ``cycles`` are verified :class:`~cyclewright.cycles.integer_cycle.IntegerCycle`
+    records, one per cycle, sorted by (sign, |minimum|). ``words_examined`` counts the half-words joined (for reports).
     """
 
     map: Map
     max_length: int
-    cycles: tuple[RationalCycle, ...]
+    cycles: tuple[IntegerCycle, ...]
     words_examined: int
     method: str = (
         "itineraries (meet in the middle over words; each hit verified by exact iteration)"
@@ -138,7 +139,7 @@ class WordSearchResult:
         return tuple(sorted(vals, key=lambda v: (v < 0, abs(v))))
 
 
-def integral_cycles_by_itinerary(m: Map, max_length: int) -> WordSearchResult:
+def integral_cycles_by_itinerary(m: Map | str, max_length: int) -> WordSearchResult:
     """Every integer cycle of ``m`` with length at most ``max_length``, from itineraries.
 
     Parameters
@@ -170,6 +171,7 @@ def integral_cycles_by_itinerary(m: Map, max_length: int) -> WordSearchResult:
     Böhm and Sontacchi 1978 (the fixed point of a word); Horowitz and Sahni
     1974 (meet in the middle). See the module docstring.
     """
+    m = as_map(m)
     if max_length < 1:
         raise InputError(f"the maximal length must be at least 1, got {max_length}")
     d = m.divisor
@@ -187,7 +189,7 @@ def integral_cycles_by_itinerary(m: Map, max_length: int) -> WordSearchResult:
         big = max((abs(b) for b in B), default=0) >= 2**62
         np_B.append(None if big else np.array(B, dtype=np.int64))
 
-    found: dict[tuple, RationalCycle] = {}
+    found: dict[tuple, IntegerCycle] = {}
     examined = 0
     for k in range(1, max_length + 1):
         i, j = k // 2, k - k // 2
@@ -253,7 +255,4 @@ def _record(m: Map, word: tuple[int, ...], found: dict) -> None:
     key = tuple(sorted(elems))
     if key in found:
         return
-    least = cycle_representative(elems)
-    j = elems.index(least)
-    rotated = root[j:] + root[:j]
-    found[key] = solve(m, rotated)
+    found[key] = cycle_from_element(m, cycle_representative(elems), len(elems))

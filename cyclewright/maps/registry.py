@@ -217,7 +217,13 @@ def as_map(spec: str | Map) -> Map:
     --------
     >>> as_map("3x+1") is as_map(as_map("3x+1"))
     True
+    >>> as_map(3)
+    Traceback (most recent call last):
+    ...
+    cyclewright.maps.model.MapError: expected a Map or a map name, got 3
     """
     if isinstance(spec, Map):
         return spec
+    if not isinstance(spec, str):
+        raise MapError(f"expected a Map or a map name, got {spec!r}")
     return get(spec)

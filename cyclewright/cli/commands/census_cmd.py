@@ -22,7 +22,7 @@ from ..options import (
     store_options,
     workers_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console
 
 __all__ = ["COMMANDS"]
@@ -100,7 +100,7 @@ def census_cmd(
         raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
     with progress_display() as show:
-        c = census(m, K, side=side, progress=events(show, "scan", "starts"), **kw)
+        c = census(m, K, side=side, progress=show, **kw)
     if cert_path:
         write_certificate(c, cert_path)
     if as_json:
@@ -158,7 +158,7 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
             K,
             side=side,
             all_k=all_offsets,
-            progress=events(show, "family", "members"),
+            progress=show,
             **kw,
         )
     if as_json:

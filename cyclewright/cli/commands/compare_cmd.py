@@ -31,7 +31,7 @@ from ..options import (
     to_option,
     workers_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "ROW_COLUMNS", "resolve_maps", "comparison_sweeps"]
@@ -162,10 +162,10 @@ def compare_cmd(
         cmp = compare(
             ms,
             **{k: v for k, v in given.items() if v is not None},
-            cap=max_steps,
+            max_steps=max_steps,
             store=resolve_store(store, no_store),
             workers=workers,
-            progress=events(show, "compare", "steps"),
+            progress=show,
         )
     rows = cmp.rows()
     if csv_path:

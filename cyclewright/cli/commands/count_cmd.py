@@ -21,7 +21,7 @@ from ..options import (
     resolve_map,
     show_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console
 
 __all__ = ["COMMANDS", "parse_content"]
@@ -101,7 +101,7 @@ def count_cmd(map_spec, length, odd, content_text, limit, show, map_files, as_js
             odd,
             content=content,
             limit=limit,
-            progress=events(show_progress, "enumerate", "necklaces"),
+            progress=show_progress,
         )
     if as_json:
         emit_json(tc.to_dict())
@@ -173,8 +173,8 @@ def _print_human(tc, show: int) -> None:
         con.print(
             make_table(
                 f"Integer cycles ({len(tc.integer_cycles)}, exact)",
-                ["minimum", "itinerary from the minimum", "period", "primitive"],
-                [[c.minimum, c.itinerary, c.period, c.primitive] for c in listed],
+                ["minimum", "itinerary from the minimum", "length", "primitive (Lagarias)"],
+                [[c.minimum, c.itinerary, c.length, c.lagarias_primitive] for c in listed],
             )
         )
         if len(listed) < len(tc.integer_cycles):

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.floors import floor
+from cyclewright.cycles.sides import PerSide
 
 from ..errors import BadInput
 from ..options import IntExpr, json_option, map_argument, maps_option, resolve_map, side_option
@@ -65,18 +65,14 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
             f"--verified-to has {len(str(n))} digits; the floor accepts at most "
             f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
         )
-    sides = ["positive", "negative"] if side == "both" else [side]
-    results = []
-    problems = []
-    for s in sides:
-        try:
-            results.append(floor(m, n, s, next_types=next_types))
-        except InputError as exc:
-            if len(sides) == 1:
-                raise
-            problems.append({"side": s, "applicable": False, "reason": str(exc)})
-    if not results:
-        raise BadInput(problems[0]["reason"])
+    got = floor(m, n, side, next_types=next_types)
+    if isinstance(got, PerSide):
+        results = list(got)
+        problems = [
+            {"side": s, "applicable": False, "reason": why} for s, why in got.problems.items()
+        ]
+    else:
+        results, problems = [got], []
     if as_json:
         emit_json(
             {

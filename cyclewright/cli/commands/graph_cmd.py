@@ -21,7 +21,7 @@ from ..options import (
     side_option,
     to_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console
 
 
@@ -94,7 +94,7 @@ def graph_cmd(
             side=side,
             max_steps=steps,
             ceiling=ceil,
-            progress=events(show, "graph", "starts"),
+            progress=show,
         )
     nodes = result.graph.number_of_nodes()
     if outputs["plot"] is not None and nodes > PLOT_NODE_LIMIT:
@@ -124,23 +124,22 @@ def graph_cmd(
         f"(max steps {steps}, ceiling {short(ceil)})"
     )
     rows = []
-    for c in result.cycles:
+    for c, basin in zip(result.cycles, result.basins):
         rows.append(
             [
                 c.minimum,
                 c.length,
                 short(c.odd_steps),
-                "yes" if c.primitive else "no",
+                "yes" if c.lagarias_primitive else "no",
                 "yes" if result._is_start(c.minimum) else "no",
-                c.basin,
+                basin,
                 f"{float(result.basin_share(c)):.2%}",
-                "yes" if c.verified else "NO",
             ]
         )
     con.print(
         make_table(
-            "Cycles reached (exact)",
-            ["minimum", "length", "odd", "primitive", "min in range", "basin", "share", "verified"],
+            "Cycles reached (exact, each verified by solving its itinerary)",
+            ["minimum", "length", "odd", "primitive", "min in range", "basin", "share"],
             rows,
             caption="basin = starts in the range that fall into the cycle (exact); share rounded",
         )

@@ -23,7 +23,7 @@ from ..options import (
     to_option,
     workers_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console
 
 _EPILOG = """\b
@@ -93,7 +93,7 @@ def scan_cmd(
             max_cycle_length=max_length,
             executor=executor,
             scheduler=scheduler,
-            progress=events(show_progress, "scan", "starts"),
+            progress=show_progress,
             chunk_size=chunk_size,
         )
     if as_json:

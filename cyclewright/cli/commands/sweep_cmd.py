@@ -9,6 +9,7 @@ import click
 
 from cyclewright.cycles.counting import DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
+from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
 from ..errors import BadInput
@@ -27,7 +28,7 @@ from ..options import (
     show_option,
     side_option,
 )
-from ..progress import events, progress_display
+from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "plot_sweep"]
@@ -106,24 +107,35 @@ def sweep_cmd(
         check_output(path, what, force)
     if plot_path and not plot_path.lower().endswith(".png"):
         raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
+    if plot_path and side == "both":
+        raise BadInput("--plot draws one side; give --side positive or --side negative")
     with progress_display() as show_progress:
-        s = sweep(m, xs, extra, side, limit=limit, progress=events(show_progress, "sweep", "types"))
+        got = sweep(m, xs, extra, side, limit=limit, progress=show_progress)
+    sweeps = list(got) if isinstance(got, PerSide) else [got]
     # Outputs are written only after the whole sweep succeeded.
     if csv_path:
-        cols = s.columns
-        rows = [[r[c] for c in cols] for r in s.to_dicts()]
+        cols = sweeps[0].columns
+        rows = [[r[c] for c in cols] for s in sweeps for r in s.to_dicts()]
+        if len(sweeps) > 1:  # one sweep per side: say which
+            rows = [
+                [s.side] + row
+                for s in sweeps
+                for row in ([r[c] for c in cols] for r in s.to_dicts())
+            ]
+            cols = ["sweep_side", *cols]
         if csv_path == "-":
             write_csv(sys.stdout, cols, rows)
         else:
             atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
     if plot_path:
-        plot_sweep(s, plot_path)
+        plot_sweep(sweeps[0], plot_path)
     if as_json:
-        emit_json(s.to_dict())
+        emit_json(got.to_dict())
         return
     if csv_path == "-":
         return
-    _print_human(s, show, csv_path, plot_path)
+    for s in sweeps:
+        _print_human(s, show, csv_path, plot_path)
 
 
 def _pick_rows(n: int, max_rows: int) -> list[int]:

@@ -8,13 +8,13 @@ Inside
   unresolved starts.
 - :class:`ScanResult` -- the result (notebook-friendly repr, ``to_dict()``,
   ``minima`` per side for comparisons).
-- :class:`FoundCycle` -- one integer cycle: minimum, length, odd steps or
+- :class:`IntegerCycle` -- one integer cycle: minimum, length, odd steps or
   content, itinerary, elements, primitivity (of the word; Lagarias').
-- :class:`ScanProgress` -- what a progress callback receives.
 - :func:`run_chunk` -- the unit of work (one chunk of one side), as run by
   the executors; :class:`ChunkTask` and :class:`ChunkOutcome` are its input
   and output.
-- :func:`plan_chunks`, :func:`default_chunk_size`, :data:`DEFAULT_MAX_STEPS`.
+- :func:`plan_chunks`, :func:`default_chunk_size` (the default step cap is
+  :data:`cyclewright.cycles.limits.DEFAULT_MAX_STEPS`).
 
 Classification (see :mod:`cyclewright.cycles.scan.kernel` for the exact definitions)
 --------------------------------------------------------------------
@@ -59,9 +59,8 @@ References
 
 from __future__ import annotations
 
-from ..integer_cycle import FoundCycle
+from ..integer_cycle import IntegerCycle
 from .chunks import (
-    DEFAULT_MAX_STEPS,
     LISTED_UNRESOLVED,
     ChunkOutcome,
     ChunkTask,
@@ -69,15 +68,14 @@ from .chunks import (
     plan_chunks,
     run_chunk,
 )
-from .result import ScanProgress, ScanResult
+from .result import ScanResult
 from .run import scan
 from .store import ScanStore, default_store_path
 
 __all__ = [
     "scan",
     "ScanResult",
-    "ScanProgress",
-    "FoundCycle",
+    "IntegerCycle",
     "ScanStore",
     "default_store_path",
     "ChunkTask",
@@ -85,6 +83,5 @@ __all__ = [
     "run_chunk",
     "plan_chunks",
     "default_chunk_size",
-    "DEFAULT_MAX_STEPS",
     "LISTED_UNRESOLVED",
 ]

@@ -8,14 +8,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from ..integer_cycle import verified_cycle
 from .store import code_version
 
 __all__ = [
-    "DEFAULT_MAX_STEPS",
-    "SIDES",
     "LISTED_UNRESOLVED",
     "ChunkTask",
     "ChunkOutcome",
@@ -27,9 +25,6 @@ __all__ = [
 ]
 
 
-#: Default step cap per start.
-DEFAULT_MAX_STEPS = 1000
-SIDES = ("positive", "negative")
 #: How many unresolved starts a result lists (all are in the store).
 LISTED_UNRESOLVED = 20
 _COUNT_KEYS = ("drops", "cycles", "other_cycle", "unresolved", "beyond_length")
@@ -172,7 +167,7 @@ def run_chunk(task: ChunkTask) -> ChunkOutcome:
     )
 
 
-def default_chunk_size(m: Map) -> int:
+def default_chunk_size(m: Map | str) -> int:
     """Starts per chunk: ``2^27`` for maps that contract on average, ``2^18`` otherwise.
 
     Contracting maps (negative drift, e.g. 3x+1) are cheap per start; for
@@ -183,6 +178,7 @@ def default_chunk_size(m: Map) -> int:
     >>> default_chunk_size(maps.get("3x+1")), default_chunk_size(maps.get("5x+1"))
     (134217728, 262144)
     """
+    m = as_map(m)
     return 2**27 if m.drift_ratio() < 1 else 2**18
 
 

@@ -33,19 +33,21 @@ References
 
 from __future__ import annotations
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
+
+from ..sides import DEFAULT_SIDE, Side, parse_side
 
 __all__ = ["classify", "classify_range", "cycle_minima", "OUTCOMES"]
 
 OUTCOMES = ("drop", "cycle", "other_cycle", "open")
 
 
-def classify(m: Map, s: int, cap: int) -> tuple[str, int]:
-    """Outcome of the start ``s != 0`` under ``m`` with step cap ``cap``.
+def classify(m: Map | str, s: int, max_steps: int) -> tuple[str, int]:
+    """Outcome of the start ``s != 0`` under ``m`` with step cap ``max_steps``.
 
     Returns ``(outcome, steps)``: the step of the first event (the cycle's
     length for ``"cycle"``, ``mu + lam`` for ``"other_cycle"``), or
-    ``("open", cap)``.
+    ``("open", max_steps)``.
 
     Examples
     --------
@@ -58,13 +60,14 @@ def classify(m: Map, s: int, cap: int) -> tuple[str, int]:
     >>> classify(maps.get("3x+5"), 2, 100)   # 2 -> 1 -> 4 -> 2: ...
     ('drop', 1)
     """
+    m = as_map(m)
     if s == 0:
         raise ValueError("the start must not be 0")
     a = abs(s)
     seen = {s: 0}
     v = s
     step = m.step
-    for i in range(1, cap + 1):
+    for i in range(1, max_steps + 1):
         v = step(v)
         av = abs(v)
         if av < a or (s > 0 and v == -s):
@@ -74,25 +77,31 @@ def classify(m: Map, s: int, cap: int) -> tuple[str, int]:
         if v in seen:
             return "other_cycle", i
         seen[v] = i
-    return "open", cap
+    return "open", max_steps
 
 
-def classify_range(m: Map, lo: int, hi: int, cap: int, side: str = "positive") -> list:
+def classify_range(
+    m: Map | str, lo: int, hi: int, max_steps: int, side: Side = DEFAULT_SIDE
+) -> list:
     """``[(start, outcome, steps), ...]`` for ``|start|`` in ``[lo, hi]`` on one side.
 
     >>> from cyclewright import maps
     >>> [o for _, o, _ in classify_range(maps.get("3x+1"), 1, 4, 50)]
     ['cycle', 'drop', 'drop', 'drop']
     """
-    sign = 1 if side == "positive" else -1
-    return [(sign * s, *classify(m, sign * s, cap)) for s in range(lo, hi + 1)]
+    m = as_map(m)
+    sign = 1 if parse_side(side, allow_both=False) == "positive" else -1
+    return [(sign * s, *classify(m, sign * s, max_steps)) for s in range(lo, hi + 1)]
 
 
-def cycle_minima(m: Map, lo: int, hi: int, cap: int, side: str = "positive") -> list[int]:
-    """The starts of ``[lo, hi]`` (signed by ``side``) that are cycle minima found within ``cap``.
+def cycle_minima(
+    m: Map | str, lo: int, hi: int, max_steps: int, side: Side = DEFAULT_SIDE
+) -> list[int]:
+    """The starts of ``[lo, hi]`` (signed by ``side``) that are cycle minima found within ``max_steps``.
 
     >>> from cyclewright import maps
     >>> cycle_minima(maps.get("3x+1"), 1, 100, 200, "negative")
     [-1, -5, -17]
     """
-    return [s for s, o, _ in classify_range(m, lo, hi, cap, side) if o == "cycle"]
+    m = as_map(m)
+    return [s for s, o, _ in classify_range(m, lo, hi, max_steps, side) if o == "cycle"]

@@ -1,4 +1,4 @@
-"""What a scan returns, and what its progress callback receives."""
+"""What a scan returns."""
 
 from __future__ import annotations
 
@@ -6,34 +6,16 @@ from dataclasses import dataclass, field
 
 from cyclewright.maps import Map
 
-from ..integer_cycle import FoundCycle
+from ..integer_cycle import IntegerCycle
 from ..labels import CERTIFIED, EXACT
 from .store import code_version
 
 __all__ = [
-    "ScanProgress",
     "ScanResult",
 ]
 
 
 # --------------------------------------------------------------------------- results
-@dataclass(frozen=True)
-class ScanProgress:
-    """Progress of a scan, as passed to the ``progress`` callback."""
-
-    side: str
-    done: int
-    total: int
-    unresolved: int
-    elapsed: float
-    computed: int
-
-    @property
-    def rate(self) -> float:
-        """Starts computed per second in this run (a measurement, float)."""
-        return self.computed / self.elapsed if self.elapsed > 0 else 0.0
-
-
 @dataclass(frozen=True)
 class ScanResult:
     """The outcome of :func:`scan`.
@@ -48,7 +30,7 @@ class ScanResult:
     max_cycle_length : int or None
     counts : dict
         ``side -> {"drops", "cycles", "other_cycle", "unresolved", "beyond_length"}``.
-    cycles : tuple of FoundCycle
+    cycles : tuple of IntegerCycle
         Every cycle whose minimum lies in the range, by side then ``|minimum|``.
     unresolved_count, unresolved_escaped : dict
         Per side: unresolved starts, and how many of them passed 2^63.
@@ -74,7 +56,7 @@ class ScanResult:
     max_steps: int
     max_cycle_length: int | None
     counts: dict
-    cycles: tuple[FoundCycle, ...]
+    cycles: tuple[IntegerCycle, ...]
     unresolved_count: dict
     unresolved_escaped: dict
     unresolved_first: dict

@@ -11,15 +11,16 @@ from pathlib import Path
 
 import numpy as np
 
-from cyclewright.maps import Map, MapError
+from cyclewright.maps import Map, as_map
 
 from ..errors import InputError, StoreError
-from ..integer_cycle import FoundCycle
+from ..integer_cycle import IntegerCycle
+from ..limits import DEFAULT_MAX_STEPS
+from ..progress import ProgressCallback, report
+from ..sides import DEFAULT_SIDE, SIDES, Side, sides_of
 from .chunks import (
     _COUNT_KEYS,
-    DEFAULT_MAX_STEPS,
     LISTED_UNRESOLVED,
-    SIDES,
     ChunkTask,
     _batches,
     _side_tools,
@@ -27,7 +28,7 @@ from .chunks import (
     default_chunk_size,
     run_chunk,
 )
-from .result import ScanProgress, ScanResult
+from .result import ScanResult
 from .store import MAX_START, ScanStore, default_store_path
 
 __all__ = [
@@ -81,14 +82,14 @@ def scan(
     to: int,
     *,
     start: int = 1,
-    side: str = "positive",
+    side: Side = DEFAULT_SIDE,
     workers: int | None = None,
     store=None,
     max_steps: int = DEFAULT_MAX_STEPS,
     max_cycle_length: int | None = None,
     executor: str = "local",
     scheduler: str | None = None,
-    progress: Callable[[ScanProgress], None] | None = None,
+    progress: ProgressCallback | None = None,
     chunk_size: int | None = None,
 ) -> ScanResult:
     """Find every integer cycle whose minimum lies in ``[start, to]``, exactly.
@@ -96,7 +97,7 @@ def scan(
     Parameters
     ----------
     m : Map or str
-        The map (a name or shorthand is resolved with :func:`maps.get`).
+        The map, or its name, alias or ``ax+b`` shorthand.
     to : int
         Largest absolute value of a start (at most ``2^63 - 1``).
     start : int
@@ -109,7 +110,8 @@ def scan(
         The results store. None: the map's default store in the user data
         directory (``$CYCLEWRIGHT_DATA_DIR`` overrides); False: keep nothing.
     max_steps : int
-        Step cap per start (ignored when ``max_cycle_length`` is given).
+        Step cap per start (ignored when ``max_cycle_length`` is given);
+        default :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`.
     max_cycle_length : int, optional
         Only decide whether each start is the minimum of a cycle of length at
         most ``K``; the cap is then ``K`` and undecided starts are
@@ -117,8 +119,11 @@ def scan(
     executor : {"local", "dask"}
     scheduler : str, optional
         Dask scheduler address (``executor="dask"``).
-    progress : callable, optional
-        Called with a :class:`ScanProgress` after every chunk.
+    progress : ProgressCallback, optional
+        Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
+        (phase ``"scan"``, unit ``"starts"``, detail: the side and the
+        unresolved starts so far) before the first chunk of a side and after
+        every chunk.
     chunk_size : int, optional
         Starts per chunk (default :func:`default_chunk_size`); chunks lie on
         the grid of its multiples, and only identical chunks are reused.
@@ -156,15 +161,7 @@ def scan(
     Lagarias 1985, 1990; Terras 1976 (see the module docstring).
     """
     t0 = time.perf_counter()
-    if isinstance(m, str):
-        from cyclewright import maps as _maps
-
-        try:
-            m = _maps.get(m)
-        except MapError as exc:
-            raise InputError(str(exc)) from None
-    if not isinstance(m, Map):
-        raise InputError(f"expected a Map or a map name, got {m!r}")
+    m = as_map(m)
     to = _as_int(to, "to")
     start = _as_int(start, "start")
     if start < 1:
@@ -178,8 +175,7 @@ def scan(
         raise InputError(
             f"to = {to} is beyond what the store schema allows (starts up to 2^63 - 1 = {MAX_START})"
         )
-    if side not in ("positive", "negative", "both"):
-        raise InputError(f"side must be 'positive', 'negative' or 'both', got {side!r}")
+    sides = sides_of(side)
     if workers is not None:
         workers = _as_int(workers, "workers")
         if workers < 1:
@@ -198,7 +194,6 @@ def scan(
     if executor not in ("local", "dask"):
         raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
     cap = max_cycle_length if max_cycle_length is not None else max_steps
-    sides = SIDES if side == "both" else (side,)
     cs = chunk_size or default_chunk_size(m)
 
     from .executors import make_executor
@@ -230,6 +225,11 @@ def scan(
         ex.close()
 
 
+def _detail(side: str, unresolved: int) -> str:
+    """The detail of a scan's progress event: the side and the unresolved starts so far."""
+    return f"{side} side, {unresolved:,} unresolved"
+
+
 def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> ScanResult:
     branches = tuple(tuple(b) for b in m.branches)
     counts, cycles, ucount, uesc, ufirst, sieved, depth = {}, [], {}, {}, {}, {}, {}
@@ -258,12 +258,7 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
             run_id = led.begin_run(sid, start, to, cs)
             status = "interrupted"
             try:
-                if progress is not None:
-                    progress(
-                        ScanProgress(
-                            side, done_starts, total, unresolved, time.perf_counter() - t0, computed
-                        )
-                    )
+                report(progress, "scan", done_starts, total, "starts", _detail(side, unresolved))
                 for out in ex.map_unordered(run_chunk, todo()):
                     led.record_chunk(
                         sid,
@@ -282,17 +277,9 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
                     done_starts += n
                     computed += n
                     unresolved += out.counts["unresolved"]
-                    if progress is not None:
-                        progress(
-                            ScanProgress(
-                                side,
-                                done_starts,
-                                total,
-                                unresolved,
-                                time.perf_counter() - t0,
-                                computed,
-                            )
-                        )
+                    report(
+                        progress, "scan", done_starts, total, "starts", _detail(side, unresolved)
+                    )
                 status = "complete"
             finally:
                 try:
@@ -319,7 +306,7 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
         counts[side] = c
         sieved[side] = n_sieved
         depth[side] = n_depth
-        cycles.extend(FoundCycle.from_record(rec) for rec in led.cycles(sid, start, to))
+        cycles.extend(IntegerCycle.from_record(rec) for rec in led.cycles(sid, start, to))
         ucount[side] = c["unresolved"]
         uesc[side] = n_esc if c["unresolved"] else 0
         ufirst[side] = tuple(first) if c["unresolved"] else ()

@@ -82,7 +82,7 @@ from pathlib import Path
 import numpy as np
 from numba import njit
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from ..files import atomic_write, cache_dir
 
@@ -175,7 +175,7 @@ def _walk(d, ma, mb, K, S0, fill, out_c, out_jump, out_A, out_C, out_qmax):
     return n
 
 
-def safe_depth(m: Map, limit: int = MAX_DEPTH) -> int:
+def safe_depth(m: Map | str, limit: int = MAX_DEPTH) -> int:
     """The largest ``K <= limit`` with ``d^K <= MAX_MODULUS`` whose table construction fits int64.
 
     Every quantity of the walk is bounded in exact integers (see the module
@@ -185,6 +185,7 @@ def safe_depth(m: Map, limit: int = MAX_DEPTH) -> int:
     >>> safe_depth(maps.get("3x+1")), safe_depth(maps.get("5x+1")), safe_depth(maps.get("181x+1"))
     (24, 24, 8)
     """
+    m = as_map(m)
     d = m.divisor
     amax = max(abs(a) for a in m.multipliers)
     bmax = max(abs(b) for b in m.offsets)
@@ -286,7 +287,7 @@ def _empty(key: str) -> SieveTable:
 
 
 @functools.lru_cache(maxsize=32)
-def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
+def sieve_table(m: Map | str, limit: int = MAX_DEPTH) -> SieveTable:
     """The sieve of ``m`` (positive starts) with depth at most ``limit``.
 
     The depth is the largest one allowed by :func:`safe_depth` whose survivors
@@ -308,6 +309,7 @@ def sieve_table(m: Map, limit: int = MAX_DEPTH) -> SieveTable:
     >>> t.depth, t.survivors          # OEIS A076227: 27328 classes mod 2^20 survive
     (20, 27328)
     """
+    m = as_map(m)
     K = safe_depth(m, min(limit, MAX_DEPTH))
     if K <= 0:
         return _empty(m.key)
@@ -404,7 +406,7 @@ def _cache_write(path: Path, t: SieveTable) -> None:
         pass
 
 
-def sieve_levels(m: Map, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:
+def sieve_levels(m: Map | str, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:
     """The sieve of depth ``K`` (see :func:`sieve_table`) and one of depth ``K // 2``.
 
     The deep table serves starts ``>= d^K``; the shallow one the starts in
@@ -414,19 +416,21 @@ def sieve_levels(m: Map, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:
     >>> [t.depth for t in sieve_levels(maps.get("3x+1"))]
     [12, 24]
     """
+    m = as_map(m)
     deep = sieve_table(m, limit)
     if deep.depth < 8:
         return (deep,) if deep.depth else ()
     return (sieve_table(m, deep.depth // 2), deep)
 
 
-def class_word(m: Map, c: int, K: int) -> tuple[int, ...]:
+def class_word(m: Map | str, c: int, K: int) -> tuple[int, ...]:
     """The residues ``r_1 .. r_K`` shared by every ``n ≡ c (mod d^K)`` (exact).
 
     >>> from cyclewright import maps
     >>> class_word(maps.get("3x+1"), 7, 3)
     (1, 1, 1)
     """
+    m = as_map(m)
     word = []
     v = c
     for _ in range(K):
@@ -435,7 +439,7 @@ def class_word(m: Map, c: int, K: int) -> tuple[int, ...]:
     return tuple(word)
 
 
-def jump_table(m: Map, j: int) -> list[tuple[int, int]]:
+def jump_table(m: Map | str, j: int) -> list[tuple[int, int]]:
     """For every residue ``r`` mod ``d^j``: ``(A_j, T^j(r))``, so ``T^j(q d^j + r) = A_j q + T^j(r)``.
 
     Exact Python integers, for any valid map.
@@ -444,6 +448,7 @@ def jump_table(m: Map, j: int) -> list[tuple[int, int]]:
     >>> jump_table(maps.get("3x+1"), 2)   # r = 0, 1, 2, 3
     [(1, 0), (3, 1), (3, 2), (9, 8)]
     """
+    m = as_map(m)
     out = []
     for r in range(m.divisor**j):
         A = 1

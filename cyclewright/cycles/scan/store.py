@@ -56,7 +56,7 @@ from pathlib import Path
 
 import numpy as np
 
-from cyclewright.maps import Map
+from cyclewright.maps import Map, as_map
 
 from ..errors import StoreError
 from ..files import data_dir
@@ -156,13 +156,14 @@ def _now() -> str:
     return _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
 
 
-def default_store_path(m: Map) -> Path:
+def default_store_path(m: Map | str) -> Path:
     """``<data dir>/scans/<label>-<key prefix>.sqlite``: one store per map definition.
 
     >>> from cyclewright import maps
     >>> default_store_path(maps.get("3x+1")).name
     '3x+1-f477e9122784.sqlite'
     """
+    m = as_map(m)
     safe = "".join(c if c.isalnum() or c in "+-_." else "_" for c in m.label)[:40]
     return data_dir() / "scans" / f"{safe}-{m.key[:12]}.sqlite"
 
