@@ -1,10 +1,11 @@
 # Two set-up commands: `make demo` and `make test`. Both create .venv on first use.
+# `make test-quick` runs the quick set (tests not marked slow).
 PYTHON ?= python3
 VENV := .venv
 BIN := $(VENV)/bin
 STAMP := $(VENV)/.installed
 
-.PHONY: demo test lint bench clean
+.PHONY: demo test test-quick lint bench clean
 
 $(STAMP): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
@@ -17,6 +18,9 @@ demo: $(STAMP)
 
 test: $(STAMP)
 	$(BIN)/python -m pytest
+
+test-quick: $(STAMP)
+	$(BIN)/python -m pytest -m "not slow"
 
 lint: $(STAMP)
 	$(BIN)/ruff check .

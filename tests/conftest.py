@@ -1,4 +1,13 @@
-"""Shared fixtures: an isolated config/data directory for every test."""
+"""Shared fixtures of the test suite.
+
+- ``_isolated_dirs`` (every test): config, data and cache directories of its own.
+- ``_warm_kernels`` (once a session): compile the numba scan kernels, or load
+  them from numba's cache, before the first test, so no test pays for it and
+  subprocess tests find the cache filled.
+- ``cli_run`` / :func:`run_cli`: the ``cyclewright`` command in a subprocess.
+
+Hypothesis strategies live in ``tests/strategies.py``.
+"""
 
 from __future__ import annotations
 
@@ -7,6 +16,33 @@ import subprocess
 import sys
 
 import pytest
+
+
+@pytest.fixture(scope="session", autouse=True)
+def _warm_kernels(tmp_path_factory):
+    """Run tiny scans once: the two-branch lanes, the negative side and a divisor-3 map."""
+    base = tmp_path_factory.mktemp("warm")
+    saved = {k: os.environ.get(k) for k in _DIR_VARS}
+    for k, sub in _DIR_VARS.items():
+        os.environ[k] = str(base / sub)
+    try:
+        from cyclewright.cycles.scan.run import scan
+
+        scan("3x+1", 3000, side="both", store=False, workers=1)
+        scan("mod3-4x", 500, store=False, workers=1)
+    finally:
+        for k, v in saved.items():
+            if v is None:
+                os.environ.pop(k, None)
+            else:
+                os.environ[k] = v
+
+
+_DIR_VARS = {
+    "CYCLEWRIGHT_CONFIG_DIR": "config",
+    "CYCLEWRIGHT_DATA_DIR": "data",
+    "CYCLEWRIGHT_CACHE_DIR": "cache",
+}
 
 
 @pytest.fixture(autouse=True)

@@ -1,10 +1,21 @@
-"""hypothesis strategies for random valid maps and itineraries."""
+"""hypothesis strategies of the test suite, in one place (tests import them from here).
+
+- :func:`valid_maps`, :func:`maps_and_words`, :func:`ax_b_maps` -- random valid maps and words.
+- :func:`floor_maps` -- small two-branch maps with a verified range and a side (floors).
+- :func:`rational_intervals` -- intervals with rational ends and open or closed sides.
+- :data:`scan_starts`, :data:`scan_caps`, :data:`sides` -- starts near the int64
+  edges, step caps and sides for the scan kernels.
+"""
 
 from __future__ import annotations
+
+from fractions import Fraction
 
 from hypothesis import strategies as st
 
 from cyclewright.maps import Map
+
+TOP = 2**63 - 1
 
 
 @st.composite
@@ -33,3 +44,48 @@ def ax_b_maps(draw, odd_multiplier: bool = True):
     a = draw(st.integers(1, 41).map(lambda v: 2 * v + 1 if odd_multiplier else v))
     b = draw(st.integers(-25, 25).filter(lambda v: (a + v) % 2 == 0))
     return Map(2, [(1, 0), (a, b)], name=f"{a}x{b:+d}")
+
+
+@st.composite
+def rational_intervals(draw):
+    """``(lo, hi, lo_closed, hi_closed)`` with rational ends (a point interval is closed)."""
+    lo = Fraction(draw(st.integers(0, 400)), draw(st.integers(1, 60)))
+    width = Fraction(draw(st.integers(0, 50)), draw(st.integers(1, 400)))
+    hi = lo + width
+    lo_closed = draw(st.booleans())
+    hi_closed = draw(st.booleans())
+    if lo == hi:
+        lo_closed = hi_closed = True
+    return lo, hi, lo_closed, hi_closed
+
+
+@st.composite
+def floor_maps(draw):
+    """``(map, N, side)``: a two-branch map with a halving and a multiplying branch."""
+    a = draw(st.sampled_from([3, 5, 6, 7, 9, 11]))
+    b_e = draw(st.integers(-7, 7).filter(lambda b: (a + b) % 2 == 0))
+    b_c = draw(st.sampled_from([0, 0, 2, -2, 4]))
+    swap = draw(st.booleans())
+    if b_c == 0 and b_e == 0:
+        b_e = 1 if a % 2 else 2
+    if swap:  # multiplying branch on residue 0
+        if b_e % 2:
+            b_e += 1
+        b_c_odd = b_c + 1
+        m = Map(2, [(a, b_e), (1, b_c_odd)])
+    else:
+        m = Map(2, [(1, b_c), (a, b_e)])
+    n = draw(st.integers(0, 60))
+    return m, n, draw(st.sampled_from(["positive", "negative"]))
+
+
+#: Starts near 1, in the middle and at the top of int64 (the kernels' edges).
+scan_starts = st.one_of(
+    st.integers(1, 3000),
+    st.integers(2**24, 2**40),
+    st.integers(2**61, TOP),
+)
+#: Step caps of the kernel tests.
+scan_caps = st.sampled_from([3, 17, 60])
+#: One side.
+sides = st.sampled_from(["positive", "negative"])

@@ -175,6 +175,7 @@ def test_log_form_is_certified_against_mpmath():
         mpmath.mp.dps = 15
 
 
+@pytest.mark.slow
 def test_rhin_lower_bound_is_not_violated_by_actual_values():
     # Rhin 1987 (from memory): |k ln 2 - x ln 3| >= max(k, x)^(-13.3). A violation would
     # reveal a misremembered constant; check every x <= 3000 at the critical lengths.

@@ -38,6 +38,7 @@ def test_3x1_both_sides_up_to_10000():
     assert c.plans["positive"].scan_to >= c.plans["positive"].bound > 10**6
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
 def test_method_1_equals_method_2_up_to_24(name):
     # common practice, no source: two independent certifications must agree
@@ -54,6 +55,7 @@ def test_method_1_equals_method_2_up_to_24(name):
         assert a.elements == b.elements and a.itinerary == b.itinerary
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
 def test_necklace_method_equals_itinerary_method(name):
     # two forms of method 2 (Sawada 2003 fixed-content generation vs meet in the middle) must agree

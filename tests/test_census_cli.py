@@ -8,6 +8,7 @@ import pytest
 from conftest import run_cli
 
 
+@pytest.mark.slow
 def test_census_json_and_certificate(tmp_path):
     cert = tmp_path / "c.json"
     out = run_cli(
@@ -41,6 +42,7 @@ def test_census_json_and_certificate(tmp_path):
     assert again.returncode == 2 and "refusing to overwrite" in again.stderr
 
 
+@pytest.mark.slow
 def test_census_table_and_family():
     out = run_cli("census", "3x+1", "--max-length", "500", "--side", "both", "--workers", "1")
     assert out.returncode == 0, out.stderr

@@ -27,6 +27,7 @@ def test_python_dash_m_cli_and_console_script():
     assert res.returncode == 0 and "{1, 2}" in res.stdout
 
 
+@pytest.mark.slow
 def test_console_entry_flushes_everything_before_its_quick_exit(tmp_path):
     # cli.app.run ends the process with os._exit after main(): piped output
     # must arrive whole, the exit status must be main's, and the store committed.
@@ -46,6 +47,7 @@ def test_console_entry_flushes_everything_before_its_quick_exit(tmp_path):
     assert doc["chunks"]["reused"] == 1 and doc["minima"]["positive"] == [1]
 
 
+@pytest.mark.slow
 def test_arguments_may_start_with_minus_and_a_digit():
     # the map -3x+1 and negative starts are arguments, not options
     out = run_cli("solve", "-3x+1", "10", "--json")
@@ -78,6 +80,7 @@ def test_orbit_27_table():
     assert "total steps 111" in out.stdout and "peak 9232" in out.stdout  # OEIS A006577
 
 
+@pytest.mark.slow
 def test_maps_listing_and_show():
     out = run_cli("maps", "--json")
     names = [r["name"] for r in json.loads(out.stdout)["maps"]]
@@ -150,6 +153,7 @@ def test_map_file_errors_via_cli(tmp_path, text, fragment):
     assert path in line and "map 'm'" in line and fragment in line
 
 
+@pytest.mark.slow
 def test_map_file_via_cli(tmp_path):
     path = _write(
         tmp_path,
@@ -171,6 +175,7 @@ def test_no_args_prints_help_and_help_has_examples():
         assert r.exit_code == 0 and "Example" in r.output, cmd
 
 
+@pytest.mark.slow
 def test_demo_runs():
     out = run_cli("demo")
     assert out.returncode == 0, out.stderr

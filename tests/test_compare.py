@@ -22,6 +22,7 @@ def cmp():
     )
 
 
+@pytest.mark.slow
 def test_rows_agree_with_individual_analyses(cmp):
     # common practice, no source: the comparison must only re-present the individual results
     for p in cmp.profiles:
@@ -52,6 +53,7 @@ def test_drift_values(cmp):
     assert critical_ratio(maps.get("5x+1"))[1] == "log_2 5"
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", [m.name for m in maps.load_catalog(include_user=False)])
 def test_found_never_exceeds_candidates(name):
     # a theorem (distinct cycles have distinct minima, all multiples of |D| up to the largest numerator)
@@ -73,6 +75,7 @@ def test_excursion_record():
     assert (e.peak_start, 2 * e.peak) == (704511, 56991483520)
 
 
+@pytest.mark.slow
 def test_compare_cli(tmp_path):
     png = tmp_path / "c.png"
     csv = tmp_path / "c.csv"
@@ -107,6 +110,7 @@ def test_compare_cli(tmp_path):
     assert again.returncode == 2 and "already exists" in again.stderr
 
 
+@pytest.mark.slow
 def test_compare_rows_agree_with_the_individual_commands(tmp_path):
     # common practice, no source: compare must re-present what census, floor and count print
     out = run_cli(

@@ -109,6 +109,7 @@ def test_sweep_json(capsys):
     assert abs(doc["rho"] - 2.8396) < 1e-4  # common practice, no source
 
 
+@pytest.mark.slow
 def test_sweep_table_csv_and_plot(capsys, tmp_path):
     csv_path = tmp_path / "s.csv"
     png_path = tmp_path / "s.png"

@@ -217,6 +217,7 @@ def test_rho_for_3x1():
     assert r == pytest.approx(t**t / (t - 1) ** (t - 1), rel=1e-12)
 
 
+@pytest.mark.slow
 def test_fitted_rate_approaches_rho():
     r = rho(M31)
     s100 = sweep(M31, range(1, 101))

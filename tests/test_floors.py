@@ -9,7 +9,7 @@ from fractions import Fraction
 import pytest
 import sympy
 from hypothesis import given, settings
-from hypothesis import strategies as st
+from strategies import floor_maps, rational_intervals
 
 from cyclewright import maps
 from cyclewright.cli.app import main
@@ -98,20 +98,9 @@ def test_log_sign_equality_and_large_exponents():
     assert _log_sign([(k, Fraction(2)), (-x, g)]) == exact
 
 
-@st.composite
-def intervals(draw):
-    lo = Fraction(draw(st.integers(0, 400)), draw(st.integers(1, 60)))
-    width = Fraction(draw(st.integers(0, 50)), draw(st.integers(1, 400)))
-    hi = lo + width
-    lo_closed = draw(st.booleans())
-    hi_closed = draw(st.booleans())
-    if lo == hi:
-        lo_closed = hi_closed = True
-    return lo, hi, lo_closed, hi_closed
-
-
+@pytest.mark.slow
 @settings(max_examples=200, deadline=None)
-@given(intervals())
+@given(rational_intervals())
 def test_simplest_fraction_is_least_denominator(iv):
     # common practice, no source: brute force over denominators
     lo, hi, lc, hc = iv
@@ -232,6 +221,7 @@ def test_floor_never_excludes_a_real_cycle(name, side, to):
     assert checked
 
 
+@pytest.mark.slow
 def test_general_two_branch_maps_against_real_cycles():
     # Maps outside ax+b: the halving branch carries an offset (mixed signs),
     # or the multiplying branch is residue 0. Cycles found exactly.
@@ -256,27 +246,9 @@ def test_general_two_branch_maps_against_real_cycles():
             assert f.least_length - f.odd_steps <= c.length - c.odd_steps
 
 
-@st.composite
-def small_maps(draw):
-    a = draw(st.sampled_from([3, 5, 6, 7, 9, 11]))
-    b_e = draw(st.integers(-7, 7).filter(lambda b: (a + b) % 2 == 0))
-    b_c = draw(st.sampled_from([0, 0, 2, -2, 4]))
-    swap = draw(st.booleans())
-    if b_c == 0 and b_e == 0:
-        b_e = 1 if a % 2 else 2
-    if swap:  # multiplying branch on residue 0
-        if b_e % 2:
-            b_e += 1
-        b_c_odd = b_c + 1
-        m = Map(2, [(a, b_e), (1, b_c_odd)])
-    else:
-        m = Map(2, [(1, b_c), (a, b_e)])
-    n = draw(st.integers(0, 60))
-    return m, n, draw(st.sampled_from(["positive", "negative"]))
-
-
+@pytest.mark.slow
 @settings(max_examples=60, deadline=None)
-@given(small_maps())
+@given(floor_maps())
 def test_floor_equals_brute_force(case):
     # The search (Stern-Brocot descent, lattice enumeration, certified signs)
     # against a brute force of the same inequality in exact integers.

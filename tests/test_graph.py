@@ -163,6 +163,7 @@ def test_plot_png(tmp_path):
     assert path.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
 
 
+@pytest.mark.slow
 def test_plot_refuses_large_graphs(tmp_path):
     g = functional_graph(maps.get("3x+1"), 3000)
     with pytest.raises(InputError):

@@ -12,6 +12,7 @@ from cyclewright.cycles.graph import functional_graph
 from cyclewright.cycles.scan.run import scan
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize(
     "name,to,side",
     [
@@ -37,6 +38,7 @@ def test_graph_cycles_equal_scan_cycles(name, to, side):
             assert tuple(c.elements) == by_min[c.minimum].elements
 
 
+@pytest.mark.slow
 @settings(max_examples=25, deadline=None)
 @given(valid_maps(max_divisor=4, max_multiplier=5, max_offset=9), st.integers(20, 200))
 def test_random_maps_agree(m, to):

@@ -39,6 +39,7 @@ def test_check_values_3x1_at_100000():
         assert minimum_bound(M31, (lb.length, lb.odd), lb.side).integer == lb.integer
 
 
+@pytest.mark.slow
 def test_positive_side_constant_from_301994_to_16785920():
     # independent computation quoted with the task: 9.85e11 at (301994, 190537) for every
     # K from 301,994 to 16,785,920. From the continued fraction of log2 3 (OEIS A028507):
@@ -115,6 +116,7 @@ def _prefix_max_by_prefilter(m, K, side):
     return records
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", ["3x+1", "3x+5", "3x-1", "5x+1", "181x+1"])
 @pytest.mark.parametrize("side", ["positive", "negative"])
 def test_equals_prefilter_for_every_K_up_to_100000(name, side):

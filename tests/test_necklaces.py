@@ -128,6 +128,7 @@ def test_search_tree_size_is_modest():
     assert stats["nodes"] <= 12 * n
 
 
+@pytest.mark.slow
 def test_long_word_with_one_odd_step():
     # one necklace of length 5000: the search keeps O(k) state (no table of powers)
     (w,) = list(necklaces(type_content(5000, 1)))

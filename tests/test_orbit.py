@@ -72,6 +72,7 @@ def test_mod3_map_orbit():
     assert o.status == "cycle" and o.values[1] == 13  # (4*10 - 1)/3
 
 
+@pytest.mark.slow
 @settings(max_examples=200, deadline=None)
 @given(valid_maps(), st.integers(-500, 500))
 def test_orbit_cycle_is_a_real_cycle(m, n):

@@ -7,6 +7,7 @@ import subprocess
 import sys
 import zipfile
 
+import pytest
 from conftest import run_cli
 
 PLUGIN_CODE = """
@@ -36,6 +37,7 @@ def _build_wheel(tmp_path):
     return whl
 
 
+@pytest.mark.slow
 def test_plugin_distribution_is_discovered(tmp_path):
     whl = _build_wheel(tmp_path)
     site = tmp_path / "site"

@@ -86,6 +86,7 @@ def test_3x_plus_1_negative_cycles_below_a_million():
 
 
 # ----------------------------------------------------------------- 5x+1
+@pytest.mark.slow
 def test_5x_plus_1_cycles_and_unresolved():
     r = _scan("5x+1", 10**5)
     # 13: OEIS A259207; 1 and 17 from memory
@@ -241,6 +242,7 @@ def test_huge_coefficients_use_the_exact_python_path():
     assert r.sieve_depth == {"positive": 0, "negative": 0}
 
 
+@pytest.mark.slow
 def test_scan_module_and_function_are_both_reachable():
     # the module cyclewright.cycles.scan keeps its classes whatever was imported
     # first, and the notebook API's cw.scan is the function

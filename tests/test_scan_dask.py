@@ -104,6 +104,7 @@ def test_refused_connection_is_a_clear_error():
     assert time.monotonic() - t0 < 15
 
 
+@pytest.mark.slow
 def test_silent_listener_times_out():
     # A socket that accepts TCP but never speaks the scheduler protocol.
     from cyclewright.cycles.scan.executors import DaskExecutor

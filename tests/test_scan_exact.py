@@ -12,6 +12,7 @@ from __future__ import annotations
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from strategies import TOP, scan_caps, scan_starts, sides, valid_maps
 
 from cyclewright import maps
 from cyclewright.cycles.scan import reference
@@ -27,28 +28,6 @@ from cyclewright.cycles.scan.sieve import (
 from cyclewright.maps import Map
 
 _NAMES = {DROP: "drop", CYCLE: "cycle", OTHER: "other_cycle", OPEN: "open"}
-TOP = 2**63 - 1
-
-
-@st.composite
-def valid_maps(draw, max_divisor: int = 5, max_multiplier: int = 9, max_offset: int = 12):
-    """A random valid map: offsets moved to the residue that makes a r + b divisible by d."""
-    d = draw(st.integers(2, max_divisor))
-    branches = []
-    for r in range(d):
-        a = draw(st.integers(-max_multiplier, max_multiplier).filter(lambda v: v != 0))
-        b0 = draw(st.integers(-max_offset, max_offset))
-        branches.append((a, b0 - ((a * r + b0) % d)))
-    return Map(d, branches)
-
-
-starts = st.one_of(
-    st.integers(1, 3000),
-    st.integers(2**24, 2**40),
-    st.integers(2**61, TOP),
-)
-caps = st.sampled_from([3, 17, 60])
-sides = st.sampled_from(["positive", "negative"])
 
 
 def _kernel_outcomes(m: Map, side: str, lo: int, hi: int, cap: int, depth: int):
@@ -97,13 +76,15 @@ def _check(m: Map, side: str, lo: int, hi: int, cap: int, depth: int = 8) -> Non
     assert whole.open_starts == [s for s, (o, _) in ref.items() if o == "open"]
 
 
+@pytest.mark.slow
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(valid_maps(), starts, st.integers(0, 30), caps, sides)
+@given(valid_maps(), scan_starts, st.integers(0, 30), scan_caps, sides)
 def test_random_maps_match_reference(m, lo, width, cap, side):
     hi = min(lo + width, TOP)
     _check(m, side, lo, hi, cap)
 
 
+@pytest.mark.slow
 @settings(max_examples=30, deadline=None)
 @given(
     st.sampled_from(["3x+1", "5x+1", "181x+1", "3x-1", "3x+13", "-3x+1", "7x-3"]),
@@ -118,6 +99,7 @@ def test_named_maps_near_the_ceiling(name, lo, width, cap, side):
     _check(maps.get(name), side, lo, min(lo + width, TOP), cap, depth=24)
 
 
+@pytest.mark.slow
 @settings(max_examples=25, deadline=None)
 @given(st.sampled_from(["3x+1", "3x-1", "5x+1", "3x+5"]), st.integers(2**24, 2**36), sides)
 def test_full_depth_sieve_region(name, lo, side):
@@ -125,6 +107,7 @@ def test_full_depth_sieve_region(name, lo, side):
     _check(maps.get(name), side, lo, lo + 200, 400, depth=24)
 
 
+@pytest.mark.slow
 @settings(max_examples=40, deadline=None)
 @given(valid_maps(), st.integers(1, TOP - 10), st.sampled_from([150, 400]), sides)
 def test_exact_continuation_with_limb_jumps(m, s, cap, side):
@@ -148,6 +131,7 @@ def test_top_of_the_range(name):
     _check(maps.get(name), "negative", TOP - 60, TOP, 150, depth=24)
 
 
+@pytest.mark.slow
 def test_brent_path_other_cycles():
     # 3x+13: starts below the large cycle minima enter those cycles; with a
     # small cap the residue certificate sees repeats and Brent decides.

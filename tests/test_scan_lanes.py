@@ -52,6 +52,7 @@ def _compare(m: Map, lo: int, hi: int, cap: int, depth: int) -> None:
     assert got.drops == outcomes.count("drop"), m
 
 
+@pytest.mark.slow
 @settings(max_examples=40, deadline=None)
 @given(
     st.sampled_from(LANE_MAPS[:3] + LANE_MAPS[5:]),  # 5x+1, 7x+1: the next test
@@ -64,6 +65,7 @@ def test_lanes_match_reference(m, lo, width, cap):
     _compare(m, lo, lo + width, cap, depth=8)
 
 
+@pytest.mark.slow
 @settings(max_examples=15, deadline=None)
 @given(st.sampled_from(LANE_MAPS[3:5]), st.integers(2**12, 2**40), st.sampled_from([10, 30, 60]))
 def test_lanes_hand_over_before_the_ceiling(m, lo, cap):

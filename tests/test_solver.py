@@ -21,6 +21,7 @@ from cyclewright.cycles.solver import solve
 
 
 # --- invariants ------------------------------------------------------------------------
+@pytest.mark.slow
 @settings(max_examples=300, deadline=None)
 @given(maps_and_words())
 def test_fixed_point_is_fixed_by_the_composite(mw):
@@ -35,6 +36,7 @@ def test_fixed_point_is_fixed_by_the_composite(mw):
     assert (A * n + B) / Fraction(d**k) == n
 
 
+@pytest.mark.slow
 @settings(max_examples=300, deadline=None)
 @given(maps_and_words())
 def test_realized_cycles_are_fixed_by_exact_iteration(mw):
@@ -52,6 +54,7 @@ def test_realized_cycles_are_fixed_by_exact_iteration(mw):
     assert all(e.denominator % 1 == 0 for e in c.elements)
 
 
+@pytest.mark.slow
 @settings(max_examples=300, deadline=None)
 @given(maps_and_words())
 def test_multipliers_prime_to_d_always_realize(mw):
@@ -62,6 +65,7 @@ def test_multipliers_prime_to_d_always_realize(mw):
         assert c.realized
 
 
+@pytest.mark.slow
 @settings(max_examples=200, deadline=None)
 @given(maps_and_words(max_len=8))
 def test_rotations_give_the_same_cycle(mw):

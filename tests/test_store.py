@@ -208,6 +208,7 @@ def test_bad_range_creates_no_store(tmp_path):
 
 
 # ----------------------------------------------------------------- resume
+@pytest.mark.slow
 def test_rerun_and_longer_range_reuse_chunks(tmp_path):
     path = tmp_path / "r.sqlite"
     m = maps.get("3x+13")
@@ -257,6 +258,7 @@ def _essentials(doc):
     )
 
 
+@pytest.mark.slow
 def test_kill_9_midway_then_rerun_equals_uninterrupted(tmp_path):
     # Each attempt is made heavier until the kill lands while chunks remain;
     # the test does not depend on the speed of the machine.

@@ -75,6 +75,7 @@ def test_scenarios_validate():
     assert {a.kind for a in demo.analyses} >= {"sweep", "census", "scan", "floor", "compare"}
 
 
+@pytest.mark.slow
 def test_study_runs_twice_identically(tmp_path):
     src = tmp_path / "small.toml"
     src.write_text(SMALL)

@@ -24,6 +24,7 @@ def _brute(m, K):
     return found
 
 
+@pytest.mark.slow
 def test_3x5_up_to_30():
     # OEIS A226607 (k = 5): primitive cycle minima 1, 19, 23, 187, 347; plus the scaled cycle through 5
     r = integral_cycles_by_itinerary(maps.get("3x+5"), 30)
@@ -55,6 +56,7 @@ def test_5x1_cycles():
     assert integral_cycles_by_itinerary(maps.get("5x+1"), 20).minima("positive") == (1, 13, 17)
 
 
+@pytest.mark.slow
 @settings(max_examples=40, deadline=None)
 @given(valid_maps(max_divisor=3, max_multiplier=7, max_offset=9))
 def test_matches_brute_force_over_all_words(m):
