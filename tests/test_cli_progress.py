@@ -8,7 +8,7 @@ from __future__ import annotations
 import io
 import pathlib
 
-from cyclewright.cli.progress import PLAIN_INTERVAL, ProgressDisplay, events
+from cyclewright.cli.progress import PLAIN_INTERVAL, ProgressDisplay, messages
 from cyclewright.cycles.progress import ProgressEvent
 
 COMMANDS = pathlib.Path(__file__).resolve().parents[1] / "cyclewright" / "cli" / "commands"
@@ -44,16 +44,14 @@ def test_terminal_bar_draws_and_goes_away():
     assert show._bar is None
 
 
-def test_old_callback_shapes_become_events():
+def test_study_messages_become_events():
     seen = []
-    cb = events(seen.append, "graph", "starts")
-    cb(4096, 10000)
-    cb(ProgressEvent("x", 1))
-    cb("compare 3x+1")
+    say = messages(seen.append, "study", "analyses")
+    say("sweep 3x+1")
+    say("census 3x+1 to length 60")
     assert [str(e) for e in seen] == [
-        "graph: 4,096/10,000 starts",
-        "x: 1",
-        "graph: 0 starts (compare 3x+1)",
+        "study: 0 analyses (sweep 3x+1)",
+        "study: 1 analyses (census 3x+1 to length 60)",
     ]
 
 

@@ -15,7 +15,7 @@ import cyclewright.cli.options
 from cyclewright.cli.app import main
 from cyclewright.cli.errors import BadInput
 from cyclewright.cli.options import parse_int
-from cyclewright.cli.progress import ProgressDisplay, events
+from cyclewright.cli.progress import ProgressDisplay
 
 
 @pytest.fixture(autouse=True)
@@ -176,7 +176,7 @@ def test_progress_printer_waits(capsys):
 
     clock = [100.0]
     display = ProgressDisplay(tty=False, clock=lambda: clock[0])
-    p = events(display, "scan", "starts")
+    p = display
     p(ProgressEvent("scan", 10, 100, "starts", "positive side, 0 unresolved"))
     assert capsys.readouterr().err == ""
     clock[0] += 6

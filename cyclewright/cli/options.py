@@ -36,6 +36,7 @@ from pathlib import Path
 
 import click
 
+from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
 from cyclewright.cycles.sides import DEFAULT_SIDE
 from cyclewright.cycles.sides import SIDES as _ACTUAL_SIDES
@@ -86,8 +87,22 @@ __all__ = [
 
 #: The sides of a map's integers; ``both`` runs the positive and the negative side.
 SIDES = (*_ACTUAL_SIDES, "both")
+
+
 # DEFAULT_SIDE, DEFAULT_MAX_STEPS and DEFAULT_CEILING are the API's own
 # (cycles/sides.py, cycles/limits.py), re-exported for the options below.
+def _power_text(n: int) -> str:
+    """``10^15`` for a power of ten, else the digits (help texts).
+
+    >>> _power_text(10**15), _power_text(1000), _power_text(1234)
+    ('10^15', '10^3', '1234')
+    """
+    text = str(n)
+    if n >= 10 and text == "1" + "0" * (len(text) - 1):
+        return f"10^{len(text) - 1}"
+    return text
+
+
 #: Rows (or values) a table lists by default; ``--json`` always gives everything.
 DEFAULT_SHOW = 40
 
@@ -314,7 +329,7 @@ ceiling_option = _shared(
     "--ceiling",
     "ceiling",
     type=CeilingType(),
-    default="10^15",
+    default=_power_text(DEFAULT_CEILING),
     show_default=True,
     metavar="C",
     help="Stop an orbit once |value| exceeds C (escaped: not a proof of divergence); 'none' for no ceiling.",
@@ -327,8 +342,9 @@ limit_option = _shared(
     default=None,
     metavar="L",
     help=(
-        "Enumerate a type's necklaces when there are at most L of them "
-        "[default: 10^6 for one type, 10^4 per row of a sweep]."
+        "Enumerate a type's necklaces when there are at most L of them [default: "
+        f"{_power_text(DEFAULT_LIMIT)} for one type, {_power_text(DEFAULT_SWEEP_LIMIT)} "
+        "per row of a sweep]."
     ),
 )
 

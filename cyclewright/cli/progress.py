@@ -6,7 +6,7 @@ test) it writes a plain line ``progress: scan: 1,000/10,000 starts`` at most
 once every few seconds, and nothing at all for work that ends sooner.
 
 Every command passes ``progress=display`` (a :class:`ProgressDisplay`) to the
-API; :func:`events` wraps a callback shape that is not yet an event.
+API; :func:`messages` turns the study runner's text messages into events.
 """
 
 from __future__ import annotations
@@ -17,7 +17,7 @@ from collections.abc import Callable
 
 from cyclewright.cycles.progress import ProgressEvent
 
-__all__ = ["ProgressDisplay", "progress_display", "events", "PLAIN_INTERVAL"]
+__all__ = ["ProgressDisplay", "progress_display", "messages", "PLAIN_INTERVAL"]
 
 #: Seconds between two plain progress lines (and before the first one).
 PLAIN_INTERVAL = 5.0
@@ -132,33 +132,18 @@ def progress_display() -> ProgressDisplay:
     return ProgressDisplay()
 
 
-def events(show: Callable[[ProgressEvent], None], phase: str, unit: str = ""):
-    """Wrap a callback shape that is not yet an event into :class:`ProgressEvent` values.
-
-    Accepts ``(done, total)``, an object with ``done``/``total`` (and
-    optionally ``side``), a message string, or an event (passed through).
+def messages(show: Callable[[ProgressEvent], None], phase: str, unit: str = ""):
+    """A ``say(text)`` callback (the study runner's) that reports numbered events.
 
     >>> seen = []
-    >>> cb = events(seen.append, "sweep", "types")
-    >>> cb(3, 10); cb("3x+1"); str(seen[0]), str(seen[1])
-    ('sweep: 3/10 types', 'sweep: 0 types (3x+1)')
+    >>> say = messages(seen.append, "study", "analyses")
+    >>> say("sweep 3x+1"); say("scan 3x+1"); str(seen[1])
+    'study: 1 analyses (scan 3x+1)'
     """
     count = [0]
 
-    def callback(*args) -> None:
-        if len(args) == 1 and isinstance(args[0], ProgressEvent):
-            show(args[0])
-        elif len(args) == 2:
-            show(ProgressEvent(phase, int(args[0]), args[1], unit))
-        elif len(args) == 1 and isinstance(args[0], str):
-            show(ProgressEvent(phase, count[0], None, unit, args[0]))
-            count[0] += 1
-        elif len(args) == 1 and hasattr(args[0], "done"):
-            p = args[0]
-            parts = [str(getattr(p, "side", "") or "")]
-            if getattr(p, "unresolved", None):
-                parts.append(f"{p.unresolved:,} unresolved so far")
-            detail = ", ".join(x for x in parts if x)
-            show(ProgressEvent(phase, int(p.done), getattr(p, "total", None), unit, detail))
+    def say(text: str) -> None:
+        show(ProgressEvent(phase, count[0], None, unit, text))
+        count[0] += 1
 
-    return callback
+    return say

@@ -6,7 +6,7 @@ import click
 
 from ..errors import BadInput
 from ..options import force_option, json_option, out_option, workers_option
-from ..progress import events, progress_display
+from ..progress import messages, progress_display
 from ..render import emit_json, stdout_console
 from ..study import run_study
 from ..studyfile import StudyError, load_study
@@ -36,7 +36,7 @@ def study_cmd(path, out, workers, force, as_json):
     try:
         with progress_display() as show:
             summary = run_study(
-                study, out, workers=workers, force=force, say=events(show, "study", "analyses")
+                study, out, workers=workers, force=force, say=messages(show, "study", "analyses")
             )
     except StudyError as exc:
         raise BadInput(str(exc)) from None
