@@ -138,10 +138,11 @@ def test_old_spellings_hidden_from_help_but_still_read():
     assert "--offsets" in help_text and "--k " not in help_text and "--all-k" not in help_text
     new = runner.invoke(cli, ["count", "3x+1", "--length", "13", "--odd", "8", "--json"])
     old = runner.invoke(cli, ["count", "3x+1", "-k", "13", "-x", "8", "--json"])
-    assert new.exit_code == 0 and new.output == old.output
+    assert new.exit_code == 0 and new.stdout == old.stdout
+    assert "note: -k is an old spelling of --length" in old.stderr and new.stderr == ""
     # the type k = 13, x = 8 of 3x+1 has C(13, 8)/13 = 99 necklaces (gcd(13, 8) = 1; the
     # closed form for necklaces with fixed content, common practice, no source)
-    assert json.loads(new.output)["necklaces"] == 99
+    assert json.loads(new.stdout)["necklaces"] == 99
 
 
 def _run(capsys, *args):

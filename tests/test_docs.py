@@ -6,8 +6,11 @@ must cite ones that exist.)
 
 from __future__ import annotations
 
+import doctest
 import re
 from pathlib import Path
+
+import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
 DESIGN = ROOT / "docs" / "design.md"
@@ -53,3 +56,33 @@ def test_markdown_links_resolve():
             if target.startswith(("http://", "https://", "mailto:")):
                 continue
             assert (path.parent / target).exists(), f"{path.name}: broken link {target}"
+
+
+def _doctest_blocks(text: str) -> list[str]:
+    """The fenced code blocks of a Markdown page that are interactive sessions."""
+    blocks, current = [], None
+    for line in text.splitlines(keepends=True):
+        if line.startswith("```"):
+            if current is None:
+                current = []
+            else:
+                blocks.append("".join(current))
+                current = None
+        elif current is not None:
+            current.append(line)
+    return [b for b in blocks if b.lstrip().startswith(">>>")]
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("page", ["census.md", "scan.md", "counting.md"])
+def test_docs_examples_run(page, monkeypatch, tmp_path):
+    # the pages' interactive examples are doctests: they run as written, new names included
+    monkeypatch.chdir(tmp_path)
+    blocks = _doctest_blocks((ROOT / "docs" / page).read_text(encoding="utf-8"))
+    assert blocks
+    parser = doctest.DocTestParser()
+    runner = doctest.DocTestRunner(optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)
+    for i, block in enumerate(blocks):
+        test = parser.get_doctest(block, {}, f"{page}#{i}", page, 0)
+        runner.run(test)
+    assert runner.failures == 0

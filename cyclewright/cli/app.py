@@ -86,7 +86,9 @@ def _accept_leading_minus(cmd: click.Command) -> None:
     original = cmd.parse_args
 
     def parse_args(ctx: click.Context, args: list[str]) -> list[str]:
-        known = {o for p in cmd.get_params(ctx) for o in (*p.opts, *p.secondary_opts)}
+        params = cmd.get_params(ctx)
+        known = {o for p in params for o in (*p.opts, *p.secondary_opts)}
+        old = {h: p for p in params for h in getattr(p, "hidden_names", ())}
         for token in args:
             if token == "--":
                 break
@@ -94,6 +96,9 @@ def _accept_leading_minus(cmd: click.Command) -> None:
                 name = token.split("=", 1)[0]
                 if name not in known:
                     raise click.NoSuchOption(name, ctx=ctx)
+                if name in old:
+                    new = old[name].visible_opts[0]
+                    click.echo(f"note: {name} is an old spelling of {new}", err=True)
         return original(ctx, args)
 
     cmd.parse_args = parse_args

@@ -25,8 +25,9 @@ Inside
   :func:`parse_int`.
 
 Old spellings (``-k``, ``-K``, ``-x``, ``--k``, ``--all-k``,
-``--max-cycle-length``) are still read, as hidden aliases: they do not
-appear in ``--help``.
+``--max-cycle-length``, ``--rows``) are still read, as hidden aliases: they do
+not appear in ``--help``, and using one prints a note naming the new spelling
+(``cli/app.py``).
 """
 
 from __future__ import annotations
