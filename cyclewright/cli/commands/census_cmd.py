@@ -150,7 +150,6 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
         raise BadInput(
             "--certificate is for a single map; run the census of one member to certify it"
         )
-    side = "positive" if side == "both" else side
     with progress_display() as show:
         fam = census_family(
             template,
@@ -170,7 +169,9 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
     ]
     stdout_console().print(
         make_table(
-            f"{template}: cycles of length <= {K}, {side} side (certified per row)",
+            f"{template}: cycles of length <= {K}, "
+            + ("both sides" if side == "both" else f"{side} side")
+            + " (certified per row)",
             ["k", "primitive cycles", "their minima", "all cycles", "scanned to"],
             rows,
         )
