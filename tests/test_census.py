@@ -91,7 +91,7 @@ def test_bad_input():
 def test_family():
     # OEIS A226607: k = 1: 1; k = 5: 1, 19, 23; k = 7: 5; k = 11: 1 (3x+11 has the cycle 1 -> 7 -> 16 -> 8 ...)
     fam = census_family("3x+k", range(1, 8), 20, store=False, workers=1)
-    rows = {r["k"]: r["primitive_minima"] for r in fam.table()}
+    rows = {r["k"]: r["primitive_minima"] for r in fam.records()}
     assert rows == {1: [1], 5: [1, 19, 23], 7: [5]}
     assert parse_family("5x-k") == (5, -1)
     with pytest.raises(InputError):

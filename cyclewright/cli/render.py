@@ -135,6 +135,27 @@ def make_table(
     return t
 
 
+def show_table(t, show: int | None = None, caption: str | None = None):
+    """A rich table of a result's :class:`~cyclewright.cycles.presentation.Table`.
+
+    Column headers carry their labels; with ``show`` only the first rows are
+    listed and the caption says how many more ``--json`` gives.
+    """
+    rows = t.rows if show is None else t.rows[: max(show, 0)]
+    more = len(t.rows) - len(rows)
+    notes = [x for x in (caption, t.note) if x]
+    if more > 0:
+        notes.append(f"{more} more rows with --json")
+    from rich.markup import escape
+
+    return make_table(
+        f"{t.title} ({len(t.rows)})" if show is not None else t.title,
+        [escape(h) for h in t.header()],
+        rows,
+        caption="; ".join(notes) or None,
+    )
+
+
 def write_csv(path_or_stream, columns: Sequence[str], rows: Iterable[Sequence]) -> None:
     """Write rows as CSV (values through :func:`jsonable`; lists joined with spaces)."""
 

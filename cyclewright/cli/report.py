@@ -52,6 +52,13 @@ class Table:
     labels: dict[str, str] = field(default_factory=dict)
     note: str = ""
 
+    @classmethod
+    def of(cls, name: str, t) -> Table:
+        """The report table of a result's :class:`~cyclewright.cycles.presentation.Table`."""
+        return cls(
+            name, t.title, list(t.columns), [list(r) for r in t.rows], dict(t.labels), t.note
+        )
+
     def header_cells(self) -> list[str]:
         return [f"{c} [{self.labels[c]}]" if c in self.labels else c for c in self.columns]
 

@@ -26,6 +26,7 @@ from collections.abc import Callable
 from pathlib import Path
 
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
+from cyclewright.cycles.presentation import Table as ResultTable
 
 from .render import jsonable, short
 from .report import Figure, Report, Section, Table, slug
@@ -87,59 +88,20 @@ def _count(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             sec.paragraphs.append(f"{m.label}: a type (k, x) is for two-branch maps; skipped.")
             continue
         tc = count(m, p["length"], p["odd"], limit=p["limit"])
-        rows.append(
-            [
-                m.label,
-                tc.necklaces,
-                tc.primitive_necklaces,
-                tc.denominator,
-                tc.side,
-                tc.min_bound.integer,
-                tc.candidates,
-                len(tc.integer_cycles) if tc.integer_cycles is not None else None,
-                float(tc.heuristic),
-                tc.candidates_linear_forms,
-            ]
-        )
-    sec.tables.append(
-        Table(
-            ctx.name("count", str(p["length"]), str(p["odd"])),
-            f"Type k = {p['length']}, x = {p['odd']}",
-            [
-                "map",
-                "necklaces",
-                "primitive necklaces",
-                "D",
-                "side",
-                "min bound",
-                "candidates",
-                "integer cycles",
-                "necklaces/|D|",
-                "candidates from linear forms",
-            ],
-            rows,
-            {
-                "necklaces": "exact",
-                "primitive necklaces": "exact",
-                "D": "exact",
-                "min bound": "proved",
-                "candidates": "exact/proved",
-                "integer cycles": "exact",
-                "necklaces/|D|": "heuristic",
-                "candidates from linear forms": "proved",
-            },
-            note="candidates are exact when the type's necklaces were enumerated, else the proved bound.",
-        )
-    )
+        rows.append(tc.table().with_column("map", m.label))
+    if rows:
+        t = ResultTable.stack(rows, title=f"Type k = {p['length']}, x = {p['odd']}")
+        sec.tables.append(Table.of(ctx.name("count", str(p["length"]), str(p["odd"])), t))
     sec.cautions.append(HEURISTIC_CAUTION)
     return sec
 
 
 def _sweep(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     from cyclewright.cycles.errors import InputError
+    from cyclewright.cycles.sides import PerSide
     from cyclewright.cycles.sweep import sweep
 
-    from .commands.sweep_cmd import plot_sweep
+    from .plots import plot_sweep
 
     p = spec.params
     odd = p["odd"]
@@ -150,96 +112,27 @@ def _sweep(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     for m in spec.maps:
         ctx.say(f"sweep {m.label}")
         try:
-            s = sweep(m, odd, p["extra_lengths"], p["side"], limit=p["limit"])
+            got = sweep(m, odd, p["extra_lengths"], p["side"], limit=p["limit"])
         except InputError as exc:
             sec.paragraphs.append(f"{m.label}: {exc}")
             continue
-        rows = []
-        for r in s.rows:
-            rows.append(
-                [
-                    r.off_zero,
-                    r.length,
-                    list(r.content),
-                    r.necklaces,
-                    r.denominator,
-                    r.min_bound.integer,
-                    r.candidates if r.candidates is not None else r.candidates_bound,
-                    "exact" if r.enumerated else "proved",
-                    float(r.heuristic),
-                    len(r.integer_cycles) if r.integer_cycles is not None else None,
-                ]
+        for s in got if isinstance(got, PerSide) else [got]:
+            sec.tables.append(Table.of(ctx.name("sweep", m.label, s.side), s.table()))
+            png = ctx.out / f"{ctx.name('sweep-plot', m.label, s.side)}.png"
+            plot_sweep(s, str(png))
+            sec.figures.append(
+                Figure(
+                    png,
+                    f"{m.label}, {s.side} side: necklaces (exact), proved bound, "
+                    f"heuristic necklaces/|D| and integer cycles along the critical line",
+                )
             )
-        sec.tables.append(
-            Table(
-                ctx.name("sweep", m.label, p["side"]),
-                f"{m.label}: one row per type",
-                [
-                    "x",
-                    "k",
-                    "content",
-                    "necklaces",
-                    "D",
-                    "min bound",
-                    "candidates",
-                    "candidates label",
-                    "necklaces/|D|",
-                    "integer cycles",
-                ],
-                rows,
-                {
-                    "necklaces": "exact",
-                    "D": "exact",
-                    "min bound": "proved",
-                    "necklaces/|D|": "heuristic",
-                    "integer cycles": "exact",
-                },
+            summary.append(
+                s.summary_table().with_column("side", s.side).with_column("map", m.label)
             )
-        )
-        png = ctx.out / f"{ctx.name('sweep-plot', m.label, p['side'])}.png"
-        plot_sweep(s, str(png))
-        sec.figures.append(
-            Figure(
-                png,
-                f"{m.label}, {p['side']} side: necklaces (exact), proved bound, "
-                f"heuristic necklaces/|D| and integer cycles along the critical line",
-            )
-        )
-        summary.append(
-            [
-                m.label,
-                s.rho,
-                s.fitted_rate_corrected,
-                s.crossover_x,
-                s.crossover_x_linear_forms,
-                sum(len(r.integer_cycles or ()) for r in s.rows),
-            ]
-        )
-    sec.tables.insert(
-        0,
-        Table(
-            ctx.name("sweep-summary", p["side"]),
-            "Growth of necklaces and where the counting argument bites",
-            [
-                "map",
-                "rho (theory)",
-                "fitted rate",
-                "bound below necklaces from x",
-                "linear forms from x",
-                "integer cycles found",
-            ],
-            summary,
-            {
-                "rho (theory)": "exact",
-                "fitted rate": "heuristic",
-                "bound below necklaces from x": "proved",
-                "linear forms from x": "proved",
-                "integer cycles found": "exact",
-            },
-            note="'bound below necklaces from x': from this x on, within the swept range, the proved candidate "
-            "bound stays below the necklace count, so almost no itinerary of those types closes.",
-        ),
-    )
+    if summary:
+        t = ResultTable.stack(summary)
+        sec.tables.insert(0, Table.of(ctx.name("sweep-summary", p["side"]), t))
     sec.cautions.append(HEURISTIC_CAUTION)
     return sec
 
@@ -261,63 +154,11 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             store=ctx.stores,
             workers=ctx.workers,
         )
-        for s in r.sides:
-            c = r.counts[s]
-            counts.append(
-                [
-                    m.label,
-                    s,
-                    r.to - r.start + 1,
-                    c.get("drops"),
-                    c.get("cycles"),
-                    c.get("other_cycle"),
-                    r.unresolved_count.get(s, 0),
-                    list(r.unresolved_first.get(s, ()))[:5],
-                ]
-            )
-        for c in r.cycles:
-            cyc.append(
-                [
-                    m.label,
-                    c.minimum,
-                    c.length,
-                    c.odd_steps if c.odd_steps is not None else list(c.content),
-                    c.itinerary,
-                    c.lagarias_primitive,
-                    list(c.elements[:8]),
-                ]
-            )
-    sec.tables.append(
-        Table(
-            ctx.name("scan-counts"),
-            "How every start was classified",
-            [
-                "map",
-                "side",
-                "starts",
-                "drop below start",
-                "cycle minimum",
-                "enter another cycle",
-                "unresolved",
-                "first unresolved",
-            ],
-            counts,
-            {"drop below start": "exact", "cycle minimum": "certified", "unresolved": "exact"},
-        )
-    )
-    sec.tables.append(
-        Table(
-            ctx.name("scan-cycles"),
-            "Cycles whose minimum lies in the range",
-            ["map", "minimum", "length", "odd steps", "itinerary", "primitive", "first elements"],
-            cyc,
-            {"minimum": "certified", "length": "exact"},
-        )
-    )
-    sec.cautions.append(
-        "Unresolved starts passed the step cap without an exact verdict: they are open "
-        "cases, not evidence of divergence or of further cycles."
-    )
+        t_counts, t_cycles = r.tables()
+        counts.append(t_counts.with_column("map", m.label))
+        cyc.append(t_cycles.with_column("map", m.label))
+    for name, tables in (("scan-counts", counts), ("scan-cycles", cyc)):
+        sec.tables.append(Table.of(ctx.name(name), ResultTable.stack(tables)))
     return sec
 
 
@@ -334,39 +175,7 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         ctx.say(f"family census {p['family']}")
         side = "positive" if p["side"] == "both" else p["side"]
         fam = census_family(p["family"], ks, K, side=side, store=ctx.stores, workers=ctx.workers)
-        rows = [
-            [
-                r["k"],
-                r["primitive_count"],
-                r["primitive_minima"],
-                r["cycle_count"],
-                r["all_minima"],
-                r["scan_to"],
-            ]
-            for r in fam.table()
-        ]
-        sec.tables.append(
-            Table(
-                ctx.name("census-family", p["family"]),
-                f"{p['family']}: cycles of length <= {K}",
-                [
-                    "k",
-                    "primitive cycles",
-                    "primitive minima",
-                    "all cycles",
-                    "all minima",
-                    "scanned to",
-                ],
-                rows,
-                {
-                    "primitive cycles": "certified",
-                    "primitive minima": "certified",
-                    "all cycles": "certified",
-                },
-                note="k prime to 2a; each row certified by the bound on cycle minima and an "
-                "exhaustive scan (or by the itinerary method).",
-            )
-        )
+        sec.tables.append(Table.of(ctx.name("census-family", p["family"]), fam.table()))
         return sec
     sec = Section(f"Certified census up to length {K} ({p['side']})")
     plans, cyc = [], []
@@ -381,114 +190,38 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             continue
         cert = ctx.out / f"{ctx.name('certificate', m.label, str(K))}.json"
         write_certificate(c, cert, overwrite=True)
-        for s, pl in c.plans.items():
-            plans.append(
-                [
-                    m.label,
-                    s,
-                    pl.method,
-                    pl.bound,
-                    list(pl.bound_content) if pl.bound_content else None,
-                    pl.scan_to,
-                    c.cross_checked,
-                ]
-            )
-        for x in c.cycles:
-            cyc.append(
-                [
-                    m.label,
-                    x.minimum,
-                    x.length,
-                    x.odd_steps if x.odd_steps is not None else list(x.content),
-                    x.itinerary,
-                    x.lagarias_primitive,
-                    list(x.elements[:6]),
-                ]
-            )
+        t_plans, t_cycles = c.tables()
+        plans.append(t_plans.with_column("map", m.label))
+        cyc.append(t_cycles.with_column("map", m.label))
         sec.paragraphs.append(f"{c.statement()} Certificate: [{cert.name}]({cert.name}).")
-    sec.tables.append(
-        Table(
-            ctx.name("census-methods", str(K)),
-            "How each side was certified",
-            [
-                "map",
-                "side",
-                "method",
-                "bound on |min|",
-                "type attaining it",
-                "scanned to",
-                "cross-checked",
-            ],
-            plans,
-            {"bound on |min|": "proved", "scanned to": "exact"},
-        )
-    )
-    sec.tables.append(
-        Table(
-            ctx.name("census-cycles", str(K)),
-            f"All integer cycles of length <= {K}",
-            ["map", "minimum", "length", "odd steps", "itinerary", "primitive", "first elements"],
-            cyc,
-            {"minimum": "certified", "length": "exact", "primitive": "exact"},
-        )
-    )
+    for name, tables in (("census-methods", plans), ("census-cycles", cyc)):
+        if tables:
+            sec.tables.append(Table.of(ctx.name(name, str(K)), ResultTable.stack(tables)))
     return sec
 
 
 def _floor(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     from cyclewright.cycles.errors import InputError
-    from cyclewright.cycles.floors import floor
+    from cyclewright.cycles.floors import floor, floor_table
+    from cyclewright.cycles.sides import PerSide
 
     p = spec.params
     N = p["verified_to"]
     sec = Section(f"Least length of a further cycle, given verification to N = {short(N)}")
-    rows = []
-    sides = ("positive", "negative") if p["side"] == "both" else (p["side"],)
+    tables = []
     for m in spec.maps:
-        for s in sides:
-            try:
-                f = floor(m, N, s, next_types=p["next"])
-            except InputError as exc:
-                rows.append([m.label, s, None, None, None, [], str(exc)])
-                continue
-            ap = f.approximant
-            rows.append(
-                [
-                    m.label,
-                    s,
-                    f.least_length,
-                    f.odd_steps,
-                    (f"{ap.describe()}: {ap.p}/{ap.q}" if ap is not None else None),
-                    [list(t) for t in f.next_possible],
-                    "",
-                ]
-            )
-    sec.tables.append(
-        Table(
-            ctx.name("floor", str(N)),
-            "Least type of any further cycle",
-            [
-                "map",
-                "side",
-                "least length k",
-                "odd steps x",
-                "from",
-                "next possible (k, x)",
-                "note",
-            ],
-            rows,
-            {"least length k": "proved", "odd steps x": "proved", "next possible (k, x)": "proved"},
-            note=f"Conditional: assumes no cycle on that side has its minimum in 1..{N} apart "
-            "from the known ones.",
-        )
-    )
+        try:
+            got = floor(m, N, p["side"], next_types=p["next"])
+        except InputError as exc:  # the bound does not apply on the one side asked: say why
+            got = PerSide({}, {p["side"]: str(exc)})
+        tables.append(floor_table(got).with_column("map", m.label))
+    sec.tables.append(Table.of(ctx.name("floor", str(N)), ResultTable.stack(tables)))
     return sec
 
 
 def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     from cyclewright.cycles.compare import compare
 
-    from .commands.compare_cmd import ROW_COLUMNS, comparison_sweeps
     from .plots import plot_comparison
 
     p = spec.params
@@ -506,73 +239,14 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         workers=ctx.workers,
         progress=lambda event: ctx.say(str(event)),
     )
-    rows = cmp.rows()
-    labels = rows[0]["labels"] if rows else {}
-    cols = [c for c in ROW_COLUMNS]
-    sec.tables.append(
-        Table(
-            ctx.name("compare"),
-            "One row per map",
-            cols,
-            [[r.get(c) for c in cols] for r in rows],
-            {c: v for c, v in labels.items() if c in cols},
-            note="Floors are conditional on the scan having verified 1..N with no unresolved "
-            "start; where starts stayed unresolved no floor is given.",
-        )
-    )
+    sec.tables.append(Table.of(ctx.name("compare"), cmp.table()))
     for prof in cmp.profiles:
-        pr = prof.predictions
-        if pr is None:
-            continue
-        body = [
-            [
-                t.side,
-                t.length,
-                list(t.content),
-                t.found,
-                t.necklaces,
-                t.candidates,
-                t.candidates_label,
-                float(t.heuristic) if t.heuristic is not None else None,
-            ]
-            for t in pr.rows
-        ]
-        for side, tot in pr.totals.items():
-            body.append(
-                [
-                    side,
-                    f"all <= {pr.max_length}",
-                    f"{tot['types']} types",
-                    tot["found"],
-                    tot["necklaces"],
-                    tot["candidates"] if tot["bound_applies"] else None,
-                    "proved"
-                    if tot["bound_applies"]
-                    else f"n/a ({tot['types_without_bound']} types without a bound)",
-                    tot["heuristic"],
-                ]
-            )
-        sec.tables.append(
-            Table(
-                ctx.name("predictions", prof.map.label),
-                f"{prof.map.label}: predictions against findings",
-                [
-                    "side",
-                    "length",
-                    "content",
-                    "found",
-                    "necklaces",
-                    "candidates",
-                    "candidates label",
-                    "heuristic",
-                ],
-                body,
-                {"found": "certified", "necklaces": "exact", "heuristic": "heuristic"},
-            )
-        )
+        if prof.predictions is not None:
+            t = prof.predictions.table()
+            sec.tables.append(Table.of(ctx.name("predictions", prof.map.label), t))
     if p["plot"]:
         png = ctx.out / f"{ctx.name('compare-plot')}.png"
-        plot_comparison(cmp, comparison_sweeps(cmp), png)
+        plot_comparison(cmp, cmp.sweeps(), png)
         sec.figures.append(
             Figure(
                 png,
@@ -594,16 +268,7 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     for m in spec.maps:
         ctx.say(f"graph {m.label}")
         g = functional_graph(m, p["to"], side=p["side"], ceiling=p["ceiling"])
-        for c, basin in zip(g.cycles, g.basins):
-            rows.append(
-                [m.label, c.minimum, c.length, basin, float(g.basin_share(c)), c.lagarias_primitive]
-            )
-        rows.append(
-            [m.label, "escaped (passed the ceiling)", None, g.escaped, float(g.escaped_share), None]
-        )
-        rows.append(
-            [m.label, "unresolved (step cap)", None, g.unresolved, float(g.unresolved_share), None]
-        )
+        rows.append(g.table().with_column("map", m.label))
         if p["plot"] and g.graph.number_of_nodes() <= 2000:
             png = ctx.out / f"{ctx.name('graph-plot', m.label)}.png"
             g.plot(png)
@@ -612,16 +277,7 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
                     png, f"{m.label}: the orbits of 1..{p['to']} ({p['side']}), cycles highlighted"
                 )
             )
-    sec.tables.append(
-        Table(
-            ctx.name("graph-basins"),
-            "Cycles and their basins",
-            ["map", "cycle minimum", "length", "starts in basin", "share", "primitive"],
-            rows,
-            {"starts in basin": "exact", "share": "exact"},
-            note="Escaped means the orbit passed the ceiling: not a proof of divergence.",
-        )
-    )
+    sec.tables.append(Table.of(ctx.name("graph-basins"), ResultTable.stack(rows)))
     return sec
 
 

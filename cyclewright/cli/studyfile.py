@@ -119,7 +119,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "sweep": {
         "odd": (_range_text, "1..40"),
         "extra_lengths": (_int(0, 50), 0),
-        "side": (_choice("positive", "negative"), DEFAULT_SIDE),
+        "side": (SIDE, DEFAULT_SIDE),
         "limit": (_int(0, 10**8), DEFAULT_SWEEP_LIMIT),
     },
     "scan": {

@@ -63,9 +63,10 @@ from fractions import Fraction
 from cyclewright.maps import Map, as_map, parse_shorthand
 
 from .errors import InputError
-from .integer_cycle import IntegerCycle, cycle_from_element
+from .integer_cycle import IntegerCycle, cycle_from_element, cycles_table
 from .labels import CERTIFIED, EXACT, PROVED
 from .largest_bound import largest_bound_up_to
+from .presentation import Table
 from .progress import ProgressCallback, report
 from .scan.run import scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
@@ -192,6 +193,43 @@ class Census:
         methods = sorted({p.method for p in self.plans.values()})
         text = " + ".join(methods)
         return text + (" (cross-checked by both methods)" if self.cross_checked else "")
+
+    def tables(self) -> tuple[Table, Table]:
+        """How each side was certified, and every cycle found (its minimum ``certified``)."""
+        plans = Table(
+            "How each side was certified",
+            (
+                "side",
+                "method",
+                "bound on |min|",
+                "type attaining it",
+                "scanned to",
+                "cross-checked",
+            ),
+            tuple(
+                (
+                    s,
+                    p.method,
+                    p.bound,
+                    tuple(p.bound_content) if p.bound_content else None,
+                    p.scan_to,
+                    self.cross_checked,
+                )
+                for s, p in self.plans.items()
+            ),
+            {"bound on |min|": PROVED.value, "scanned to": EXACT.value},
+        )
+        cycles = cycles_table(
+            self.cycles,
+            self.map.divisor,
+            title=f"All integer cycles of length <= {self.max_length}",
+            minimum_label=CERTIFIED.value,
+        )
+        return plans, cycles
+
+    def table(self) -> Table:
+        """Every cycle found (see :meth:`tables` for the certification too)."""
+        return self.tables()[1]
 
     def statement(self) -> str:
         """One sentence a user can cite."""
@@ -577,7 +615,34 @@ class FamilyCensus:
     side: str
     rows: tuple[Census, ...]
 
-    def table(self) -> list[dict]:
+    def table(self) -> Table:
+        """One row per member: its primitive cycles and all its cycles (certified per row)."""
+        cols = {
+            "k": "k",
+            "primitive_count": "primitive cycles",
+            "primitive_minima": "primitive minima",
+            "cycle_count": "all cycles",
+            "all_minima": "all minima",
+            "scan_to": "scanned to",
+        }
+        return Table(
+            f"{self.template}: cycles of length <= {self.max_length}, "
+            + ("both sides" if self.side == "both" else f"{self.side} side"),
+            tuple(cols.values()),
+            tuple(tuple(r[k] for k in cols) for r in self.records()),
+            {
+                "primitive cycles": CERTIFIED.value,
+                "primitive minima": CERTIFIED.value,
+                "all cycles": CERTIFIED.value,
+                "all minima": CERTIFIED.value,
+                "scanned to": EXACT.value,
+            },
+            "k prime to 2a unless all offsets were asked; each row certified by the bound on "
+            "cycle minima and an exhaustive scan (or by the itinerary method).",
+        )
+
+    def records(self) -> list[dict]:
+        """One dict per member (the JSON rows)."""
         out = []
         for c in self.rows:
             prim = [x.minimum for x in c.primitive if x.minimum != 0]
@@ -600,7 +665,7 @@ class FamilyCensus:
             "family": self.template,
             "max_length": self.max_length,
             "side": self.side,
-            "rows": self.table(),
+            "rows": self.records(),
             "labels": {"primitive_minima": CERTIFIED.value, "primitive_count": CERTIFIED.value},
         }
 
@@ -638,7 +703,7 @@ def census_family(
     Examples
     --------
     >>> fam = census_family("3x+k", range(1, 8), 20, store=False, workers=1)
-    >>> [(r["k"], r["primitive_minima"]) for r in fam.table()]
+    >>> [(r["k"], r["primitive_minima"]) for r in fam.records()]
     [(1, [1]), (5, [1, 19, 23]), (7, [5])]
     """
     parse_side(side)

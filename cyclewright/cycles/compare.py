@@ -42,10 +42,51 @@ from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .limits import DEFAULT_MAX_STEPS
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
+from .presentation import Table
 from .progress import ProgressCallback, report
-from .sweep import critical_lengths, rho
+from .sweep import critical_lengths, rho, sweep
 
-__all__ = ["compare", "Comparison", "MapProfile", "predictions", "Predictions", "critical_ratio"]
+__all__ = [
+    "compare",
+    "Comparison",
+    "MapProfile",
+    "predictions",
+    "Predictions",
+    "critical_ratio",
+    "ROW_COLUMNS",
+]
+
+#: The columns of :meth:`Comparison.table` (and of the CLI's CSV).
+ROW_COLUMNS = (
+    "map",
+    "definition",
+    "divisor",
+    "drift",
+    "drift_exact",
+    "critical_ratio",
+    "critical_ratio_exact",
+    "rho",
+    "census_length",
+    "census_cycles",
+    "census_minima",
+    "census_lengths",
+    "census_primitive",
+    "census_method",
+    "scan_to",
+    "drop_share",
+    "unresolved_share",
+    "cycles_met",
+    "largest_peak",
+    "largest_peak_start",
+    "floor_positive_length",
+    "floor_negative_length",
+    "x",
+    "k",
+    "necklaces_at_x",
+    "candidates_at_x",
+    "heuristic_at_x",
+    "integer_cycles_at_x",
+)
 
 
 def critical_ratio(m: Map | str) -> tuple[float, str] | None:
@@ -117,6 +158,53 @@ class Predictions:
     totals: (
         dict  # side -> {"types", "necklaces", "candidates", "heuristic", "found", "bound_applies"}
     )
+
+    def table(self) -> Table:
+        """One row per type, then the totals per side."""
+        body = [
+            (
+                t.side,
+                t.length,
+                tuple(t.content),
+                t.found,
+                t.necklaces,
+                t.candidates,
+                t.candidates_label,
+                float(t.heuristic) if t.heuristic is not None else None,
+            )
+            for t in self.rows
+        ]
+        for side, tot in self.totals.items():
+            body.append(
+                (
+                    side,
+                    f"all <= {self.max_length}",
+                    f"{tot['types']} types",
+                    tot["found"],
+                    tot["necklaces"],
+                    tot["candidates"] if tot["bound_applies"] else None,
+                    PROVED.value
+                    if tot["bound_applies"]
+                    else f"n/a ({tot['types_without_bound']} types without a bound)",
+                    tot["heuristic"],
+                )
+            )
+        return Table(
+            f"{self.map.label}: predictions against findings",
+            (
+                "side",
+                "length",
+                "content",
+                "found",
+                "necklaces",
+                "candidates",
+                "candidates label",
+                "heuristic",
+            ),
+            tuple(body),
+            {"found": CERTIFIED.value, "necklaces": EXACT.value, "heuristic": HEURISTIC.value},
+            "the heuristic (necklaces / |D|, a float) is an expectation, never a proof",
+        )
 
     def to_dict(self) -> dict:
         return {
@@ -377,6 +465,29 @@ class Comparison:
 
     def rows(self) -> list[dict]:
         return [p.row() for p in self.profiles]
+
+    def table(self) -> Table:
+        """One row per map (the columns of :data:`ROW_COLUMNS`, labelled)."""
+        rows = self.rows()
+        labels = rows[0]["labels"] if rows else {}
+        return Table(
+            "One row per map",
+            tuple(ROW_COLUMNS),
+            tuple(tuple(r.get(c) for c in ROW_COLUMNS) for r in rows),
+            {c: v for c, v in labels.items() if c in ROW_COLUMNS},
+            "Floors are conditional on the scan having verified 1..N with no unresolved "
+            "start; where starts stayed unresolved no floor is given.",
+        )
+
+    def sweeps(self, limit: int = 2000) -> dict:
+        """The positive-side critical-line sweep of every map that has one (for plots)."""
+        out = {}
+        for p in self.profiles:
+            try:
+                out[p.map.label] = sweep(p.map, range(1, self.odd + 1), limit=limit)
+            except InputError:
+                continue
+        return out
 
     def to_dict(self) -> dict:
         return {

@@ -72,6 +72,7 @@ from .necklaces import (
     type_content,
     word_count,
 )
+from .presentation import Table
 from .progress import ProgressCallback, report
 from .solver import cycle_representative
 
@@ -95,6 +96,29 @@ _MAX_SECONDS = 86400.0  # enumerations estimated above a day are refused
 
 
 # ------------------------------------------------------------------ results
+_TYPE_COLUMNS = (
+    "necklaces",
+    "primitive necklaces",
+    "D",
+    "side",
+    "min bound",
+    "candidates",
+    "candidates label",
+    "integer cycles",
+    "necklaces/|D|",
+    "candidates from linear forms",
+)
+_TYPE_LABELS = {
+    "necklaces": EXACT.value,
+    "primitive necklaces": EXACT.value,
+    "D": EXACT.value,
+    "min bound": PROVED.value,
+    "integer cycles": EXACT.value,
+    "necklaces/|D|": HEURISTIC.value,
+    "candidates from linear forms": PROVED.value,
+}
+
+
 @dataclass(frozen=True)
 class TypeCount:
     """Counting figures for one type; see the module docstring for the definitions.
@@ -192,6 +216,30 @@ class TypeCount:
         if len(self.content) == 2:
             return f"k={self.length}, x={self.content[1]}"
         return f"k={self.length}, content {list(self.content)}"
+
+    def table(self) -> Table:
+        """The type's figures in one row, each column labelled."""
+        return Table(
+            f"Type {self.type_text()}",
+            _TYPE_COLUMNS,
+            (
+                (
+                    self.necklaces,
+                    self.primitive_necklaces,
+                    self.denominator,
+                    self.side,
+                    self.min_bound.integer,
+                    self.candidates,
+                    "exact" if self.enumerated else "proved",
+                    len(self.integer_cycles) if self.integer_cycles is not None else None,
+                    float(self.heuristic),
+                    self.candidates_linear_forms,
+                ),
+            ),
+            dict(_TYPE_LABELS),
+            "candidates are exact when the type's necklaces were enumerated, else the proved "
+            "bound; necklaces/|D| is a heuristic expectation (a float), never a proof.",
+        )
 
     def row(self) -> dict:
         """One flat dict (the sweep's row format; values exact where they are exact)."""

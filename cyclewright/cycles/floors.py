@@ -74,11 +74,13 @@ from .continued_fractions import (
 from .errors import InputError
 from .intervals import _log_sign, _Precision
 from .labels import EXACT, PROVED
+from .presentation import Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "Floor",
     "floor",
+    "floor_table",
 ]
 
 
@@ -374,6 +376,59 @@ def _shape(m: Map) -> tuple[int, int, int, int, int]:
     raise InputError(
         f"the floor needs one halving branch (multiplier 1) and one multiplying branch "
         f"(multiplier >= 2); {m.label} has multipliers {a0} and {a1}, so the bound does not apply"
+    )
+
+
+def floor_table(result: Floor | PerSide[Floor]) -> Table:
+    """The least type of a further cycle, one row per side (and why the bound fails on a side).
+
+    Parameters
+    ----------
+    result : Floor or PerSide of Floor
+        What :func:`floor` returned (a :class:`PerSide` may carry problems).
+
+    Returns
+    -------
+    Table
+
+    Examples
+    --------
+    >>> t = floor_table(floor("3x+1", 2**40))
+    >>> t.columns[:3], t.rows[0][:3]
+    (('side', 'least length k', 'odd steps x'), ('positive', 17087915, 10781274))
+
+    References
+    ----------
+    Eliahou 1993 (the method); see the module docstring.
+    """
+    floors = list(result) if isinstance(result, PerSide) else [result]
+    problems = result.problems if isinstance(result, PerSide) else {}
+    rows = []
+    for f in floors:
+        ap = f.approximant
+        rows.append(
+            (
+                f.side,
+                f.least_length,
+                f.odd_steps,
+                f"{ap.describe()}: {ap.p}/{ap.q}" if ap is not None else None,
+                tuple(tuple(t) for t in f.next_possible),
+                "" if f.possible else f.statement,
+            )
+        )
+    rows += [(s, None, None, None, (), why) for s, why in problems.items()]
+    N = floors[0].verified_to if floors else None
+    return Table(
+        "Least type of any further cycle",
+        ("side", "least length k", "odd steps x", "from", "next possible (k, x)", "note"),
+        tuple(rows),
+        {
+            "least length k": PROVED.value,
+            "odd steps x": PROVED.value,
+            "next possible (k, x)": PROVED.value,
+        },
+        "Conditional: assumes no cycle on that side has its minimum at or below the "
+        f"verified bound{'' if N is None else f' N = {N}'} apart from the known ones.",
     )
 
 

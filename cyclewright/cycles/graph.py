@@ -59,6 +59,7 @@ from .files import atomic_write
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import EXACT
 from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
+from .presentation import Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side
 from .solver import cycle_representative
@@ -145,6 +146,70 @@ class FunctionalGraph:
     def basin_share(self, cycle: IntegerCycle) -> Fraction:
         """The share of the starts that fall into ``cycle`` (exact)."""
         return Fraction(self.basin(cycle), self.starts)
+
+    def table(self) -> Table:
+        """The cycles reached with their basins, then the escaped and unresolved starts."""
+        rows = [
+            (
+                c.minimum,
+                c.length,
+                c.odd_steps if self.map.divisor == 2 else c.content,
+                c.lagarias_primitive,
+                self._is_start(c.minimum),
+                b,
+                Fraction(b, self.starts),
+            )
+            for c, b in zip(self.cycles, self.basins)
+        ]
+        rows.append(
+            (
+                "escaped (passed the ceiling)",
+                None,
+                None,
+                None,
+                None,
+                self.escaped,
+                self.escaped_share,
+            )
+        )
+        rows.append(
+            (
+                "unresolved (step cap)",
+                None,
+                None,
+                None,
+                None,
+                self.unresolved,
+                self.unresolved_share,
+            )
+        )
+        steps = "odd steps"  # for divisors above 2: the content (steps through each residue)
+        return Table(
+            "Cycles reached and their basins",
+            (
+                "cycle minimum",
+                "length",
+                steps,
+                "primitive (Lagarias)",
+                "minimum in range",
+                "starts in basin",
+                "share",
+            ),
+            tuple(rows),
+            {
+                c: EXACT.value
+                for c in (
+                    "cycle minimum",
+                    "length",
+                    steps,
+                    "primitive (Lagarias)",
+                    "starts in basin",
+                    "share",
+                )
+            },
+            "each cycle verified by solving its itinerary; escaped means the orbit passed the "
+            "ceiling: an exact count, not a proof of divergence",
+        )
 
     def cycle_minima(self, *, in_range: bool = False) -> list[int]:
         """The cycles' minima; with ``in_range`` only those that are starts.

@@ -30,11 +30,13 @@ from cyclewright.maps import Map, as_map
 from .itinerary import content as word_content
 from .itinerary import format_itinerary, is_primitive
 from .labels import EXACT
+from .presentation import Table
 from .sides import parse_side
 from .solver import cycle_representative, lagarias_primitive, solve
 
 __all__ = [
     "IntegerCycle",
+    "cycles_table",
     "verified_cycle",
     "cycle_from_element",
 ]
@@ -126,6 +128,76 @@ class IntegerCycle:
         kind = "" if self.lagarias_primitive else ", not primitive"
         steps = f", {self.odd_steps} odd" if self.odd_steps is not None else ""
         return f"IntegerCycle(min {self.minimum}, length {self.length}{steps}: {{{shown}{more}}}{kind})"
+
+
+def cycles_table(
+    cycles, divisor: int, *, title: str = "Integer cycles", minimum_label: str = EXACT.value
+) -> Table:
+    """The table of integer cycles every analysis shows (one row per cycle).
+
+    Parameters
+    ----------
+    cycles : iterable of IntegerCycle
+    divisor : int
+        The map's divisor: two-branch maps show odd steps, others (in the
+        same column) the content, steps through each residue.
+    title : str
+    minimum_label : str
+        The label of the minima: ``exact`` for cycles found, ``certified``
+        when the list is complete for a range (a finished scan, a census).
+
+    Returns
+    -------
+    Table
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> t = cycles_table([cycle_from_element(maps.get("3x+5"), 19, 5)], 2)
+    >>> t.header()[:3], t.rows[0][:4]
+    (['minimum [exact]', 'length [exact]', 'odd steps [exact]'], (19, 5, 3, '11100'))
+
+    References
+    ----------
+    Lagarias 1990 (primitive cycles); see the module docstring.
+    """
+    steps = "odd steps"  # for divisors above 2: the content (steps through each residue)
+    rows = tuple(
+        (
+            c.minimum,
+            c.length,
+            c.odd_steps if divisor == 2 else c.content,
+            c.itinerary,
+            c.primitive_itinerary,
+            c.lagarias_primitive,
+            c.elements[:8],
+        )
+        for c in cycles
+    )
+    return Table(
+        title,
+        (
+            "minimum",
+            "length",
+            steps,
+            "itinerary",
+            "primitive word",
+            "primitive (Lagarias)",
+            "first elements",
+        ),
+        rows,
+        {
+            "minimum": minimum_label,
+            "length": EXACT.value,
+            steps: EXACT.value,
+            "itinerary": EXACT.value,
+            "primitive word": EXACT.value,
+            "primitive (Lagarias)": EXACT.value,
+        },
+        "minimum = element of least absolute value; odd steps = the content for divisors "
+        "above 2; each cycle re-proved by exact iteration "
+        "and by solving its itinerary",
+    )
 
 
 def verified_cycle(m: Map | str, side: str, start: int, length: int) -> IntegerCycle:

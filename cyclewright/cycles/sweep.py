@@ -32,6 +32,7 @@ from .counting import (
 )
 from .errors import InputError
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .presentation import Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -271,6 +272,50 @@ class Sweep:
             "integer_cycles_found": sum(len(r.integer_cycles or ()) for r in self.rows),
             "elapsed_seconds": round(self.elapsed, 4),
         }
+
+    def table(self) -> Table:
+        """One row per type (x, k, content and the type's figures, labelled)."""
+        rows = tuple((r.off_zero, r.length, r.content, *r.table().rows[0]) for r in self.rows)
+        first = self.rows[0].table() if self.rows else None
+        return Table(
+            f"{self.map.label}, {self.side} side: one row per type",
+            ("x", "k", "content", *(first.columns if first else ())),
+            rows,
+            {"k": EXACT.value, **(first.labels if first else {})},
+            first.note if first else "",
+        )
+
+    def summary_table(self) -> Table:
+        """Growth of the necklaces and where the counting argument bites (one row)."""
+        return Table(
+            "Growth of necklaces and where the counting argument bites",
+            (
+                "rho (theory)",
+                "fitted rate",
+                "bound below necklaces from x",
+                "linear forms from x",
+                "integer cycles found",
+            ),
+            (
+                (
+                    self.rho,
+                    self.fitted_rate_corrected,
+                    self.crossover_x,
+                    self.crossover_x_linear_forms,
+                    sum(len(r.integer_cycles or ()) for r in self.rows),
+                ),
+            ),
+            {
+                "rho (theory)": self.LABELS["rho"],
+                "fitted rate": self.LABELS["fitted_rate_corrected"],
+                "bound below necklaces from x": self.LABELS["crossover_x"],
+                "linear forms from x": self.LABELS["crossover_x_linear_forms"],
+                "integer cycles found": self.LABELS["integer_cycles"],
+            },
+            "'bound below necklaces from x': from this x on, within the swept range, the "
+            "proved candidate bound stays below the necklace count, so almost no itinerary "
+            "of those types closes.",
+        )
 
     def to_dict(self) -> dict:
         out = self.summary()

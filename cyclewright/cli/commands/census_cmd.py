@@ -23,7 +23,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console
+from ..render import emit_json, show_table, stdout_console
 
 __all__ = ["COMMANDS"]
 
@@ -121,19 +121,7 @@ def census_cmd(
             )
         else:
             con.print(f"  {s}: itinerary method ({p.reason})")
-    rows = []
-    for x in c.cycles:
-        first = ", ".join(str(e) for e in x.elements[:6]) + (", ..." if x.length > 6 else "")
-        steps = x.odd_steps if x.odd_steps is not None else list(x.content)
-        rows.append(
-            [x.minimum, x.length, steps, short(x.itinerary, 30), first, x.lagarias_primitive]
-        )
-    head = "odd steps" if m.divisor == 2 else "content"
-    con.print(
-        make_table(
-            None, ["minimum", "length", head, "itinerary", "first elements", "primitive"], rows
-        )
-    )
+    con.print(show_table(c.table()))
     con.print(c.statement())
     if cert_path:
         con.print(f"certificate written to {cert_path}")
@@ -163,19 +151,7 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
     if as_json:
         emit_json(fam.to_dict())
         return
-    rows = [
-        [r["k"], r["primitive_count"], r["primitive_minima"], r["cycle_count"], r["scan_to"]]
-        for r in fam.table()
-    ]
-    stdout_console().print(
-        make_table(
-            f"{template}: cycles of length <= {K}, "
-            + ("both sides" if side == "both" else f"{side} side")
-            + " (certified per row)",
-            ["k", "primitive cycles", "their minima", "all cycles", "scanned to"],
-            rows,
-        )
-    )
+    stdout_console().print(show_table(fam.table()))
 
 
 COMMANDS = [census_cmd]

@@ -10,7 +10,6 @@ from cyclewright.cycles.census import default_family_members, parse_family
 from cyclewright.cycles.compare import compare
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
-from cyclewright.cycles.sweep import sweep
 from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
@@ -34,38 +33,7 @@ from ..options import (
 from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console, write_csv
 
-__all__ = ["COMMANDS", "ROW_COLUMNS", "resolve_maps", "comparison_sweeps"]
-
-ROW_COLUMNS = [
-    "map",
-    "definition",
-    "divisor",
-    "drift",
-    "drift_exact",
-    "critical_ratio",
-    "critical_ratio_exact",
-    "rho",
-    "census_length",
-    "census_cycles",
-    "census_minima",
-    "census_lengths",
-    "census_primitive",
-    "census_method",
-    "scan_to",
-    "drop_share",
-    "unresolved_share",
-    "cycles_met",
-    "largest_peak",
-    "largest_peak_start",
-    "floor_positive_length",
-    "floor_negative_length",
-    "x",
-    "k",
-    "necklaces_at_x",
-    "candidates_at_x",
-    "heuristic_at_x",
-    "integer_cycles_at_x",
-]
+__all__ = ["COMMANDS", "resolve_maps"]
 
 
 def resolve_maps(specs, offsets, map_files, all_k=False):
@@ -95,17 +63,6 @@ def resolve_maps(specs, offsets, map_files, all_k=False):
     if not out:
         raise BadInput("compare needs at least one map")
     return out
-
-
-def comparison_sweeps(cmp, limit: int = 2000) -> dict:
-    """The positive-side critical-line sweep of every map that has one (for the plot)."""
-    sweeps = {}
-    for p in cmp.profiles:
-        try:
-            sweeps[p.map.label] = sweep(p.map, range(1, cmp.odd + 1), limit=limit)
-        except InputError:
-            continue
-    return sweeps
 
 
 @click.command(
@@ -170,11 +127,12 @@ def compare_cmd(
     rows = cmp.rows()
     if csv_path:
         target = sys.stdout if csv_path == "-" else csv_path
-        write_csv(target, ROW_COLUMNS, [[r.get(c) for c in ROW_COLUMNS] for r in rows])
+        t = cmp.table()
+        write_csv(target, list(t.columns), t.rows)
     if plot_path:
         from ..plots import plot_comparison
 
-        plot_comparison(cmp, comparison_sweeps(cmp), plot_path)
+        plot_comparison(cmp, cmp.sweeps(), plot_path)
     if as_json:
         emit_json(cmp.to_dict())
         return

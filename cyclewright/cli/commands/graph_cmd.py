@@ -22,7 +22,7 @@ from ..options import (
     to_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console
+from ..render import emit_json, short, show_table, stdout_console
 
 
 @click.command(
@@ -123,27 +123,7 @@ def graph_cmd(
         f"{nodes} nodes, {result.graph.number_of_edges()} edges "
         f"(max steps {steps}, ceiling {short(ceil)})"
     )
-    rows = []
-    for c, basin in zip(result.cycles, result.basins):
-        rows.append(
-            [
-                c.minimum,
-                c.length,
-                short(c.odd_steps),
-                "yes" if c.lagarias_primitive else "no",
-                "yes" if result._is_start(c.minimum) else "no",
-                basin,
-                f"{float(result.basin_share(c)):.2%}",
-            ]
-        )
-    con.print(
-        make_table(
-            "Cycles reached (exact, each verified by solving its itinerary)",
-            ["minimum", "length", "odd", "primitive", "min in range", "basin", "share"],
-            rows,
-            caption="basin = starts in the range that fall into the cycle (exact); share rounded",
-        )
-    )
+    con.print(show_table(result.table()))
     con.print(
         f"escaped (passed the ceiling; not a proof of divergence): {result.escaped} starts "
         f"({float(result.escaped_share):.2%}); unresolved (step cap): {result.unresolved}"

@@ -24,7 +24,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console
+from ..render import emit_json, show_table, stdout_console
 
 _EPILOG = """\b
 Examples:
@@ -102,15 +102,6 @@ def scan_cmd(
     _print(result, show)
 
 
-_NAMES = {
-    "drops": "drops below its start",
-    "cycles": "cycle minimum (returns to its start)",
-    "other_cycle": "enters another cycle",
-    "unresolved": "unresolved",
-    "beyond_length": "beyond the length bound",
-}
-
-
 def _print(r, show_n: int) -> None:
     con = stdout_console()
     m = r.map
@@ -124,46 +115,10 @@ def _print(r, show_n: int) -> None:
         f"({' and '.join(r.sides)}), {cap}: [bold]{r.label}[/bold]"
         + ("" if r.complete else " (some starts unresolved, see below)")
     )
-    keys = ["drops", "cycles", "other_cycle"]
-    keys.append("beyond_length" if r.max_cycle_length else "unresolved")
-    rows = []
-    for k in keys:
-        rows.append([_NAMES[k]] + [r.counts[s][k] for s in r.sides] + ["certified"])
-    rows.append(
-        ["of which decided by the residue sieve"] + [r.sieved[s] for s in r.sides] + ["certified"]
-    )
-    con.print(make_table("Classification of the starts", ["", *r.sides, "label"], rows))
+    counts, cycles = r.tables()
+    con.print(show_table(counts))
     if r.cycles:
-        crow = []
-        for c in r.cycles[:show_n]:
-            steps = c.odd_steps if c.odd_steps is not None else " ".join(map(str, c.content))
-            crow.append(
-                [
-                    c.minimum,
-                    c.length,
-                    steps,
-                    short(c.itinerary, 30),
-                    c.primitive_itinerary,
-                    c.lagarias_primitive,
-                ]
-            )
-        more = f"; {len(r.cycles) - show_n} more with --json" if len(r.cycles) > show_n else ""
-        con.print(
-            make_table(
-                f"Cycles with minimum in range ({len(r.cycles)}, exact)",
-                [
-                    "minimum",
-                    "length",
-                    "odd steps" if m.divisor == 2 else "content",
-                    "itinerary",
-                    "primitive word",
-                    "primitive (Lagarias)",
-                ],
-                crow,
-                caption="minimum = element of least absolute value; each cycle re-proved by exact iteration"
-                + more,
-            )
-        )
+        con.print(show_table(cycles, show_n))
     else:
         con.print("No cycle has its minimum in the range.")
     for s in r.sides:

@@ -13,7 +13,7 @@ from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
 from ..errors import BadInput
-from ..files import atomic_write, check_output, save_figure
+from ..files import atomic_write, check_output
 from ..options import (
     IntExpr,
     csv_option,
@@ -28,10 +28,11 @@ from ..options import (
     show_option,
     side_option,
 )
+from ..plots import plot_sweep
 from ..progress import progress_display
 from ..render import emit_json, make_table, short, stdout_console, write_csv
 
-__all__ = ["COMMANDS", "plot_sweep"]
+__all__ = ["COMMANDS"]
 
 _TABLE_COLUMNS = [
     "x",
@@ -235,46 +236,6 @@ def _heur(l10: float) -> str:
 
 def _log10(n: int) -> float:
     return math.log10(n) if n > 0 else float("nan")
-
-
-def plot_sweep(s, path: str) -> None:
-    """Log-scale plot of a sweep (matplotlib, Agg backend); written atomically to ``path``."""
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    seen = set()
-    rows = []
-    for r in s.rows:  # first length of each x and content
-        key = (r.off_zero, r.content[1:])
-        if key not in seen:
-            seen.add(key)
-            rows.append(r)
-    xs = [r.off_zero for r in rows]
-    fig, ax = plt.subplots(figsize=(9, 5.5), dpi=110)
-    ax.plot(xs, [_log10(r.necklaces) for r in rows], label="necklaces (exact)", lw=1.4)
-    ax.plot(xs, [r.heuristic_log10 for r in rows], label="necklaces/|D| (heuristic)", lw=1.0)
-    bound = [_log10(r.candidates_bound) if r.candidates_bound else float("nan") for r in rows]
-    ax.plot(xs, bound, label="proved bound on |min| (= candidates bound)", lw=1.2, ls="--")
-    lf = [
-        _log10(r.candidates_linear_forms) if r.candidates_linear_forms else float("nan")
-        for r in rows
-    ]
-    ax.plot(xs, lf, label="bound from the linear-forms |Λ| bound (proved)", lw=1.0, ls=":")
-    enum = [(r.off_zero, _log10(r.candidates)) for r in rows if r.enumerated and r.candidates]
-    if enum:
-        ax.scatter(*zip(*enum), s=12, marker="o", label="candidates, enumerated (exact)")
-    ints = [(r.off_zero, _log10(len(r.integer_cycles))) for r in rows if r.integer_cycles]
-    if ints:
-        ax.scatter(*zip(*ints), s=36, marker="*", color="k", label="integer cycles (exact)")
-    ax.set_xlabel("x (odd steps)" if s.map.divisor == 2 else "x (steps off residue 0)")
-    ax.set_ylabel("log10 of the count")
-    ax.set_title(f"{s.map.label}, {s.side} side: necklaces vs candidates along the critical line")
-    ax.grid(alpha=0.3)
-    ax.legend(fontsize=8)
-    fig.tight_layout()
-    save_figure(fig, path)
 
 
 COMMANDS = [sweep_cmd]

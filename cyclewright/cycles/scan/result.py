@@ -6,9 +6,18 @@ from dataclasses import dataclass, field
 
 from cyclewright.maps import Map
 
-from ..integer_cycle import IntegerCycle
+from ..integer_cycle import IntegerCycle, cycles_table
 from ..labels import CERTIFIED, EXACT
+from ..presentation import Table
 from .store import code_version
+
+_COLUMN = {
+    "drops": "drops below its start",
+    "cycles": "cycle minimum (returns to its start)",
+    "other_cycle": "enters another cycle",
+    "unresolved": "unresolved",
+    "beyond_length": "beyond the length bound",
+}
 
 __all__ = [
     "ScanResult",
@@ -125,6 +134,40 @@ class ScanResult:
             "checks and exact multi-limb continuation; cycles re-verified by exact "
             "iteration and the itinerary's rational cycle"
         )
+
+    def tables(self) -> tuple[Table, Table]:
+        """How every start was classified (one row per side), and the cycles found."""
+        last = "beyond_length" if self.max_cycle_length else "unresolved"
+        names = [_COLUMN[k] for k in ("drops", "cycles", "other_cycle", last)]
+        rows = tuple(
+            (
+                s,
+                self.starts_per_side,
+                *(self.counts[s][k] for k in ("drops", "cycles", "other_cycle", last)),
+                self.sieved[s],
+                tuple(self.unresolved_first[s])[:5],
+            )
+            for s in self.sides
+        )
+        counts = Table(
+            "How every start was classified",
+            ("side", "starts", *names, "decided by the residue sieve", "first unresolved"),
+            rows,
+            {n: CERTIFIED.value for n in (*names, "decided by the residue sieve")},
+            "Unresolved starts passed the step cap without an exact verdict: they are open "
+            "cases, not evidence of divergence or of further cycles.",
+        )
+        cycles = cycles_table(
+            self.cycles,
+            self.map.divisor,
+            title="Cycles whose minimum lies in the range",
+            minimum_label=self.label,
+        )
+        return counts, cycles
+
+    def table(self) -> Table:
+        """The cycles found (see :meth:`tables` for the classification too)."""
+        return self.tables()[1]
 
     def to_dict(self) -> dict:
         m = self.map
