@@ -700,11 +700,21 @@ def census_family(
     **kw
         Passed to :func:`census` (``store``, ``workers``, ``max_scan``...).
 
+    Returns
+    -------
+    FamilyCensus
+        One certified :class:`Census` per member, with :meth:`FamilyCensus.table`.
+
     Examples
     --------
     >>> fam = census_family("3x+k", range(1, 8), 20, store=False, workers=1)
     >>> [(r["k"], r["primitive_minima"]) for r in fam.records()]
     [(1, [1]), (5, [1, 19, 23]), (7, [5])]
+
+    References
+    ----------
+    Lagarias 1990 (cycles of 3x+k, primitive cycles); OEIS A226607 (their
+    minima); see the module docstring.
     """
     parse_side(side)
     a, sign = parse_family(template)

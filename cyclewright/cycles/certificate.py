@@ -106,7 +106,35 @@ def certificate_of(c) -> dict:
 
 
 def write_certificate(c, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
-    """Write the certificate of census ``c`` to ``path`` (atomically; never over an existing file unless ``overwrite``)."""
+    """Write the certificate of census ``c`` to ``path`` (atomically; never over an existing file unless ``overwrite``).
+
+    Parameters
+    ----------
+    c : Census
+        A census (:func:`~cyclewright.cycles.census.census`).
+    path : path-like
+        The JSON file to write.
+    overwrite : bool
+        Replace an existing file (refused otherwise, the file left as it was).
+
+    Returns
+    -------
+    Path
+        ``path``.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> from cyclewright.cycles.census import census
+    >>> c = census("3x+5", 12, store=False, workers=1)
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> verify_certificate(write_certificate(c, d / "c.json")).ok
+    True
+
+    References
+    ----------
+    Eliahou 1993 (the bound the certificate records); see the module docstring.
+    """
     p = Path(path)
     if p.exists() and not overwrite:
         raise InputError(f"{p} exists; refusing to overwrite a certificate (choose another name)")
@@ -185,6 +213,21 @@ def verify_certificate(
     Verification
         ``problems`` names each defect: a changed map, a wrong element, a
         shrunk range, a missing or extra cycle, an edited body.
+
+    Examples
+    --------
+    >>> import json, tempfile, pathlib
+    >>> from cyclewright.cycles.census import census
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "c.json"
+    >>> _ = write_certificate(census("3x+5", 12, store=False, workers=1), p)
+    >>> doc = json.loads(p.read_text()); doc["max_length"] = 13
+    >>> _ = p.write_text(json.dumps(doc))
+    >>> verify_certificate(p).ok          # an edited certificate is caught
+    False
+
+    References
+    ----------
+    Eliahou 1993 (the bound each side rests on); see the module docstring.
     """
     from .census import census
     from .largest_bound import largest_bound_up_to

@@ -547,6 +547,11 @@ def compare(
     >>> cmp = compare([maps.get("3x+1"), maps.get("5x+1")], max_length=12, to=1000, odd=5, store=False, workers=1)
     >>> [r["census_minima"] for r in cmp.rows()]
     [[1, -1, -5, -17], [1, 13, 17, -1]]
+
+    References
+    ----------
+    Lagarias 1985 (the heuristic, drift); Eliahou 1993 (bounds and floors);
+    see the module docstring.
     """
     from .floors import floor
     from .scan.run import scan

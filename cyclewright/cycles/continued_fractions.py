@@ -155,8 +155,24 @@ def continued_fraction_log(
 def convergents(terms: Sequence[int]) -> list[tuple[int, int]]:
     """The convergents ``p_n / q_n`` of ``[a_0; a_1, ...]`` as ``(p, q)`` pairs.
 
+    Parameters
+    ----------
+    terms : sequence of int
+        The partial quotients ``[a_0; a_1, ...]``.
+
+    Returns
+    -------
+    list of (int, int)
+        ``(p_n, q_n)`` for ``n = 0, 1, ...``, in lowest terms.
+
+    Examples
+    --------
     >>> convergents([1, 1, 1, 2, 2])
     [(1, 1), (2, 1), (3, 2), (8, 5), (19, 12)]
+
+    References
+    ----------
+    Khinchin 1935, chapter I (the recurrences ``p_n = a_n p_{n-1} + p_{n-2}``).
     """
     out = []
     p0, q0, p1, q1 = 0, 1, 1, 0  # p_{-2}, q_{-2}, p_{-1}, q_{-1}
@@ -233,6 +249,10 @@ def semiconvergents(terms: Sequence[int]) -> list[Approximant]:
     --------
     >>> [(s.p, s.q, s.kind) for s in semiconvergents([1, 1, 1, 2])]
     [(1, 1, 'convergent'), (2, 1, 'convergent'), (3, 2, 'convergent'), (5, 3, 'semiconvergent'), (8, 5, 'convergent')]
+
+    References
+    ----------
+    Khinchin 1935, chapter II (intermediate fractions, best approximations).
     """
     out = []
     p0, q0, p1, q1 = 0, 1, 1, 0
@@ -282,6 +302,16 @@ def simplest_fraction(where: Callable[[int, int], int]) -> tuple[int, int]:
     Stern-Brocot descent in which each run of equal turns is done at once by
     exponential and binary search, so it costs ``O(sum log a_i)`` oracle
     calls over the partial quotients ``a_i`` met on the way.
+
+    Parameters
+    ----------
+    where : callable (p, q) -> int
+        ``-1`` when ``p/q`` lies below the interval, ``0`` inside, ``+1`` above.
+
+    Returns
+    -------
+    tuple of int
+        ``(p, q)``: the simplest fraction in the interval.
 
     Examples
     --------

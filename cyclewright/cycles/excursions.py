@@ -177,6 +177,11 @@ def excursions(
     (29, 1)
     >>> [e.peak for e in excursions("3x+1", 30, side="both")]
     [4616, 136]
+
+    References
+    ----------
+    Terras 1976 (stopping time); Oliveira e Silva 1999 (excursions); see the
+    module docstring.
     """
     m = as_map(m)
     parse_side(side)

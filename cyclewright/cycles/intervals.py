@@ -183,6 +183,20 @@ def log_form(m: Map | str, content_or_type, *, rel_bits: int = 64) -> Interval:
     relative width is below ``2^-rel_bits`` (its sign is that of ``D = d^k - A``,
     which is checked). Requires every relevant multiplier to be positive.
 
+    Parameters
+    ----------
+    m : Map or str
+        The map, or its name, alias or ``ax+b`` shorthand.
+    content_or_type : (k, x) for two-branch maps, or a content
+        See :func:`resolve_content`.
+    rel_bits : int
+        Relative width wanted, ``2^-rel_bits``.
+
+    Returns
+    -------
+    Interval
+        Exact rational end points enclosing ``Λ`` (``certified``).
+
     Examples
     --------
     >>> from cyclewright import maps

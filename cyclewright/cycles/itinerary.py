@@ -73,6 +73,10 @@ def parse_itinerary(text: str | Sequence[int], divisor: int) -> tuple[int, ...]:
     Traceback (most recent call last):
     ...
     cyclewright.cycles.itinerary.ItineraryError: digit 2 is not a residue mod 2 (use 0..1)
+
+    References
+    ----------
+    Terras 1976 (the parity vector); see the module docstring.
     """
     if not isinstance(text, str):
         word = tuple(int(r) for r in text)
@@ -114,8 +118,28 @@ def parse_itinerary(text: str | Sequence[int], divisor: int) -> tuple[int, ...]:
 def format_itinerary(word: Sequence[int], divisor: int) -> str:
     """Digits for ``divisor <= 10``, comma-separated residues otherwise.
 
+    Parameters
+    ----------
+    word : sequence of int
+        Residues.
+    divisor : int
+        The map's ``d``.
+
+    Returns
+    -------
+    str
+        The form :func:`parse_itinerary` reads back.
+
+    Examples
+    --------
     >>> format_itinerary((1, 1, 0), 2)
     '110'
+    >>> format_itinerary((11, 0), 12)
+    '11,0'
+
+    References
+    ----------
+    Terras 1976 (the parity vector); see the module docstring.
     """
     if divisor <= 10:
         return "".join(str(r) for r in word)
@@ -176,10 +200,28 @@ def composite(
     The recursion is ``A <- a_r A`` and ``B <- a_r B + b_r d^i`` at step
     ``i = 0, 1, ...``, from ``(A, B) = (1, 0)`` (Böhm and Sontacchi 1978 for 3x+1).
 
+    Parameters
+    ----------
+    branches : sequence of (int, int)
+        ``(a_r, b_r)`` for each residue ``r``.
+    divisor : int
+        ``d``.
+    word : sequence of int
+        The residues read, first letter first.
+
+    Returns
+    -------
+    tuple of int
+        ``(A, B)``, exact.
+
     Examples
     --------
     >>> composite([(1, 0), (3, 1)], 2, (1, 1, 0))   # 3x+1: (9n + 5)/8
     (9, 5)
+
+    References
+    ----------
+    Böhm and Sontacchi 1978; see the module docstring.
     """
     A, B, dk = 1, 0, 1
     for r in word:

@@ -260,10 +260,30 @@ def bound_for_length(
 ) -> LargestBound | PerSide[LargestBound]:
     """The largest proved minimum bound over the types of one length ``k`` (per side for ``"both"``).
 
+    Parameters
+    ----------
+    m : Map or str
+        The map, or its name, alias or ``ax+b`` shorthand.
+    k : int
+        The length, ``>= 1``.
+    side : {"positive", "negative", "both"}
+        ``"both"`` gives one bound per side.
+
+    Returns
+    -------
+    LargestBound or PerSide of LargestBound
+        The type of length ``k`` with the largest proved bound on ``|minimum|``.
+
+    Examples
+    --------
     >>> from cyclewright import maps
     >>> b = bound_for_length(maps.get("3x+1"), 13)
     >>> b.integer, b.odd
     (11, 8)
+
+    References
+    ----------
+    Eliahou 1993 (the bound of one type); see the module docstring.
     """
     m = as_map(m)
     if isinstance(k, bool) or not isinstance(k, int) or k < 1:

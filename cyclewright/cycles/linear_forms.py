@@ -179,6 +179,19 @@ def linear_form_bound(m: Map | str, content_or_type) -> LinearFormBound:
     when ``d`` and every multiplier used are powers of two bases the same
     corollary applies to those two bases; otherwise nothing is claimed.
 
+    Parameters
+    ----------
+    m : Map or str
+        The map, or its name, alias or ``ax+b`` shorthand.
+    content_or_type : (k, x) for two-branch maps, or a content
+        See :func:`~cyclewright.cycles.intervals.resolve_content`.
+
+    Returns
+    -------
+    LinearFormBound
+        The bound, its source and the constants it rests on (``proved``, with
+        the recalled constants named).
+
     Examples
     --------
     >>> from cyclewright import maps

@@ -178,8 +178,24 @@ def _comb(n: int, r: int):
 def word_count(content: Sequence[int]) -> int:
     """Number of words with the content (all rotations counted separately); exact.
 
+    Parameters
+    ----------
+    content : sequence of int
+        How many letters of each residue.
+
+    Returns
+    -------
+    int
+        The multinomial coefficient ``k! / prod c_r!``.
+
+    Examples
+    --------
     >>> word_count((5, 8))    # C(13, 8)
     1287
+
+    References
+    ----------
+    The multinomial coefficient (common practice, no source).
     """
     return multinomial(content)
 
@@ -206,6 +222,16 @@ def necklace_count(content: Sequence[int]) -> int:
     gcd of the counts; for a two-branch type ``N(k, x) = (1/k) sum_{j | gcd(k,x)}
     phi(j) C(k/j, x/j)``. Exact, no enumeration.
 
+    Parameters
+    ----------
+    content : sequence of int
+        How many letters of each residue.
+
+    Returns
+    -------
+    int
+        Exact.
+
     Examples
     --------
     >>> necklace_count(type_content(13, 8))
@@ -226,12 +252,26 @@ def lyndon_count(content: Sequence[int]) -> int:
 
     ``L(c) = (1/k) sum_{j | g} mu(j) (k/j)! / prod (c_r/j)!``.
 
+    Parameters
+    ----------
+    content : sequence of int
+        How many letters of each residue.
+
+    Returns
+    -------
+    int
+        Exact.
+
     Examples
     --------
     >>> [lyndon_count(type_content(8, x)) for x in range(9)]   # OEIS A051168, row 8
     [0, 1, 3, 7, 8, 7, 3, 1, 0]
     >>> lyndon_count((1,))   # the single letter is a Lyndon word
     1
+
+    References
+    ----------
+    OEIS A051168; Ruskey and Sawada 1999 (the Möbius form).
     """
     return _burnside(tuple(content))[1]
 
@@ -417,10 +457,24 @@ def necklaces(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
 def lyndon_words(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
     """All Lyndon words (primitive necklaces) with the content, in lexicographic order.
 
+    Parameters
+    ----------
+    content : sequence of int
+        How many letters of each residue.
+
+    Returns
+    -------
+    iterator of tuple of int
+        Each word once, generated without repetition (Sawada 2003).
+
     Examples
     --------
     >>> ["".join(map(str, w)) for w in lyndon_words(type_content(6, 3))]
     ['000111', '001011', '001101']
+
+    References
+    ----------
+    Sawada 2003 (fixed-content generation); see the module docstring.
     """
     content = tuple(content)
     if sum(content) < 1:

@@ -234,6 +234,11 @@ def orbit(
     (-17, -25, -37)
     >>> orbit(maps.get("5x+1"), 7, max_steps=200).status
     'capped'
+
+    References
+    ----------
+    Brent 1980 (cycle detection); Terras 1976 (stopping time); see the module
+    docstring.
     """
     m = as_map(m)
     if isinstance(n, bool) or not isinstance(n, int):

@@ -382,6 +382,11 @@ def sweep(
     6
     >>> [len(s) for s in sweep("3x+1", range(1, 11), side="both")]
     [10, 10]
+
+    References
+    ----------
+    Lagarias 1985 (the heuristic); Eliahou 1993 (the bound); see the module
+    docstring.
     """
     m = as_map(m)
     xs = sorted(set(int(v) for v in odd))
