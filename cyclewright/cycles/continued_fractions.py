@@ -41,13 +41,10 @@ _MAX_RUN = 1 << 4096
 # continued fractions
 # --------------------------------------------------------------------------
 def _cf_of_fraction(q: Fraction) -> list[int]:
-    out = []
-    p, r = q.numerator, q.denominator
-    while r:
-        a, rem = divmod(p, r)
-        out.append(a)
-        p, r = r, rem
-    return out
+    """The continued fraction of a rational (sympy's, exact; last term > 1 unless it is the only one)."""
+    from sympy import Rational, continued_fraction
+
+    return [int(a) for a in continued_fraction(Rational(q.numerator, q.denominator))]
 
 
 def _common_cf(lo: Fraction, hi: Fraction, limit: int) -> list[int]:

@@ -27,6 +27,8 @@ from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 
+import gmpy2
+
 from cyclewright.maps import Map, as_map
 
 from .errors import InputError
@@ -91,14 +93,11 @@ def _dec_text(q: Fraction) -> str:
     if q.denominator == 1:
         return str(q.numerator)
     den = q.denominator
-    j = 0
-    while den % 10 == 0 or den % 2 == 0 or den % 5 == 0:
-        # scale to a power of ten
-        j += 1
-        if (10**j) % den == 0:
-            break
-        if j > 400:  # pragma: no cover - not a decimal fraction
-            return str(float(q))
+    rest, e2 = gmpy2.remove(den, 2)
+    rest, e5 = gmpy2.remove(rest, 5)
+    if rest != 1:  # pragma: no cover - not a decimal fraction
+        return str(float(q))
+    j = max(int(e2), int(e5))  # den divides 10^j, and no smaller power of ten
     scaled = q.numerator * (10**j // den)
     sign = "-" if scaled < 0 else ""
     s = str(abs(scaled)).rjust(j + 1, "0")
@@ -265,6 +264,9 @@ def _coprime_base(numbers: Sequence[int]) -> list[int]:
 
     Refinement by gcds (no factoring): replace two elements ``u, v`` with a
     common factor ``g`` by ``g, u/g, v/g`` until no two share a factor.
+    Kept by hand on purpose: a library factorisation (sympy.factorint) would
+    work too, but costs a factoring of numbers that may be large, while the
+    sign of the log-linear form needs only a coprime base.
 
     >>> sorted(_coprime_base([12, 18]))
     [2, 3]
@@ -287,11 +289,8 @@ def _coprime_base(numbers: Sequence[int]) -> list[int]:
 
 
 def _valuation(n: int, b: int) -> int:
-    v = 0
-    while n % b == 0:
-        n //= b
-        v += 1
-    return v
+    """The exponent of ``b > 1`` in ``n != 0`` (gmpy2, exact)."""
+    return int(gmpy2.remove(n, b)[1])
 
 
 def _exponents(n: int, base: Sequence[int]) -> list[int]:

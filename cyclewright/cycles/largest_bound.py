@@ -400,14 +400,13 @@ def _candidates_halving(m: Map, k_lo: int, k_hi: int, side: str):
         near = np.nonzero((frac < tol) | (frac > 1 - tol))[0]
         for i in near:
             k = int(ks[i])
+            from sympy import integer_log  # imported here: sympy loads slowly
+
+            e, exact = integer_log(2**k, a)  # e = floor(log_a 2^k), exactly
             if growth:  # largest x with a^x < 2^k
-                x = int(math.floor(q[i])) + 1
-                while x >= 0 and a**x >= 2**k:
-                    x -= 1
+                x = int(e) - 1 if exact else int(e)
             else:  # smallest x with a^x > 2^k
-                x = max(int(math.floor(q[i])) - 1, 0)
-                while a**x <= 2**k:
-                    x += 1
+                x = int(e) + 1
             xs[i] = x
         xs = np.minimum(xs, ks)
     ok = (xs >= 1) & (xs <= ks)

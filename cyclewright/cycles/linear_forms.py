@@ -309,9 +309,7 @@ def _common_base(nums: Sequence[int]) -> int | None:
     if any(sorted(v) != primes for v in vecs):
         return None
     first = [vecs[0][p] for p in primes]
-    g = 0
-    for e in first:
-        g = math.gcd(g, e)
+    g = math.gcd(*first)
     w = [e // g for e in first]  # primitive direction
     for v in vecs:
         ev = [v[p] for p in primes]
@@ -325,13 +323,13 @@ def _common_base(nums: Sequence[int]) -> int | None:
 
 
 def _log_base_exact(n: int, base: int) -> int:
-    e = 0
-    while n > 1:
-        n, r = divmod(n, base)
-        if r:
-            raise ValueError("not a power")
-        e += 1
-    return e
+    """``e`` with ``base^e = n`` (sympy.integer_log, exact); ValueError when there is none."""
+    from sympy import integer_log
+
+    e, exact = integer_log(n, base)
+    if not exact:
+        raise ValueError("not a power")
+    return int(e)
 
 
 def candidates_from_linear_form(

@@ -209,10 +209,7 @@ def _divisor_weights(g: int) -> tuple[tuple[int, int, int], ...]:
 
 
 def _gcd_all(content: Sequence[int]) -> int:
-    g = 0
-    for c in content:
-        g = math.gcd(g, c)
-    return g
+    return math.gcd(*content)
 
 
 def necklace_count(content: Sequence[int]) -> int:

@@ -69,12 +69,7 @@ def lagarias_primitive(m: Map | str, elements: Sequence[int]) -> bool:
     True
     """
     m = as_map(m)
-    g = 0
-    for b in m.offsets:
-        g = math.gcd(g, b)
-    for e in elements:
-        g = math.gcd(g, int(e))
-    return g == 1
+    return math.gcd(*m.offsets, *(int(e) for e in elements)) == 1
 
 
 @dataclass(frozen=True)
