@@ -83,3 +83,15 @@ def test_scan_cycles_carry_the_same_label_in_the_api_and_the_study(tmp_path):
     assert scan_cycles["labels"] == cycles.labels
     assert scan_counts["labels"] == counts.labels
     assert [row["minimum"] for row in scan_cycles["rows"]] == [1, 5, 19, 23, 187, 347]
+
+
+def test_stacked_tables_never_label_a_figure_more_than_it_is():
+    # common practice, no source: 5x+1 leaves starts unresolved (its orbits climb past the cap),
+    # so its minima are exact finds, not a certified list; 3x+1's scan to 100 is complete
+    done = cw.scan("3x+1", 100, store=False, workers=1)
+    open_ = cw.scan("5x+1", 100, max_steps=50, store=False, workers=1)
+    assert done.complete and not open_.complete
+    t = Table.stack([done.table(), open_.table()])
+    assert "minimum" not in t.labels
+    per_row = [r[t.columns.index("minimum label")] for r in t.rows]
+    assert set(per_row) == {"certified", "exact"}

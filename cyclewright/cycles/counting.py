@@ -217,6 +217,11 @@ class TypeCount:
             return f"k={self.length}, x={self.content[1]}"
         return f"k={self.length}, content {list(self.content)}"
 
+    @staticmethod
+    def table_columns() -> tuple[str, ...]:
+        """The columns of :meth:`table`."""
+        return _TYPE_COLUMNS
+
     def table(self) -> Table:
         """The type's figures in one row, each column labelled."""
         return Table(

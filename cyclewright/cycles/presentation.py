@@ -74,12 +74,34 @@ class Table:
 
     @staticmethod
     def stack(tables: Sequence[Table], title: str | None = None) -> Table:
-        """One table with the rows of tables that share their columns (the first's title, labels and note)."""
+        """One table with the rows of tables that share their columns (the first's title and note).
+
+        A column labelled alike in every table keeps its label; a column
+        labelled differently (a complete scan's minima are ``certified``, an
+        incomplete one's ``exact``) loses its header label and gains a column
+        ``"<name> label"`` with each row's own label, so no figure is shown
+        as more than it is.
+
+        Examples
+        --------
+        >>> a = Table("t", ("n",), ((1,),), {"n": "certified"})
+        >>> b = Table("t", ("n",), ((2,),), {"n": "exact"})
+        >>> s = Table.stack([a, b])
+        >>> s.columns, s.rows, s.labels
+        (('n', 'n label'), ((1, 'certified'), (2, 'exact')), {})
+        """
         if not tables:
             raise ValueError("stack needs at least one table")
         first = tables[0]
         for t in tables[1:]:
             if t.columns != first.columns:
                 raise ValueError(f"columns differ: {t.columns} vs {first.columns}")
-        rows: Iterable[tuple] = (row for t in tables for row in t.rows)
-        return replace(first, title=title or first.title, rows=tuple(rows))
+        mixed = [c for c in first.columns if len({t.labels.get(c) for t in tables}) > 1]
+        labels = {c: v for c, v in first.labels.items() if c not in mixed}
+        columns = first.columns + tuple(f"{c} label" for c in mixed)
+        rows: Iterable[tuple] = (
+            row + tuple(t.labels.get(c) for c in mixed) for t in tables for row in t.rows
+        )
+        return replace(
+            first, title=title or first.title, columns=columns, rows=tuple(rows), labels=labels
+        )

@@ -275,13 +275,21 @@ class Sweep:
 
     def table(self) -> Table:
         """One row per type (x, k, content and the type's figures, labelled)."""
-        rows = tuple((r.off_zero, r.length, r.content, *r.table().rows[0]) for r in self.rows)
+        # the linear-forms column is left to the JSON rows: along a long sweep
+        # its bound runs to thousands of digits
+        keep = [c for c in TypeCount.table_columns() if c != "candidates from linear forms"]
         first = self.rows[0].table() if self.rows else None
+        rows = tuple(
+            (r.off_zero, r.length, r.content, *(rec[c] for c in keep))
+            for r in self.rows
+            for rec in r.table().records()
+        )
+        labels = {c: v for c, v in (first.labels if first else {}).items() if c in keep}
         return Table(
             f"{self.map.label}, {self.side} side: one row per type",
-            ("x", "k", "content", *(first.columns if first else ())),
+            ("x", "k", "content", *keep),
             rows,
-            {"k": EXACT.value, **(first.labels if first else {})},
+            {"k": EXACT.value, **labels},
             first.note if first else "",
         )
 
