@@ -173,8 +173,9 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         ks = p["offsets"]
         sec = Section(f"Family census {p['family']}, k = {ks.start}..{ks.stop - 1}, length <= {K}")
         ctx.say(f"family census {p['family']}")
-        side = "positive" if p["side"] == "both" else p["side"]
-        fam = census_family(p["family"], ks, K, side=side, store=ctx.stores, workers=ctx.workers)
+        fam = census_family(
+            p["family"], ks, K, side=p["side"], store=ctx.stores, workers=ctx.workers
+        )
         sec.tables.append(Table.of(ctx.name("census-family", p["family"]), fam.table()))
         return sec
     sec = Section(f"Certified census up to length {K} ({p['side']})")
