@@ -217,6 +217,67 @@ class TypeCount:
             return f"k={self.length}, x={self.content[1]}"
         return f"k={self.length}, content {list(self.content)}"
 
+    def figures_table(self) -> Table:
+        """Every figure of the type with its label, one per row (the ``count`` command's view)."""
+        b = self.min_bound
+        lab = self.labels
+        if not b.applies:
+            bound = f"does not apply: {b.reason}"
+        elif not b.possible:
+            bound = f"no cycle possible: {b.reason}"
+        else:
+            bound = b.integer
+        lf = self.linear_form
+        rows: list[tuple] = [
+            ("words", self.words, lab["words"]),
+            ("necklaces", self.necklaces, lab["necklaces"]),
+            ("primitive necklaces", self.primitive_necklaces, lab["primitive_necklaces"]),
+            ("denominator D", self.denominator, lab["denominator"]),
+            ("min bound (|min| <=)", bound, lab["min_bound"]),
+        ]
+        if b.applies and b.possible:
+            rows.append(("real bound in", str(b.interval), lab["min_bound"]))
+        rows.append(("bound formula", b.formula, lab["min_bound"]))
+        if self.enumerated:
+            rows += [
+                ("smallest cycle-min numerator", self.smallest_min_numerator, EXACT.value),
+                ("largest cycle-min numerator", self.largest_min_numerator, EXACT.value),
+                ("candidates (multiples of |D|)", self.candidates, EXACT.value),
+                ("integer cycles", len(self.integer_cycles or ()), EXACT.value),
+            ]
+            if self.unrealized:
+                rows.append(("integral but not realized", self.unrealized, EXACT.value))
+        else:
+            rows += [
+                ("candidates (from the bound)", self.candidates, lab["candidates"]),
+                ("integer cycles", "not enumerated", "-"),
+            ]
+        l10 = self.heuristic_log10
+        heur = f"{10**l10:.6g}" if -6 < l10 < 9 else f"10^{l10:.4f}"
+        rows += [
+            ("heuristic necklaces/|D|", heur, HEURISTIC.value),
+            ("Λ = k ln d - ln A", str(self.log_form), CERTIFIED.value),
+            (
+                "|Λ| lower bound",
+                f"{lf.lower_text()} ({lf.source}{', from memory' if lf.from_memory else ''})"
+                if lf.applies
+                else f"not available: {lf.reason}",
+                PROVED.value if lf.applies else "-",
+            ),
+            (
+                "|min| bound from |Λ| bound",
+                self.candidates_linear_forms if self.candidates_linear_forms is not None else "-",
+                PROVED.value if self.candidates_linear_forms is not None else "-",
+            ),
+        ]
+        return Table(
+            f"Type {self.type_text()}",
+            ("figure", "value", "label"),
+            tuple(rows),
+            {},
+            self.enumeration_note,
+        )
+
     @staticmethod
     def table_columns() -> tuple[str, ...]:
         """The columns of :meth:`table`."""

@@ -323,6 +323,44 @@ class Floor:
             f"{self.odd_steps} of them odd and {self.least_length - self.odd_steps} even"
         )
 
+    def figures_table(self) -> Table:
+        """The floor's quantities with their labels, one per row (the ``floor`` command's view)."""
+        rows: list[tuple] = []
+        if self.possible:
+            terms = self.continued_fraction
+            shown = ", ".join(str(t) for t in terms[1:25]) + (", ..." if len(terms) > 25 else "")
+            cf = f"{terms[0]}; {shown}" if len(terms) > 1 else (str(terms[0]) if terms else "")
+            iv = self.interval
+            steps = "x" if self.multiplying_branch == 1 else "multiplying steps"
+            rows = [
+                ("least length k", self.least_length, PROVED.value),
+                ("odd steps x", self.odd_steps, PROVED.value),
+                (f"k / {steps}", str(self.ratio), EXACT.value),
+                (
+                    f"from log2({self.multiplier}) = [{cf}]",
+                    self.approximant.describe() if self.approximant else "-",
+                    EXACT.value,
+                ),
+                (
+                    "interval for k/x",
+                    f"{'[' if iv['lower_closed'] else '('}{iv['lower']}, "
+                    f"{iv['upper']}{']' if iv['upper_closed'] else ')'}",
+                    EXACT.value,
+                ),
+                ("max precision", f"{self.precision_bits} bits", "-"),
+            ]
+            rows += [
+                ("next possible type (k, x)", f"({k}, {x})", PROVED.value)
+                for k, x in self.next_possible
+            ]
+        return Table(
+            f"{self.map.label}, {self.side} side, verified to N = {self.verified_to}",
+            ("quantity", "value", "label"),
+            tuple(rows),
+            {},
+            f"result (proved, given the condition): {self.statement}",
+        )
+
     def to_dict(self) -> dict:
         return {
             "map": self.map.label,

@@ -31,7 +31,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console, write_csv
+from ..render import emit_json, make_table, short, show_table, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "resolve_maps"]
 
@@ -173,53 +173,8 @@ def compare_cmd(
         )
     )
     for p in cmp.profiles:
-        if p.predictions is None:
-            continue
-        pr = p.predictions
-        body = [
-            [
-                t.side,
-                t.length,
-                t.content[1] if len(t.content) == 2 else list(t.content),
-                t.found,
-                t.necklaces,
-                f"{short(t.candidates)} ({t.candidates_label})",
-                short(float(t.heuristic)) if t.heuristic is not None else "-",
-            ]
-            for t in pr.rows
-        ]
-        for side, tot in pr.totals.items():
-            body.append(
-                [
-                    side,
-                    f"all <= {K}",
-                    f"{tot['types']} types",
-                    tot["found"],
-                    tot["necklaces"],
-                    f"{tot['candidates']} (proved)"
-                    + (
-                        f"; {tot['types_without_bound']} types without a bound"
-                        if not tot["bound_applies"]
-                        else ""
-                    ),
-                    short(tot["heuristic"]),
-                ]
-            )
-        con.print(
-            make_table(
-                f"{p.map.label}: predictions against findings",
-                [
-                    "side",
-                    "length",
-                    "odd steps" if p.map.divisor == 2 else "content",
-                    "found [certified]",
-                    "necklaces [exact]",
-                    "candidates",
-                    "heuristic",
-                ],
-                body,
-            )
-        )
+        if p.predictions is not None:
+            con.print(show_table(p.predictions.table()))
     con.print(HEURISTIC_CAUTION)
 
 

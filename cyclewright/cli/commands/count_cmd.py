@@ -7,6 +7,7 @@ import re
 import click
 
 from cyclewright.cycles.counting import DEFAULT_LIMIT, count
+from cyclewright.cycles.integer_cycle import cycles_table
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 
 from ..errors import BadInput
@@ -22,7 +23,7 @@ from ..options import (
     show_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console
+from ..render import emit_json, short, show_table, stdout_console
 
 __all__ = ["COMMANDS", "parse_content"]
 
@@ -112,8 +113,6 @@ def count_cmd(map_spec, length, odd, content_text, limit, show, map_files, as_js
 def _print_human(tc, show: int) -> None:
     con = stdout_console()
     m = tc.map
-    b = tc.min_bound
-    lab = tc.labels
     con.print(
         f"[bold]{m.label}[/bold], type {tc.type_text()}"
         + (f" (content {list(tc.content)})" if m.divisor == 2 else "")
@@ -121,74 +120,13 @@ def _print_human(tc, show: int) -> None:
         f"D = {m.divisor}^{tc.length} - {short(tc.A, 30)} = {short(tc.denominator, 30)}, "
         f"serves the {tc.side} side"
     )
-    if not b.applies:
-        bound_text = f"does not apply: {b.reason}"
-    elif not b.possible:
-        bound_text = f"no cycle possible: {b.reason}"
-    else:
-        bound_text = f"|min| <= {short(b.integer)}; real bound in {b.interval}"
-    lf = tc.linear_form
-    rows = [
-        ["words", tc.words, lab["words"]],
-        ["necklaces", tc.necklaces, lab["necklaces"]],
-        ["primitive necklaces", tc.primitive_necklaces, lab["primitive_necklaces"]],
-        ["denominator D", tc.denominator, lab["denominator"]],
-        ["min bound", bound_text, lab["min_bound"]],
-        ["bound formula", b.formula, lab["min_bound"]],
-    ]
-    if tc.enumerated:
-        rows += [
-            ["smallest cycle-min numerator", tc.smallest_min_numerator, "exact"],
-            ["largest cycle-min numerator", tc.largest_min_numerator, "exact"],
-            ["candidates (multiples of |D|)", tc.candidates, "exact"],
-            ["integer cycles", len(tc.integer_cycles), "exact"],
-        ]
-        if tc.unrealized:
-            rows.append(["integral but not realized", tc.unrealized, "exact"])
-    else:
-        rows += [
-            ["candidates (from the bound)", tc.candidates, lab["candidates"]],
-            ["integer cycles", "not enumerated", "-"],
-        ]
-    rows += [
-        ["heuristic necklaces/|D|", _heur_text(tc), "heuristic"],
-        ["Λ = k ln d - ln A", str(tc.log_form), "certified"],
-        [
-            "|Λ| lower bound",
-            f"{lf.lower_text()} ({lf.source}{', from memory' if lf.from_memory else ''})"
-            if lf.applies
-            else f"not available: {lf.reason}",
-            "proved" if lf.applies else "-",
-        ],
-        [
-            "|min| bound from |Λ| bound",
-            tc.candidates_linear_forms if tc.candidates_linear_forms is not None else "-",
-            "proved" if tc.candidates_linear_forms is not None else "-",
-        ],
-    ]
-    con.print(make_table(None, ["figure", "value", "label"], rows))
-    con.print(tc.enumeration_note)
+    con.print(show_table(tc.figures_table()))
     if tc.integer_cycles:
-        listed = tc.integer_cycles[: max(show, 0)]
-        con.print(
-            make_table(
-                f"Integer cycles ({len(tc.integer_cycles)}, exact)",
-                ["minimum", "itinerary from the minimum", "length", "primitive (Lagarias)"],
-                [[c.minimum, c.itinerary, c.length, c.lagarias_primitive] for c in listed],
-            )
-        )
-        if len(listed) < len(tc.integer_cycles):
-            con.print(f"... {len(tc.integer_cycles) - len(listed)} more (use --show or --json)")
+        con.print(show_table(cycles_table(tc.integer_cycles, m.divisor), show))
+    lf = tc.linear_form
     if lf.applies:
         con.print(f"linear form: {lf.form}; {lf.constants}")
     con.print(HEURISTIC_CAUTION)
-
-
-def _heur_text(tc) -> str:
-    l10 = tc.heuristic_log10
-    if -6 < l10 < 9:
-        return f"{10**l10:.6g}"
-    return f"10^{l10:.4f}"
 
 
 COMMANDS = [count_cmd]

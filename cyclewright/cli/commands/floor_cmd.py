@@ -9,7 +9,7 @@ from cyclewright.cycles.sides import PerSide
 
 from ..errors import BadInput
 from ..options import IntExpr, json_option, map_argument, maps_option, resolve_map, side_option
-from ..render import emit_json, make_table, short, stdout_console
+from ..render import emit_json, show_table, stdout_console
 
 # The floor's work grows with the digits of N (continued fraction terms, precision).
 _MAX_FLOOR_DIGITS = 1000
@@ -91,44 +91,12 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
 
 
 def _print_floor(con, r) -> None:
-    con.print(f"[bold]{r.map.label}, {r.side} side[/bold], verified to N = {r.verified_to}")
     con.print(f"condition: {r.condition}")
     if not r.possible:
+        con.print(f"[bold]{r.map.label}, {r.side} side[/bold], verified to N = {r.verified_to}")
         con.print(f"result (proved): {r.statement}")
         return
-    a = r.multiplier
-    rows = [
-        ["least length k", short(r.least_length), "proved"],
-        ["odd steps x", short(r.odd_steps), "proved"],
-        [f"k / {'x' if r.multiplying_branch == 1 else 'multiplying steps'}", str(r.ratio), "exact"],
-        [
-            f"from log2({a}) = [{_cf_text(r.continued_fraction)}]",
-            r.approximant.describe() if r.approximant else "-",
-            "exact",
-        ],
-        [
-            "interval for k/x",
-            f"{'[' if r.interval['lower_closed'] else '('}{r.interval['lower']}, "
-            f"{r.interval['upper']}{']' if r.interval['upper_closed'] else ')'}",
-            "exact",
-        ],
-        ["max precision", f"{r.precision_bits} bits", "-"],
-    ]
-    con.print(make_table(None, ["quantity", "value", "label"], rows))
-    if r.next_possible:
-        con.print("next possible types (proved; no other type has a length in between):")
-        con.print(
-            make_table(None, ["length k", "odd steps x"], [[k, x] for k, x in r.next_possible])
-        )
-    con.print(f"result (proved, given the condition): {r.statement}")
-
-
-def _cf_text(terms) -> str:
-    if not terms:
-        return ""
-    head, rest = terms[0], terms[1:]
-    shown = ", ".join(str(t) for t in rest[:24]) + (", ..." if len(rest) > 24 else "")
-    return f"{head}; {shown}" if rest else str(head)
+    con.print(show_table(r.figures_table()))
 
 
 COMMANDS = [floor_cmd]

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-import math
+import dataclasses
 import sys
 
 import click
@@ -30,21 +30,9 @@ from ..options import (
 )
 from ..plots import plot_sweep
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, stdout_console, write_csv
+from ..render import emit_json, show_table, stdout_console, write_csv
 
 __all__ = ["COMMANDS"]
-
-_TABLE_COLUMNS = [
-    "x",
-    "k",
-    "necklaces",
-    "D",
-    "min bound (proved)",
-    "candidates",
-    "|min| from |Λ| bound (proved)",
-    "heuristic",
-    "integer cycles",
-]
 
 
 @click.command(
@@ -155,41 +143,14 @@ def _print_human(s, max_rows: int, csv_path, plot_path) -> None:
         + f": {len(s.rows)} types in {s.elapsed:.2f} s"
     )
     idx = _pick_rows(len(s.rows), max_rows)
-    table_rows = []
-    for i in idx:
-        r = s.rows[i]
-        b = r.min_bound
-        if not b.applies:
-            mb = "n/a"
-        elif not b.possible:
-            mb = "none possible"
-        else:
-            mb = short(b.integer, 16)
-        cand = (
-            "-" if r.candidates is None else f"{short(r.candidates, 16)} ({r.labels['candidates']})"
-        )
-        ints = "-" if r.integer_cycles is None else str(len(r.integer_cycles))
-        if r.integer_cycles:
-            ints += " (" + ", ".join(str(c.minimum) for c in r.integer_cycles[:4]) + ")"
-        table_rows.append(
-            [
-                r.off_zero,
-                r.length if len(r.content) == 2 else f"{r.length} {list(r.content)}",
-                short(r.necklaces, 16),
-                short(r.denominator, 16),
-                mb,
-                cand,
-                "-" if r.candidates_linear_forms is None else short(r.candidates_linear_forms, 12),
-                _heur(r.heuristic_log10),
-                ints,
-            ]
-        )
+    t = s.table()
+    shown = dataclasses.replace(t, rows=tuple(t.rows[i] for i in idx))
     caption = None
     if len(idx) < len(s.rows):
         caption = (
             f"{len(idx)} of {len(s.rows)} rows shown; --csv or --json for all, --show to change"
         )
-    con.print(make_table(None, _TABLE_COLUMNS, table_rows, caption=caption))
+    con.print(show_table(shown, caption=caption))
     if s.rho:
         con.print(
             f"necklace growth per unit x: fitted {_f(s.fitted_rate)}, with the x^(-3/2) factor "
@@ -226,16 +187,6 @@ def _f(v) -> str:
 
 def _opt(v) -> str:
     return "never in range" if v is None else str(v)
-
-
-def _heur(l10: float) -> str:
-    if -4 < l10 < 6:
-        return f"{10**l10:.4g}"
-    return f"1e{l10:.1f}"
-
-
-def _log10(n: int) -> float:
-    return math.log10(n) if n > 0 else float("nan")
 
 
 COMMANDS = [sweep_cmd]
