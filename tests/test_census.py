@@ -2,13 +2,10 @@
 
 from __future__ import annotations
 
-import json
-
 import pytest
 
 from cyclewright import maps
 from cyclewright.cycles.census import census, census_family, parse_family
-from cyclewright.cycles.certificate import load_certificate, verify_certificate, write_certificate
 from cyclewright.cycles.errors import InputError
 
 
@@ -98,69 +95,4 @@ def test_family():
         parse_family("3x+2")
 
 
-# --------------------------------------------------------------------- certificates
-@pytest.fixture
-def cert(tmp_path):
-    c = census(maps.get("3x+5"), 30, side="positive", store=False, workers=1)
-    path = tmp_path / "c.json"
-    write_certificate(c, path)
-    return path
-
-
-def _edit(path, fn):
-    doc = json.loads(path.read_text())
-    fn(doc)
-    path.write_text(json.dumps(doc))
-
-
-def test_certificate_verifies(cert):
-    v = verify_certificate(cert)
-    assert v.ok, v.problems
-    assert v.rescanned
-    doc = load_certificate(cert)
-    assert doc["map"]["key"] == maps.get("3x+5").key and doc["count"] == len(doc["cycles"])
-
-
-def test_certificate_refuses_overwrite(cert):
-    c = census(maps.get("3x+5"), 10, side="positive", store=False, workers=1)
-    with pytest.raises(InputError, match="refusing to overwrite"):
-        write_certificate(c, cert)
-
-
-def test_tampered_cycle_removed(cert):
-    def drop(doc):
-        doc["cycles"] = [c for c in doc["cycles"] if c["minimum"] != 187]
-        doc["count"] -= 1
-
-    _edit(cert, drop)
-    v = verify_certificate(cert)
-    assert not v.ok
-    assert any("minimum 187" in p and "missing" in p for p in v.problems)
-
-
-def test_tampered_element_changed(cert):
-    def change(doc):
-        doc["cycles"][2]["elements"][1] += 2
-
-    _edit(cert, change)
-    v = verify_certificate(cert, rescan=False)
-    assert any("element 1" in p and "was changed" in p for p in v.problems)
-
-
-def test_tampered_range_shrunk(cert):
-    def shrink(doc):
-        doc["scanned"][0]["to"] = 100
-
-    _edit(cert, shrink)
-    v = verify_certificate(cert, rescan=False)
-    assert any("shorter than the proved bound requires" in p for p in v.problems)
-
-
-def test_not_a_certificate(tmp_path):
-    p = tmp_path / "x.json"
-    p.write_text('{"hello": 1}')
-    with pytest.raises(InputError, match="not a census certificate"):
-        verify_certificate(p)
-    p.write_text("garbage")
-    with pytest.raises(InputError, match="not JSON"):
-        verify_certificate(p)
+# certificates and their verification: tests/test_certificate.py

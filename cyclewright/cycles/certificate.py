@@ -569,8 +569,11 @@ def _map_of(doc: dict, v: Verification) -> Map | None:
     return m
 
 
-def _structure(doc: dict, m: Map, v: Verification) -> None:
-    """Sides, K, counts, crossing, ranges, recorded bounds: everything cheap."""
+def _structure(doc: dict, m: Map, v: Verification) -> bool:
+    """Sides, K, counts, crossing, ranges, recorded bounds: everything cheap.
+
+    False when the certificate is too malformed to go on (sides or plans unusable).
+    """
     from .census import MAX_ITINERARY_WORK, _crossing
     from .minimum_bound import minimum_bound
 
@@ -578,16 +581,16 @@ def _structure(doc: dict, m: Map, v: Verification) -> None:
     K = doc["max_length"]
     if K < 1:
         v.problems.append(f"max_length: {K} is not a length (>= 1)")
-        return
+        return False
     sides = doc["sides"]
     if not sides or len(set(sides)) != len(sides) or any(s not in _SIDES for s in sides):
         v.problems.append(f"sides: {sides!r} is not a non-empty list of positive/negative")
-        return
+        return False
     if list(sides) != [s for s in _SIDES if s in sides]:
         v.problems.append(f"sides: {sides!r} is not in census order")
     if set(doc["plans"]) != set(sides):
         v.problems.append(f"plans: sides {sorted(doc['plans'])} differ from the sides {sides}")
-        return
+        return False
     for i, rec in enumerate(doc["cycles"]):
         if rec["length"] > K:
             v.problems.append(f"cycles[{i}].length: {rec['length']} exceeds max_length {K}")
@@ -684,6 +687,7 @@ def _structure(doc: dict, m: Map, v: Verification) -> None:
         v.checks.append(
             f"structure: sides, counts, lengths <= {K}, crossing ranges, recorded bounds and scanned ranges consistent"
         )
+    return True
 
 
 #: Recorded types up to this length get their bound recomputed in the cheap phase.
@@ -827,9 +831,11 @@ def _regenerate(doc: dict, m: Map, cycles: list, v: Verification) -> None:
             "cross_checked: true, but a side was not certified by bound-scan, so nothing was cross-checked"
         )
     c = Census(m, K, tuple(doc["sides"]), ordered, plans, zero is not None, cross)
-    before = len(v.problems)
-    _diff_docs(doc, certificate_of(c, software=doc["software"]), v.problems)
-    if len(v.problems) == before:
+    found: list[str] = []
+    _diff_docs(doc, certificate_of(c, software=doc["software"]), found)
+    named = {p.split(":", 1)[0] for p in v.problems}
+    v.problems.extend(p for p in found if p.split(":", 1)[0] not in named)
+    if not found:
         v.checks.append(
             "statement, method, count, zero cycle, scanned ranges and labels regenerated from the listed cycles and plans: identical"
         )
@@ -1056,7 +1062,8 @@ def _verify(doc, v, rescan, workers, minutes, progress, estimator) -> None:
     m = _map_of(doc, v)
     if m is None:
         return
-    _structure(doc, m, v)
+    if not _structure(doc, m, v):
+        return
     cycles = _cycles(doc, m, v, progress)
     if cycles is not None:
         _regenerate(doc, m, cycles, v)
