@@ -3,11 +3,14 @@
 from __future__ import annotations
 
 import json
+import math
+from fractions import Fraction
 
 import pytest
 from conftest import run_cli
 
 from cyclewright import maps
+from cyclewright.maps import Map
 from cyclewright.cycles.census import census
 from cyclewright.cycles.compare import compare, critical_ratio, predictions
 from cyclewright.cycles.counting import count
@@ -33,7 +36,12 @@ def test_rows_agree_with_individual_analyses(cmp):
         tc = count(m, r["k"], 8)
         assert (r["necklaces_at_x"], r["candidates_at_x"]) == (tc.necklaces, tc.candidates)
         e = excursions(m, 2000, max_steps=1000)
-        assert r["largest_peak"] >= e.peak
+        if r["peak_walk_cut"]:  # a cut walk leaves a lower bound, never a number labelled exact
+            assert r["largest_peak"].split()[0] in (">", ">=", "<", "<=")
+            assert r["labels"]["largest_peak"] == "proved"
+        else:
+            assert abs(r["largest_peak"]) >= abs(e.peak)
+            assert r["labels"]["largest_peak"] == "exact"
     r1 = cmp.profiles[0].row()
     assert r1["floor_positive_length"] == floor(maps.get("3x+1"), 2000, "positive").least_length
     assert r1["census_minima"] == [1, -1, -5, -17]  # Lagarias 1985 survey (from memory)
@@ -51,6 +59,46 @@ def test_drift_values(cmp):
     assert round(r1["drift"], 4) == -0.1438 and r1["drift_exact"] == "(1/2) ln(3/4)"
     assert round(r5["drift"], 4) == 0.1116 and r5["drift_exact"] == "(1/2) ln(5/4)"
     assert critical_ratio(maps.get("5x+1"))[1] == "log_2 5"
+    # floats are labelled rounded, their exact forms exact
+    assert r1["labels"]["drift"] == "rounded" and r1["labels"]["drift_exact"] == "exact"
+    assert r1["labels"]["rho"] == "rounded" and r1["labels"]["critical_ratio"] == "rounded"
+
+
+def test_drift_undivided_is_markov():
+    # common practice, no source; Matthews and Watts 1985 (from memory) for the Markov form:
+    # in n/2, 3n+1 an odd step is always followed by an even one, residues 0, 1 with
+    # frequencies 2/3, 1/3, so the drift is (2/3) ln(1/2) + (1/3) ln 3 = (1/3) ln(3/4)
+    m = maps.get("3x+1-undivided")
+    assert m.drift_formula() == "(1/3) ln(3/4)"
+    assert abs(m.drift() - math.log(3 / 4) / 3) < 1e-12
+    assert maps.get("3x+1").drift_formula() == "(1/2) ln(3/4)"
+    assert maps.get("5x+1").drift_formula() == "(1/2) ln(5/4)"
+    from cyclewright.maps.drift import residue_frequencies
+
+    # common practice, no source (the chain by hand): T(n) = 4 - n on residue 0 always lands
+    # in residue 1, so residue 1 is visited twice as often as 0 and 2
+    freq = residue_frequencies(Map(3, [(-3, 12), (5, 13), (2, 11)]))
+    assert freq == (Fraction(1, 4), Fraction(1, 2), Fraction(1, 4))
+
+
+def test_negative_peak_keeps_its_sign():
+    # OEIS A006884/A006885 (from memory): below 10^5 the 3x+1 path record starts at 77671 and
+    # climbs to 1570824736 (undivided); 3x-1 is the conjugate n -> -T(-n) of 3x+1, so its
+    # negative side climbs from -77671 to -785412368 in the divided map
+    e = excursions(maps.get("3x-1"), 10**5, side="negative")
+    assert (e.peak_start, e.peak) == (-77671, -785412368)
+    assert e.to_dict()["peak"] == -785412368 and e.to_dict()["labels"]["peak"] == "exact"
+
+
+def test_cut_peak_is_a_lower_bound():
+    # common practice, no source: 5x+1 orbits from 7 on climb past 2^62 in int64 walks; the
+    # value reached is exact, the peak only bounded below
+    e = excursions(maps.get("5x+1"), 1000, max_steps=10_000)
+    assert e.peak_overflowed and e.overflowed > 0
+    d = e.to_dict()
+    assert d["peak"].startswith(">") and d["labels"]["peak"] == "proved"
+    k = int(d["peak"].split("^")[1])
+    assert abs(d["peak_reached"]) > 2**k and k >= 55
 
 
 @pytest.mark.slow

@@ -306,7 +306,7 @@ def _catalogue_section(ctx: StudyContext, study: Study) -> Section:
             "Maps of this study",
             ["map", "definition", "divisor", "drift (exact)", "drift (rounded)", "key"],
             rows,
-            {"drift (exact)": "exact"},
+            {"drift (exact)": "exact", "drift (rounded)": "rounded"},
         )
     )
     return sec

@@ -13,10 +13,16 @@ Inside
   is never above candidates (a theorem; a violation would be a bug).
 - :class:`Comparison`, :class:`MapProfile`, :class:`Predictions`.
 
-Labels: drift, critical ratio and ρ are closed forms (``exact``; their
-decimal values are rounded for display); census lists ``certified``; scan
-counts and shares ``exact`` (over the range); floors and candidate bounds
-``proved``; necklaces/|D| ``heuristic``.
+Labels: drift, critical ratio and ρ are given as closed forms
+(``drift_exact``... labelled ``exact``) beside their float values (labelled
+``rounded``); the drift is the mean log change per step under the residue
+Markov chain (:meth:`cyclewright.maps.Map.drift_exact`); ρ assumes every
+itinerary is realized and says so (``rho_assumes``); census lists
+``certified`` (primitive and all cycles counted apart); scan counts ``exact``
+and their shares as fractions (``exact``) and floats (``rounded``); the
+largest peak ``exact``, or a lower bound (``> 2^k``, ``proved``) when a walk
+was cut before ``2^62``; floors and candidate bounds ``proved``;
+necklaces/|D| ``heuristic``.
 
 References
 ----------
@@ -37,8 +43,8 @@ from cyclewright.maps import Map, as_map
 from .census import Census, census
 from .counting import count
 from .errors import InputError
-from .excursions import Excursions, excursions
-from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .excursions import Excursions, excursions, peak_text
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
 from .limits import DEFAULT_MAX_STEPS
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
@@ -66,15 +72,19 @@ ROW_COLUMNS = (
     "critical_ratio",
     "critical_ratio_exact",
     "rho",
+    "rho_exact",
     "census_length",
     "census_cycles",
+    "census_primitive_cycles",
     "census_minima",
     "census_lengths",
     "census_primitive",
     "census_method",
     "scan_to",
     "drop_share",
+    "drop_share_exact",
     "unresolved_share",
+    "unresolved_share_exact",
     "cycles_met",
     "largest_peak",
     "largest_peak_start",
@@ -107,6 +117,16 @@ def critical_ratio(m: Map | str) -> tuple[float, str] | None:
     if a <= 0:
         return None
     return math.log(a) / math.log(m.divisor), f"log_{m.divisor} {a}"
+
+
+def _rho_assumes(m: Map) -> str:
+    """What the necklace growth rate assumes about itineraries."""
+    if m.multipliers_prime_to_divisor():
+        return "every itinerary is realized (true: every multiplier is prime to d)"
+    return (
+        "every itinerary is realized, which fails here: a multiplier shares a factor with d, "
+        "so some residue sequences never occur; rho over-counts the itineraries"
+    )
 
 
 @dataclass(frozen=True)
@@ -367,6 +387,8 @@ class MapProfile:
         c = self.census
         counts = self.extras.get("scan_counts", {}).get("positive")
         total = sum(counts.values()) if counts else 0
+        top = max(self.excursions.values(), key=lambda e: abs(e.peak), default=None)
+        cut = any(e.peak_overflowed for e in self.excursions.values())
         row = {
             "map": m.label,
             "definition": m.formula(),
@@ -376,8 +398,15 @@ class MapProfile:
             "critical_ratio": cr[0] if cr else None,
             "critical_ratio_exact": cr[1] if cr else None,
             "rho": r,
+            "rho_exact": "t^t / (t-1)^(t-1), t = " + cr[1] if r is not None and cr else None,
+            "rho_assumes": _rho_assumes(m) if r is not None else None,
             "census_length": c.max_length if c else None,
             "census_cycles": len([x for x in c.cycles if x.minimum != 0]) if c else None,
+            "census_primitive_cycles": len(
+                [x for x in c.cycles if x.minimum != 0 and x.lagarias_primitive]
+            )
+            if c
+            else None,
             "census_minima": [x.minimum for x in c.cycles if x.minimum != 0] if c else None,
             "census_lengths": [x.length for x in c.cycles if x.minimum != 0] if c else None,
             "census_primitive": [
@@ -389,7 +418,9 @@ class MapProfile:
             "scan_to": self.scan_to,
             # shares of the positive starts 1..N as classified by the scan (exact counts; floats shown)
             "drop_share": counts["drops"] / total if total else None,
+            "drop_share_exact": Fraction(counts["drops"], total) if total else None,
             "unresolved_share": counts["unresolved"] / total if total else None,
+            "unresolved_share_exact": Fraction(counts["unresolved"], total) if total else None,
             "cycles_met": sorted(
                 {
                     v
@@ -397,11 +428,9 @@ class MapProfile:
                     for v in self.extras.get("met", {}).get(e.side, [])
                 }
             ),
-            "largest_peak": max((e.peak for e in self.excursions.values()), default=None),
-            "largest_peak_start": max(self.excursions.values(), key=lambda e: e.peak).peak_start
-            if self.excursions
-            else None,
-            "peak_passed_2^62": any(e.peak_overflowed for e in self.excursions.values()),
+            "largest_peak": peak_text(top.peak, cut) if top else None,
+            "largest_peak_start": top.peak_start if top else None,
+            "peak_walk_cut": cut,
         }
         for side in ("positive", "negative"):
             f = self.floors.get(side)
@@ -412,29 +441,39 @@ class MapProfile:
         row["k"] = tc.length if tc is not None else None
         row["necklaces_at_x"] = tc.necklaces if tc is not None else None
         row["candidates_at_x"] = tc.candidates if tc is not None else None
-        row["heuristic_at_x"] = (
-            float(Fraction(tc.necklaces, abs(tc.denominator)))
+        heur = (
+            Fraction(tc.necklaces, abs(tc.denominator))
             if tc is not None and tc.denominator
             else None
         )
+        row["heuristic_at_x"] = float(heur) if heur is not None else None
+        row["heuristic_at_x_exact"] = heur
         row["integer_cycles_at_x"] = (
             len(tc.integer_cycles) if tc is not None and tc.integer_cycles is not None else None
         )
         row["labels"] = {
-            "drift": EXACT.value,
-            "critical_ratio": EXACT.value,
-            "rho": EXACT.value,
+            "drift": ROUNDED.value,
+            "drift_exact": EXACT.value,
+            "critical_ratio": ROUNDED.value,
+            "critical_ratio_exact": EXACT.value,
+            "rho": ROUNDED.value,
+            "rho_exact": EXACT.value,
             "census_cycles": CERTIFIED.value,
+            "census_primitive_cycles": CERTIFIED.value,
             "census_minima": CERTIFIED.value,
-            "drop_share": EXACT.value,
-            "unresolved_share": EXACT.value,
+            "drop_share": ROUNDED.value,
+            "drop_share_exact": EXACT.value,
+            "unresolved_share": ROUNDED.value,
+            "unresolved_share_exact": EXACT.value,
             "cycles_met": EXACT.value,
-            "largest_peak": EXACT.value,
+            # a cut walk leaves only a lower bound, established exactly
+            "largest_peak": PROVED.value if cut else EXACT.value,
             "floor_positive_length": PROVED.value,
             "floor_negative_length": PROVED.value,
             "necklaces_at_x": EXACT.value,
             "candidates_at_x": (EXACT.value if tc is not None and tc.enumerated else PROVED.value),
             "heuristic_at_x": HEURISTIC.value,
+            "heuristic_at_x_exact": HEURISTIC.value,
             "integer_cycles_at_x": EXACT.value,
         }
         return row

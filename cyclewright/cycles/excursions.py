@@ -4,15 +4,17 @@ Inside
 ------
 - :func:`excursions` -- for every start ``s`` of a range, follow the orbit
   until it first drops below ``|s|`` (its stopping time), returns to ``s``,
-  passes a step cap, or passes ``2^62``; report the largest value reached and
-  its start, the mean stopping time, and how many starts stopped, capped or
+  passes a step cap, or would pass ``2^62``; report the value of largest
+  absolute value reached (with its sign) and its start, the mean stopping time, and how many starts stopped, capped or
   overflowed. A compiled loop (numba) with exact int64 arithmetic: a value
   that would pass ``2^62`` ends that start's walk with the outcome
-  ``overflow`` (never a wrapped number).
+  ``overflow`` (never a wrapped number); the peak is then only a lower bound
+  (the largest value actually reached), shown as such (:meth:`Excursions.peak_text`).
 - :class:`Excursions` -- the result.
 
-Every figure is ``exact`` for the walks as defined (a peak is the largest
-``|value|`` seen before the walk ended).
+Every count is ``exact`` for the walks as defined; the peak (the value of
+largest ``|value|`` seen before the walk ended) is ``exact`` when no walk
+overflowed, else a lower bound (``proved``).
 
 References
 ----------
@@ -32,11 +34,11 @@ from numba import njit
 from cyclewright.maps import Map, as_map
 
 from .errors import InputError
-from .labels import EXACT
+from .labels import EXACT, PROVED
 from .limits import DEFAULT_MAX_STEPS
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
-__all__ = ["excursions", "Excursions"]
+__all__ = ["excursions", "Excursions", "peak_text"]
 
 _LIMIT = 2**62
 
@@ -44,6 +46,7 @@ _LIMIT = 2**62
 @njit(cache=True)
 def _walk_range(lo, hi, sign, d, ma, mb, cap, limit):  # pragma: no cover - compiled
     best = 0
+    best_val = 0
     best_start = 0
     stopped = 0
     returned = 0
@@ -54,6 +57,7 @@ def _walk_range(lo, hi, sign, d, ma, mb, cap, limit):  # pragma: no cover - comp
         s = s0 * sign
         v = s
         peak = s0
+        peak_val = s
         ended = False
         for i in range(1, cap + 1):
             r = v % d
@@ -62,12 +66,12 @@ def _walk_range(lo, hi, sign, d, ma, mb, cap, limit):  # pragma: no cover - comp
             if abs(v) > (limit - abs(b)) // abs(a):
                 overflow += 1
                 ended = True
-                peak = limit
                 break
             v = (a * v + b) // d
             av = abs(v)
             if av > peak:
                 peak = av
+                peak_val = v
             if av < s0:
                 stopped += 1
                 total_time += i
@@ -81,8 +85,29 @@ def _walk_range(lo, hi, sign, d, ma, mb, cap, limit):  # pragma: no cover - comp
             capped += 1
         if peak > best:
             best = peak
+            best_val = peak_val
             best_start = s
-    return best, best_start, stopped, returned, capped, overflow, total_time
+    return best_val, best_start, stopped, returned, capped, overflow, total_time
+
+
+def peak_text(value: int, cut: bool) -> str | int:
+    """A peak for display: the value itself, or when the walk was cut a lower bound on ``|peak|``.
+
+    The bound is the largest power of two below the value reached, with the
+    sign kept: ``> 2^60`` or ``< -2^60``.
+
+    >>> peak_text(-785412368, False)
+    -785412368
+    >>> peak_text(3 * 2**60, True), peak_text(-3 * 2**60, True)
+    ('> 2^61', '< -2^61')
+    """
+    if not cut:
+        return value
+    k = abs(value).bit_length() - 1
+    strict = abs(value) > 2**k
+    if value < 0:
+        return f"{'<' if strict else '<='} -2^{k}"
+    return f"{'>' if strict else '>='} 2^{k}"
 
 
 @dataclass(frozen=True)
@@ -97,6 +122,9 @@ class Excursions:
     peak: int
     peak_start: int
     peak_overflowed: bool
+    #: ``peak`` is the value of largest ``|value|`` reached, with its sign; when
+    #: ``peak_overflowed`` some walk was cut before ``2^62`` and ``|peak|`` is only
+    #: a lower bound on the largest excursion.
     stopped: int
     returned: int
     capped: int
@@ -117,6 +145,10 @@ class Excursions:
         """Share of starts neither dropping nor returning (capped or past 2^62)."""
         return Fraction(self.capped + self.overflowed, self.starts)
 
+    def peak_text(self) -> str:
+        """The peak as shown: the number, or a lower bound such as ``> 2^60`` when a walk was cut."""
+        return peak_text(self.peak, self.peak_overflowed)
+
     def to_dict(self) -> dict:
         return {
             "map": self.map.label,
@@ -124,7 +156,8 @@ class Excursions:
             "start": self.start,
             "to": self.to,
             "max_steps": self.max_steps,
-            "peak": self.peak,
+            "peak": self.peak_text() if self.peak_overflowed else self.peak,
+            "peak_reached": self.peak,
             "peak_start": self.peak_start,
             "peak_overflowed": self.peak_overflowed,
             "stopped": self.stopped,
@@ -135,7 +168,9 @@ class Excursions:
             "open_share": self.open_share,
             "mean_stopping_time": self.mean_stopping_time,
             "labels": {
-                k: EXACT.value for k in ("peak", "stopped", "capped", "overflowed", "drop_share")
+                **{k: EXACT.value for k in ("stopped", "capped", "overflowed", "drop_share")},
+                "peak": PROVED.value if self.peak_overflowed else EXACT.value,
+                "peak_reached": EXACT.value,
             },
         }
 
@@ -176,7 +211,7 @@ def excursions(
     >>> e.stopped, e.returned       # 1 returns to itself; every other start drops
     (29, 1)
     >>> [e.peak for e in excursions("3x+1", 30, side="both")]
-    [4616, 136]
+    [4616, -136]
 
     References
     ----------
@@ -213,7 +248,7 @@ def _excursions(m: Map, to: int, start: int, side: str, max_steps: int) -> Excur
         max_steps,
         int(best),
         int(bstart),
-        bool(best >= _LIMIT),
+        bool(over),
         int(stopped),
         int(returned),
         int(capped),

@@ -1,28 +1,47 @@
-"""What kind of figure a number is: every figure carries one of four labels.
+"""What kind of figure a number is: every figure carries one of five labels.
 
-- ``exact``: computed exactly (integers, rationals, closed formulas).
+- ``exact``: computed exactly (integers, rationals, closed formulas such as
+  ``(1/2) ln(3/4)``), or an exact statement such as ``> 2^62`` for a value
+  known to pass ``2^62``.
 - ``certified``: the outcome of an exhaustive search, with its method and range.
-- ``proved``: a theorem's bound, evaluated rigorously.
+- ``proved``: a theorem's bound, evaluated rigorously. When the bound rests
+  on a published constant quoted from memory, the figure's text says which
+  theorem and that the constant is from memory.
 - ``heuristic``: a model's expectation; never a proof.
+- ``rounded``: a floating-point value of an exact quantity whose exact form is
+  given beside it (e.g. ``drift`` next to ``drift_exact``); it is that
+  quantity rounded to double precision, never itself exact.
 
-Results expose their labels through a ``labels`` mapping from field name to
-label; JSON output carries it alongside the values.
+A capped value is never labelled ``exact`` as a number: it is shown as a
+lower bound (``"> 2^62"``). Results expose their labels through a ``labels``
+mapping from field name to label; JSON output carries it alongside the values.
+:data:`LABELS` lists every label name a ``labels`` mapping may use.
 """
 
 from __future__ import annotations
 
 from enum import Enum
 
-__all__ = ["Label", "EXACT", "CERTIFIED", "PROVED", "HEURISTIC", "HEURISTIC_CAUTION"]
+__all__ = [
+    "Label",
+    "EXACT",
+    "CERTIFIED",
+    "PROVED",
+    "HEURISTIC",
+    "ROUNDED",
+    "LABELS",
+    "HEURISTIC_CAUTION",
+]
 
 
 class Label(str, Enum):
-    """The four kinds of figure."""
+    """The five kinds of figure."""
 
     EXACT = "exact"
     CERTIFIED = "certified"
     PROVED = "proved"
     HEURISTIC = "heuristic"
+    ROUNDED = "rounded"
 
     def __str__(self) -> str:
         return self.value
@@ -32,6 +51,10 @@ EXACT = Label.EXACT
 CERTIFIED = Label.CERTIFIED
 PROVED = Label.PROVED
 HEURISTIC = Label.HEURISTIC
+ROUNDED = Label.ROUNDED
+
+#: Every label name (the values of every ``labels`` mapping).
+LABELS = frozenset(x.value for x in Label)
 
 HEURISTIC_CAUTION = (
     "Figures labelled 'heuristic' are expectations of a probabilistic model, not proofs; "

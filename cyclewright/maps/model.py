@@ -306,30 +306,47 @@ class Map:
         return all(math.gcd(a, self.divisor) == 1 for a in self.multipliers)
 
     def drift_ratio(self) -> Fraction:
-        """``prod |a_r| / d^d``: the drift per step is ``(1/d) ln`` of it (exact).
+        """``Q`` of the exact drift ``(1/L) ln Q`` (:meth:`drift_exact`); below 1 iff the map contracts on average.
 
         >>> Map(2, [(1, 0), (3, 1)]).drift_ratio()
         Fraction(3, 4)
         """
-        prod = 1
-        for a in self.multipliers:
-            prod *= abs(a)
-        return Fraction(prod, self.divisor**self.divisor)
+        return self.drift_exact()[1]
+
+    def drift_exact(self) -> tuple[int, Fraction, bool]:
+        """The mean change of ``ln |n|`` per step as ``(L, Q, assumed)``: drift ``= (1/L) ln Q``.
+
+        Steps go through residue ``r`` with the long-run frequency of the
+        residue Markov chain (:func:`cyclewright.maps.drift.residue_frequencies`;
+        Matthews and Watts 1985): ``1/d`` each when every multiplier is prime
+        to ``d``, so the drift is ``(1/d) sum ln(|a_r|/d)``. ``assumed`` is
+        True when the chain could not be decided and uniform frequencies were
+        assumed.
+
+        >>> Map(2, [(1, 0), (3, 1)]).drift_exact()
+        (2, Fraction(3, 4), False)
+        """
+        from .drift import drift_exact
+
+        return drift_exact(self)
 
     def drift(self) -> float:
-        """Mean log change per step, ``(1/d) sum ln(|a_r|/d)`` (a float, for display).
+        """Mean log change per step, ``(1/L) ln Q`` rounded to a float (for display).
 
         >>> round(Map(2, [(1, 0), (3, 1)]).drift(), 4)
         -0.1438
         >>> round(Map(2, [(1, 0), (5, 1)]).drift(), 4)
         0.1116
+        >>> round(Map(2, [(1, 0), (6, 2)]).drift(), 4)    # n/2, 3n+1: (1/3) ln(3/4)
+        -0.0959
         """
-        q = self.drift_ratio()
-        return (math.log(q.numerator) - math.log(q.denominator)) / self.divisor
+        L, q, _ = self.drift_exact()
+        return (math.log(q.numerator) - math.log(q.denominator)) / L
 
     def drift_formula(self) -> str:
-        """The exact drift as text, e.g. ``(1/2) ln(3/4)``."""
-        return f"(1/{self.divisor}) ln({self.drift_ratio()})"
+        """The exact drift as text, e.g. ``(1/2) ln(3/4)``; says so when uniform residues were assumed."""
+        L, q, assumed = self.drift_exact()
+        return f"(1/{L}) ln({q})" + (" (uniform residues assumed)" if assumed else "")
 
     def describe(self) -> dict:
         """Everything about the map as plain data (used by ``maps show``)."""
@@ -350,6 +367,7 @@ class Map:
             "multipliers_prime_to_divisor": self.multipliers_prime_to_divisor(),
             "drift": self.drift(),
             "drift_exact": self.drift_formula(),
+            "labels": {"drift": "rounded", "drift_exact": "exact"},
             "key": self.key,
         }
 

@@ -145,26 +145,27 @@ def compare_cmd(
             f"Maps side by side (census K = {K}, scan 1..{N} both sides, counting at x = {X})",
             [
                 "map",
-                "drift/step [exact]",
-                "log_d a",
-                "rho",
-                "cycles <= K [certified]",
+                "drift/step [exact = rounded]",
+                "log_d a [rounded]",
+                "rho [rounded]",
+                "cycles <= K primitive/all [certified]",
                 "minima",
-                "unresolved <= N [exact]",
-                "largest peak [exact]",
+                "unresolved <= N [rounded]",
+                "largest peak [exact, or lower bound]",
                 "floor +/- [proved]",
                 "necklaces / candidates / heuristic at x",
             ],
             [
                 [
                     r["map"],
-                    f"{r['drift']:+.4f}",
+                    f"{r['drift_exact']} = {r['drift']:+.4f}",
                     short(r["critical_ratio"]),
-                    short(r["rho"]),
-                    short(r["census_cycles"]),
+                    short(r["rho"])
+                    + ("*" if r.get("rho_assumes", "") and "fails" in r["rho_assumes"] else ""),
+                    f"{short(r['census_primitive_cycles'])}/{short(r['census_cycles'])}",
                     ", ".join(map(str, r["census_minima"] or [])) or "-",
                     f"{r['unresolved_share']:.4f}" if r["unresolved_share"] is not None else "-",
-                    ("> 2^62" if r["peak_passed_2^62"] else short(r["largest_peak"])),
+                    short(r["largest_peak"]),
                     f"{short(r['floor_positive_length'])} / {short(r['floor_negative_length'])}",
                     f"{short(r['necklaces_at_x'], 12)} / {short(r['candidates_at_x'])} / {short(r['heuristic_at_x'])}",
                 ]
@@ -175,6 +176,11 @@ def compare_cmd(
     for p in cmp.profiles:
         if p.predictions is not None:
             con.print(show_table(p.predictions.table()))
+    if any(r.get("rho_assumes") and "fails" in r["rho_assumes"] for r in rows):
+        con.print(
+            "* rho assumes every itinerary is realized; a multiplier of this map shares a factor "
+            "with d, so some itineraries never occur and rho over-counts them."
+        )
     con.print(HEURISTIC_CAUTION)
 
 
