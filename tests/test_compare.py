@@ -10,12 +10,12 @@ import pytest
 from conftest import run_cli
 
 from cyclewright import maps
-from cyclewright.maps import Map
 from cyclewright.cycles.census import census
 from cyclewright.cycles.compare import compare, critical_ratio, predictions
 from cyclewright.cycles.counting import count
 from cyclewright.cycles.excursions import excursions
 from cyclewright.cycles.floors import floor
+from cyclewright.maps import Map
 
 
 @pytest.fixture(scope="module")
