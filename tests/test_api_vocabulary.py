@@ -184,7 +184,7 @@ def test_both_sides_equal_each_side_alone():
     for s in SIDES:
         assert _plain(sw[s]) == _plain(cyclewright.sweep(NAME, range(1, 9), side=s))
     ex = cyclewright.excursions(NAME, 30, side="both")
-    assert ex["negative"].peak == 136  # the cycle of -17 reaches -136 (Lagarias 1985)
+    assert ex["negative"].peak == -136  # the cycle of -17 reaches -136 (Lagarias 1985)
 
 
 def test_every_side_argument_defaults_to_the_same_side():
