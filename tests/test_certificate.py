@@ -300,12 +300,14 @@ def doc_3x1():
     return certificate_of(c)
 
 
+@pytest.mark.slow
 def test_3x1_both_sides_rederived_by_default(tmp_path, doc_3x1):
     v = verify_certificate(_write(tmp_path, doc_3x1))
     assert v.status == "holds", v.problems + v.not_run
     assert v.rescanned
 
 
+@pytest.mark.slow
 def test_3x1_missing_cycle_caught_by_default(tmp_path, doc_3x1):
     d = json.loads(json.dumps(doc_3x1))
     d["cycles"] = [c for c in d["cycles"] if c["minimum"] != -17]
@@ -326,6 +328,7 @@ def test_not_a_certificate(tmp_path):
         verify_certificate(p)
 
 
+@pytest.mark.slow
 def test_cli_exit_statuses(tmp_path):
     c = census(maps.get("3x+5"), 20, side="positive", store=False, workers=1)
     cert = tmp_path / "c.json"
