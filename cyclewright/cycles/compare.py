@@ -88,6 +88,7 @@ ROW_COLUMNS = (
     "cycles_met",
     "largest_peak",
     "largest_peak_start",
+    "peak_walk_cut",
     "floor_positive_length",
     "floor_negative_length",
     "x",
@@ -507,16 +508,24 @@ class Comparison:
 
     def table(self) -> Table:
         """One row per map (the columns of :data:`ROW_COLUMNS`, labelled)."""
-        rows = self.rows()
-        labels = rows[0]["labels"] if rows else {}
-        return Table(
-            "One row per map",
-            tuple(ROW_COLUMNS),
-            tuple(tuple(r.get(c) for c in ROW_COLUMNS) for r in rows),
-            {c: v for c, v in labels.items() if c in ROW_COLUMNS},
+        note = (
             "Floors are conditional on the scan having verified 1..N with no unresolved "
-            "start; where starts stayed unresolved no floor is given.",
+            "start; where starts stayed unresolved no floor is given. A peak whose walk was cut is a "
+            "lower bound (peak_walk_cut)."
         )
+        per_map = [
+            Table(
+                "One row per map",
+                tuple(ROW_COLUMNS),
+                (tuple(r.get(c) for c in ROW_COLUMNS),),
+                {c: v for c, v in r["labels"].items() if c in ROW_COLUMNS},
+                note,
+            )
+            for r in self.rows()
+        ]
+        if not per_map:
+            return Table("One row per map", tuple(ROW_COLUMNS), (), {}, note)
+        return Table.stack(per_map)  # a label that differs between maps goes per row
 
     def sweeps(self, limit: int = 2000) -> dict:
         """The positive-side critical-line sweep of every map that has one (for plots)."""

@@ -68,6 +68,26 @@ class Table:
             labels=labels,
         )
 
+    def select(self, columns: Sequence[str]) -> Table:
+        """The same table with only ``columns`` (in that order).
+
+        A per-row label column of a chosen column (``"<name> label"``, see
+        :meth:`stack`) comes along with it.
+
+        Examples
+        --------
+        >>> Table("t", ("a", "b"), ((1, 2),), {"b": "exact"}).select(["b"]).rows
+        ((2,),)
+        """
+        columns = [x for c in columns for x in (c, f"{c} label") if x == c or x in self.columns]
+        idx = [self.columns.index(c) for c in columns]
+        return replace(
+            self,
+            columns=tuple(columns),
+            rows=tuple(tuple(row[i] for i in idx) for row in self.rows),
+            labels={c: v for c, v in self.labels.items() if c in columns},
+        )
+
     def head(self, n: int) -> Table:
         """The first ``n`` rows."""
         return replace(self, rows=self.rows[: max(n, 0)])

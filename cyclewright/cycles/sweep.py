@@ -31,7 +31,7 @@ from .counting import (
     _count_content,
 )
 from .errors import InputError
-from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
 from .presentation import Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
@@ -223,7 +223,7 @@ class Sweep:
         "heuristic_log10": HEURISTIC.value,
         "lambda": CERTIFIED.value,
         "lambda_lower": PROVED.value,
-        "rho": "exact formula, float value",
+        "rho": ROUNDED.value,
         "fitted_rate": HEURISTIC.value,
         "fitted_rate_corrected": HEURISTIC.value,
         "crossover_x": PROVED.value,

@@ -124,7 +124,6 @@ def compare_cmd(
             workers=workers,
             progress=show,
         )
-    rows = cmp.rows()
     if csv_path:
         target = sys.stdout if csv_path == "-" else csv_path
         t = cmp.table()
@@ -139,6 +138,7 @@ def compare_cmd(
     if csv_path == "-":
         return
     K, N, X = cmp.max_length, cmp.to, cmp.odd
+    rows = cmp.rows()
     con = stdout_console()
     con.print(
         make_table(
