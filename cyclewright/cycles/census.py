@@ -239,6 +239,7 @@ class Census:
             f"{self.map.label} has exactly {n} integer cycle{'s' if n != 1 else ''} of length at most "
             f"{self.max_length} on the {where} side{'s' if len(self.sides) > 1 else ''}"
             + (" (with the fixed point 0)" if self.zero_cycle else "")
+            + f"; {len(self.primitive)} of them primitive in Lagarias' sense"
             + f"; certified by {self.method}."
         )
 

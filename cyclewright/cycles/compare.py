@@ -50,7 +50,7 @@ from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
 from .presentation import Table
 from .progress import ProgressCallback, report
-from .sweep import critical_lengths, rho, sweep
+from .sweep import critical_lengths, rho, rho_exact, sweep
 
 __all__ = [
     "compare",
@@ -399,7 +399,7 @@ class MapProfile:
             "critical_ratio": cr[0] if cr else None,
             "critical_ratio_exact": cr[1] if cr else None,
             "rho": r,
-            "rho_exact": "t^t / (t-1)^(t-1), t = " + cr[1] if r is not None and cr else None,
+            "rho_exact": rho_exact(m),
             "rho_assumes": _rho_assumes(m) if r is not None else None,
             "census_length": c.max_length if c else None,
             "census_cycles": len([x for x in c.cycles if x.minimum != 0]) if c else None,

@@ -105,6 +105,7 @@ _TYPE_COLUMNS = (
     "candidates",
     "candidates label",
     "integer cycles",
+    "of which primitive (period k)",
     "necklaces/|D|",
     "candidates from linear forms",
 )
@@ -114,6 +115,7 @@ _TYPE_LABELS = {
     "D": EXACT.value,
     "min bound": PROVED.value,
     "integer cycles": EXACT.value,
+    "of which primitive (period k)": EXACT.value,
     "necklaces/|D|": HEURISTIC.value,
     "candidates from linear forms": PROVED.value,
 }
@@ -217,6 +219,20 @@ class TypeCount:
             return f"k={self.length}, x={self.content[1]}"
         return f"k={self.length}, content {list(self.content)}"
 
+    @property
+    def primitive_integer_cycles(self) -> tuple[IntegerCycle, ...] | None:
+        """The integer cycles whose period is the type's length (a primitive itinerary)."""
+        if self.integer_cycles is None:
+            return None
+        return tuple(c for c in self.integer_cycles if c.length == self.length)
+
+    @property
+    def repeated_integer_cycles(self) -> tuple[IntegerCycle, ...] | None:
+        """Shorter cycles whose itinerary, repeated ``k/p`` times, has this type (not new cycles)."""
+        if self.integer_cycles is None:
+            return None
+        return tuple(c for c in self.integer_cycles if c.length != self.length)
+
     def figures_table(self) -> Table:
         """Every figure of the type with its label, one per row (the ``count`` command's view)."""
         b = self.min_bound
@@ -237,13 +253,24 @@ class TypeCount:
         ]
         if b.applies and b.possible:
             rows.append(("real bound in", str(b.interval), lab["min_bound"]))
-        rows.append(("bound formula", b.formula, lab["min_bound"]))
+        if b.applies:
+            rows.append(("bound formula", b.formula, lab["min_bound"]))
         if self.enumerated:
             rows += [
                 ("smallest cycle-min numerator", self.smallest_min_numerator, EXACT.value),
                 ("largest cycle-min numerator", self.largest_min_numerator, EXACT.value),
                 ("candidates (multiples of |D|)", self.candidates, EXACT.value),
                 ("integer cycles", len(self.integer_cycles or ()), EXACT.value),
+                (
+                    "  of which primitive (period k)",
+                    len(self.primitive_integer_cycles or ()),
+                    EXACT.value,
+                ),
+                (
+                    "  of which a shorter cycle repeated",
+                    len(self.repeated_integer_cycles or ()),
+                    EXACT.value,
+                ),
             ]
             if self.unrealized:
                 rows.append(("integral but not realized", self.unrealized, EXACT.value))
@@ -256,7 +283,7 @@ class TypeCount:
         heur = f"{10**l10:.6g}" if -6 < l10 < 9 else f"10^{l10:.4f}"
         rows += [
             ("heuristic necklaces/|D|", heur, HEURISTIC.value),
-            ("Λ = k ln d - ln A", str(self.log_form), CERTIFIED.value),
+            ("Λ = k ln d - ln |A|", str(self.log_form), CERTIFIED.value),
             (
                 "|Λ| lower bound",
                 f"{lf.lower_text()} ({lf.source}{', from memory' if lf.from_memory else ''})"
@@ -298,6 +325,9 @@ class TypeCount:
                     self.candidates,
                     "exact" if self.enumerated else "proved",
                     len(self.integer_cycles) if self.integer_cycles is not None else None,
+                    len(self.primitive_integer_cycles)
+                    if self.primitive_integer_cycles is not None
+                    else None,
                     float(self.heuristic),
                     self.candidates_linear_forms,
                 ),
@@ -332,6 +362,12 @@ class TypeCount:
             "integer_cycle_minima": None
             if self.integer_cycles is None
             else [c.minimum for c in self.integer_cycles],
+            "primitive_integer_cycles": None
+            if self.primitive_integer_cycles is None
+            else len(self.primitive_integer_cycles),
+            "repeated_integer_cycles": None
+            if self.repeated_integer_cycles is None
+            else len(self.repeated_integer_cycles),
             "heuristic": self.heuristic,
             "heuristic_log10": round(self.heuristic_log10, 6),
             "lambda": self.log_form.text(),

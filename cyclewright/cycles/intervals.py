@@ -213,13 +213,15 @@ def log_form(m: Map | str, content_or_type, *, rel_bits: int = 64) -> Interval:
 
 @lru_cache(maxsize=4096)
 def _log_form(d: int, branches: tuple, content: tuple[int, ...], rel_bits: int) -> Interval:
+    # Λ = k ln d - ln |A|: with a negative multiplier A may be negative, and |A| is
+    # what the size arguments need (the sign of A only decides the sides)
     k = sum(content)
     A = 1
     for (a, _b), c in zip(branches, content):
         if c:
-            if a <= 0:
-                raise InputError("ln A needs positive multipliers on the residues used")
-            A *= a**c
+            if a == 0:
+                raise InputError("ln |A| needs non-zero multipliers on the residues used")
+            A *= abs(a) ** c
     D = d**k - A
     if D == 0:
         return Interval(Fraction(0), Fraction(0))
@@ -232,8 +234,8 @@ def _log_form(d: int, branches: tuple, content: tuple[int, ...], rel_bits: int) 
         with _ivprec(prec) as iv:
             lam = k * iv.log(iv.mpf(d))
             for (a, _b), c in zip(branches, content):
-                if c and a != 1:
-                    lam -= c * iv.log(iv.mpf(a))
+                if c and abs(a) != 1:
+                    lam -= c * iv.log(iv.mpf(abs(a)))
             out = _iv_to_interval(lam)
         if (out.lo > 0 or out.hi < 0) and (
             out.width == 0 or out.width * 2**rel_bits <= min(abs(out.lo), abs(out.hi))

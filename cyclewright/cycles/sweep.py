@@ -38,6 +38,7 @@ from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
     "rho",
+    "rho_exact",
     "critical_lengths",
     "Sweep",
     "sweep",
@@ -45,6 +46,25 @@ __all__ = [
 
 
 # ------------------------------------------------------------------ sweep
+def rho_exact(m: Map | str) -> str | None:
+    """The exact form of :func:`rho` and what it assumes (None where :func:`rho` is None).
+
+    >>> from cyclewright import maps
+    >>> rho_exact(maps.get("3x+1"))
+    't^t / (t-1)^(t-1), t = log_2 3'
+    >>> rho_exact(maps.get("3x+1-undivided"))
+    't^t / (t-1)^(t-1), t = log_2 6 (assumes every itinerary is realized, which fails: 6 shares a factor with 2)'
+    """
+    m = as_map(m)
+    if rho(m) is None:
+        return None
+    a = m.branches[1].multiplier
+    text = f"t^t / (t-1)^(t-1), t = log_2 {a}"
+    if a % 2 == 0:
+        text += f" (assumes every itinerary is realized, which fails: {a} shares a factor with 2)"
+    return text
+
+
 def rho(m: Map | str) -> float | None:
     """The theoretical growth rate of necklaces along the critical line (a float).
 
@@ -214,7 +234,8 @@ class Sweep:
         "denominator": EXACT.value,
         "min_bound": PROVED.value,
         "min_bound_interval": PROVED.value,
-        "candidates": "exact when enumerated, else proved",
+        # per row, candidates_label says exact (enumerated) or proved (the bound)
+        "candidates": PROVED.value,
         "candidates_linear_forms": PROVED.value,
         "smallest_min_numerator": EXACT.value,
         "largest_min_numerator": EXACT.value,
@@ -224,6 +245,7 @@ class Sweep:
         "lambda": CERTIFIED.value,
         "lambda_lower": PROVED.value,
         "rho": ROUNDED.value,
+        "rho_exact": EXACT.value,
         "fitted_rate": HEURISTIC.value,
         "fitted_rate_corrected": HEURISTIC.value,
         "crossover_x": PROVED.value,
@@ -264,6 +286,7 @@ class Sweep:
             "limit": self.limit,
             "rows": len(self.rows),
             "rho": self.rho,
+            "rho_exact": rho_exact(self.map),
             "fitted_rate": self.fitted_rate,
             "fitted_rate_corrected": self.fitted_rate_corrected,
             "fit_range": list(self.fit_range) if self.fit_range else None,
@@ -302,7 +325,7 @@ class Sweep:
                 "fitted rate",
                 "bound below necklaces from x",
                 "linear forms from x",
-                "integer cycles found",
+                "integer cycles found (primitive)",
             ),
             (
                 (
@@ -310,7 +333,7 @@ class Sweep:
                     self.fitted_rate_corrected,
                     self.crossover_x,
                     self.crossover_x_linear_forms,
-                    sum(len(r.integer_cycles or ()) for r in self.rows),
+                    sum(len(r.primitive_integer_cycles or ()) for r in self.rows),
                 ),
             ),
             {
@@ -318,7 +341,7 @@ class Sweep:
                 "fitted rate": self.LABELS["fitted_rate_corrected"],
                 "bound below necklaces from x": self.LABELS["crossover_x"],
                 "linear forms from x": self.LABELS["crossover_x_linear_forms"],
-                "integer cycles found": self.LABELS["integer_cycles"],
+                "integer cycles found (primitive)": self.LABELS["integer_cycles"],
             },
             "'bound below necklaces from x': from this x on, within the swept range, the "
             "proved candidate bound stays below the necklace count, so almost no itinerary "

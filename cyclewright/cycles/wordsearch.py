@@ -25,7 +25,9 @@ with ``d``) are dropped.
 
 Degenerate words with ``d^k = A_w`` have no fixed point unless ``B_w = 0``, in
 which case every point following them is fixed; such maps are reported
-through :class:`DegenerateMap` rather than listed.
+through :class:`DegenerateMap` rather than listed -- unless no integer
+follows the word at all (:func:`following_class`, decided exactly; possible
+when a multiplier shares a factor with ``d``), when the word is skipped.
 
 References
 ----------
@@ -49,7 +51,13 @@ from .integer_cycle import IntegerCycle, cycle_from_element
 from .itinerary import primitive_root
 from .solver import cycle_representative, solve
 
-__all__ = ["integral_cycles_by_itinerary", "words_table", "DegenerateMap", "WordSearchResult"]
+__all__ = [
+    "integral_cycles_by_itinerary",
+    "words_table",
+    "following_class",
+    "DegenerateMap",
+    "WordSearchResult",
+]
 
 _INT64_SAFE = 2**62
 
@@ -83,6 +91,68 @@ def words_table(m: Map | str, length: int) -> tuple[list[int], list[int]]:
         A, B = nA, nB
         dt *= d
     return A, B
+
+
+def following_class(m: Map | str, word) -> tuple[int, int] | None:
+    """The integers whose first ``len(word)`` steps follow ``word``: a class ``s mod N``, or None.
+
+    With every multiplier prime to ``d`` every word is followed by the class
+    of ``d^k`` integers; when a multiplier shares a factor with ``d`` some
+    words are followed by no integer at all. Decided exactly: the current
+    value is an affine function ``alpha x + beta`` of the start on the class
+    found so far, and each letter adds one linear congruence in the class's
+    parameter.
+
+    Parameters
+    ----------
+    m : Map or str
+    word : sequence of int
+        Residues.
+
+    Returns
+    -------
+    (s, N) or None
+        ``0 <= s < N``; None when no integer follows the word.
+
+    Examples
+    --------
+    >>> from cyclewright.maps import Map
+    >>> m = Map(3, [(-3, 12), (5, 13), (2, 11)])
+    >>> following_class(m, (0, 0)) is None     # T(n) = 4 - n on residue 0 lands in residue 1
+    True
+    >>> following_class(m, (0, 1))
+    (0, 3)
+    >>> following_class("3x+1", (1, 0))        # n = 1 mod 4: (3n+1)/2 is even
+    (1, 4)
+    >>> following_class("3x+1-undivided", (1, 1)) is None   # 3n+1 is even for odd n
+    True
+
+    References
+    ----------
+    Matthews and Watts 1985 (residue classes followed by a word; from memory).
+    """
+    from fractions import Fraction
+    from math import gcd
+
+    m = as_map(m)
+    d = m.divisor
+    s, N = 0, 1
+    alpha, beta = Fraction(1), Fraction(0)
+    for r in word:
+        c0 = alpha * s + beta
+        c1 = alpha * N
+        if c0.denominator != 1 or c1.denominator != 1:  # pragma: no cover - kept integral
+            raise AssertionError("the affine value left the integers")
+        c0, c1 = int(c0), int(c1)
+        g = gcd(c1, d)
+        if (r - c0) % g:
+            return None
+        dg = d // g
+        t0 = ((r - c0) // g * pow(c1 // g, -1, dg)) % dg if dg > 1 else 0
+        s, N = s + N * t0, N * dg
+        a, b = m.branches[r]
+        alpha, beta = alpha * a / d, (beta * a + b) / d
+    return s % N, N
 
 
 def _decode(index: int, length: int, d: int) -> tuple[int, ...]:
@@ -204,6 +274,9 @@ def integral_cycles_by_itinerary(m: Map | str, max_length: int) -> WordSearchRes
                     for ui in u_idx:
                         for vi in v_idx:
                             if beta * Bu_all[ui] + di * Bv_all[vi] == 0:
+                                word = _decode(ui, i, d) + _decode(vi, j, d)
+                                if following_class(m, word) is None:
+                                    continue  # no integer follows this itinerary: no cycle
                                 raise DegenerateMap(
                                     f"{m.label}: the itinerary {_decode(ui, i, d) + _decode(vi, j, d)} has "
                                     f"d^k = A and B = 0, so every point following it is fixed"

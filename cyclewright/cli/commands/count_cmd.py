@@ -117,7 +117,7 @@ def _print_human(tc, show: int) -> None:
         f"[bold]{m.label}[/bold], type {tc.type_text()}"
         + (f" (content {list(tc.content)})" if m.divisor == 2 else "")
         + ": "
-        f"D = {m.divisor}^{tc.length} - {short(tc.A, 30)} = {short(tc.denominator, 30)}, "
+        f"D = {m.divisor}^{tc.length} - {'(' + short(tc.A, 30) + ')' if tc.A < 0 else short(tc.A, 30)} = {short(tc.denominator, 30)}, "
         f"serves the {tc.side} side"
     )
     con.print(show_table(tc.figures_table()))

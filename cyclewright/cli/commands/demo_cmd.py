@@ -40,7 +40,7 @@ def demo_cmd(out, workers) -> None:
             [
                 "map",
                 "drift/step",
-                "cycles <= K [certified]",
+                f"cycles <= {rows[0]['census_length'] if rows else 'K'} primitive/all [certified]",
                 "minima",
                 "unresolved share <= N",
                 "floor + / -  [proved]",
@@ -49,7 +49,7 @@ def demo_cmd(out, workers) -> None:
                 [
                     r["map"],
                     f"{r['drift']:+.4f}",
-                    r["census_cycles"],
+                    f"{r['census_primitive_cycles']}/{r['census_cycles']}",
                     ", ".join(map(str, r["census_minima"] or [])),
                     f"{r['unresolved_share']:.4f}",
                     f"{r['floor_positive_length'] or '-'} / {r['floor_negative_length'] or '-'}",

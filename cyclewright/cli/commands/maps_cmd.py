@@ -35,6 +35,7 @@ def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
                 "source": m.source,
                 "aliases": list(m.aliases),
                 "key": m.key,
+                "labels": {"drift": "rounded", "drift_exact": "exact"},
             }
         )
     if as_json:
@@ -42,9 +43,20 @@ def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
         return
     table = make_table(
         "Maps in the catalog",
-        ["name", "definition", "d", "drift/step", "source"],
-        [[r["name"], r["formula"], r["divisor"], f"{r['drift']:+.4f}", r["source"]] for r in rows],
-        caption="drift = (1/d) sum ln(|a_r|/d), exact; shown rounded. Any ax+b shorthand works as a name too.",
+        ["name", "definition", "d", "drift/step [exact = rounded]", "source"],
+        [
+            [
+                r["name"],
+                r["formula"],
+                r["divisor"],
+                f"{r['drift_exact']} = {r['drift']:+.4f}",
+                r["source"],
+            ]
+            for r in rows
+        ],
+        caption="drift = mean change of ln|n| per step: (1/d) sum ln(|a_r|/d) when every multiplier "
+        "is prime to d, else weighted by the residue frequencies of the Markov chain "
+        "(Matthews and Watts). Any ax+b shorthand works as a name too.",
     )
     stdout_console().print(table)
     for p in cat.problems:

@@ -167,12 +167,23 @@ def _print_human(s, max_rows: int, csv_path, plot_path) -> None:
         f"{_opt(s.crossover_x)}; using only the linear-forms bound on |Λ|: from x = "
         f"{_opt(s.crossover_x_linear_forms)} (within x <= {hi})"
     )
-    found = [(r.length, c.minimum) for r in s.rows for c in (r.integer_cycles or ())]
-    if found:
+    found = [(r.length, c.minimum) for r in s.rows for c in (r.primitive_integer_cycles or ())]
+    repeats = [
+        (r.length, c.minimum, c.length) for r in s.rows for c in (r.repeated_integer_cycles or ())
+    ]
+    if found or repeats:
         con.print(
-            "integer cycles found (exact): "
+            f"integer cycles found (exact): {len(found)} primitive"
+            + (": " if found else "")
             + ", ".join(f"min {mn} (k={k})" for k, mn in found[:12])
             + (" ..." if len(found) > 12 else "")
+            + (
+                f"; {len(repeats)} repeated traversal(s) of shorter cycles, not new cycles: "
+                + ", ".join(f"min {mn} (k={k} = {k // p} x {p})" for k, mn, p in repeats[:8])
+                + (" ..." if len(repeats) > 8 else "")
+                if repeats
+                else ""
+            )
         )
     if csv_path and csv_path != "-":
         con.print(f"rows written to {csv_path}")
