@@ -33,6 +33,8 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "count": ((13, 8), {}),
     "sweep": ((range(1, 8),), {"side": "both"}),
     "rho": ((), {}),
+    "rho_exact": ((), {}),
+    "following_class": (((1, 0),), {}),
     "critical_lengths": (((8,), 1), {}),
     "log_form": (((13, 8),), {}),
     "resolve_content": (((13, 8),), {}),
