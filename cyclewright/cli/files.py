@@ -9,7 +9,10 @@ from pathlib import Path
 
 from .errors import BadInput
 
-__all__ = ["check_output", "atomic_write", "save_figure"]
+__all__ = ["check_output", "check_figure_path", "atomic_write", "save_figure", "FIGURE_FORMATS"]
+
+#: Figure formats chosen by the file's extension.
+FIGURE_FORMATS = ("png", "svg", "pdf")
 
 
 def check_output(path: str | None, option: str, force: bool = False) -> Path | None:
@@ -52,13 +55,42 @@ def atomic_write(path: str | os.PathLike, writer: Callable, *, binary: bool = Fa
     return target
 
 
+def figure_format(path: str | os.PathLike) -> str:
+    """``png``, ``svg`` or ``pdf`` from the file's extension (a one-line error otherwise).
+
+    >>> figure_format("a/b.SVG")
+    'svg'
+    """
+    ext = Path(path).suffix.lower().lstrip(".")
+    if ext not in FIGURE_FORMATS:
+        raise BadInput(
+            f"plot file {path}: the extension must be .png, .svg or .pdf (it chooses the format)"
+        )
+    return ext
+
+
+def check_figure_path(path: str | None, option: str, force: bool = False) -> Path | None:
+    """:func:`check_output` for a figure, whose extension must name a format."""
+    if path is None:
+        return None
+    figure_format(path)
+    return check_output(path, option, force)
+
+
 def save_figure(fig, path: str | os.PathLike) -> Path:
-    """Save a matplotlib figure as PNG, atomically, without run-dependent metadata, and close it."""
+    """Save a matplotlib figure atomically, in the format its extension names (PNG, SVG or PDF),
+    without run-dependent metadata, and close it."""
     import matplotlib.pyplot as plt
 
+    fmt = figure_format(path)
+    meta = {
+        "png": {"Software": None},
+        "svg": {"Creator": None, "Date": None},
+        "pdf": {"Creator": None, "Producer": None, "CreationDate": None},
+    }[fmt]
     try:
         return atomic_write(
-            path, lambda fh: fig.savefig(fh, format="png", metadata={"Software": None}), binary=True
+            path, lambda fh: fig.savefig(fh, format=fmt, metadata=meta), binary=True
         )
     finally:
         plt.close(fig)

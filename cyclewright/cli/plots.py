@@ -1,7 +1,12 @@
-"""Plots for comparisons and studies (matplotlib, Agg backend, written atomically).
+"""Plots for comparisons, records, orbits and studies (matplotlib, Agg backend, written atomically).
 
 Every plot's legend names the label of what it draws (exact, proved,
 heuristic); plotted values are floats (log10 of exact integers), for display.
+The format follows the file's extension: PNG, SVG or PDF
+(:func:`cyclewright.cli.files.save_figure`). Axes carry their quantity and
+unit; integer axes get integer ticks; legends sit where they cover no data;
+figures are sized for a single column (about 3.4 inches wide) unless they
+hold several panels.
 """
 
 from __future__ import annotations
@@ -12,7 +17,25 @@ from pathlib import Path
 
 from .files import save_figure
 
-__all__ = ["plot_comparison", "plot_sweep", "log10"]
+__all__ = ["plot_comparison", "plot_sweep", "plot_records", "plot_orbit", "log10"]
+
+#: Single-column width in inches (a two-column paper's column).
+COLUMN_WIDTH = 3.4
+
+
+def _pyplot():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt
+
+
+def _integer_ticks(axis) -> None:
+    from matplotlib.ticker import MaxNLocator
+
+    axis.set_major_locator(MaxNLocator(integer=True))
 
 
 def log10(n) -> float:
@@ -58,11 +81,7 @@ def _critical_series(sweep):
 def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
     """One panel per map on shared axes (necklaces, candidates, integer cycles along the
     critical line), and a last panel with the escape share and the drift of each map."""
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
+    plt = _pyplot()
     profiles = list(comparison.profiles)
     n = len(profiles) + 1
     cols = min(3, n)
@@ -172,3 +191,82 @@ def plot_sweep(s, path: str) -> None:
     ax.legend(fontsize=8)
     fig.tight_layout()
     save_figure(fig, path)
+
+
+def plot_records(result, path: str | os.PathLike) -> Path:
+    """Distributions of a :class:`~cyclewright.cycles.records.RangeRecords`, one row per side.
+
+    Left: the steps to the cycle (delay), counts per value on a log scale
+    (exact), with the drift model's expectation and its spread (heuristic).
+    Right: the stopping times (glide), counts per value (exact) and the
+    random-walk model's counts (heuristic).
+    """
+    plt = _pyplot()
+    sides = list(result.sides.values())
+    fig, axes = plt.subplots(
+        len(sides), 2, figsize=(2 * COLUMN_WIDTH, 2.4 * len(sides)), dpi=150, squeeze=False
+    )
+    for row, sd in zip(axes, sides):
+        ax = row[0]
+        if sd.delays:
+            xs = sorted(sd.delays)
+            ax.bar(xs, [sd.delays[x] for x in xs], width=1.0, color="C0", label="starts (exact)")
+        h = sd.heuristic
+        if "delay_mean" in h:
+            mu, sig = h["delay_mean"], h["delay_sd"]
+            ax.axvline(mu, color="C3", lw=1.2, label="drift model mean (heuristic)")
+            ax.axvspan(mu - sig, mu + sig, color="C3", alpha=0.12, label="model mean ± sd")
+        ax.set_yscale("log")
+        ax.set_xlabel("steps to the cycle minimum (divided count)", fontsize=8)
+        ax.set_ylabel("starts", fontsize=8)
+        ax.set_title(f"{result.map.label}, {sd.side} side: delay", fontsize=8)
+        _integer_ticks(ax.xaxis)
+        ax.tick_params(labelsize=7)
+        ax.legend(fontsize=6, loc="best", frameon=False)
+        ax = row[1]
+        if sd.glides:
+            xs = sorted(sd.glides)
+            ax.bar(xs, [sd.glides[x] for x in xs], width=1.0, color="C2", label="starts (exact)")
+        gp = h.get("glide_p")
+        if gp:
+            n = sum(sd.glides.values()) + sd.no_glide
+            ks = [k for k in sorted(gp) if k <= max(sd.glides, default=1)]
+            ax.plot(ks, [n * gp[k] for k in ks], "k.", ms=3, label="random-walk model (heuristic)")
+        ax.set_yscale("log")
+        ax.set_xlabel("stopping time (first step below the start)", fontsize=8)
+        ax.set_ylabel("starts", fontsize=8)
+        ax.set_title(f"{result.map.label}, {sd.side} side: glide", fontsize=8)
+        _integer_ticks(ax.xaxis)
+        ax.tick_params(labelsize=7)
+        ax.legend(fontsize=6, loc="best", frameon=False)
+    fig.tight_layout()
+    return save_figure(fig, path)
+
+
+def plot_orbit(o, path: str | os.PathLike) -> Path:
+    """One orbit (:class:`~cyclewright.cycles.orbit.Orbit`): |value| against the step, log scale.
+
+    Steps on residue 1 (odd steps of an ``ax+b`` map; for other divisors, the
+    steps off residue 0) are marked; the cycle, when found, is shaded.
+    """
+    plt = _pyplot()
+    vals = list(o.values)
+    d = o.map.divisor
+    fig, ax = plt.subplots(figsize=(COLUMN_WIDTH, 2.4), dpi=150)
+    xs = list(range(len(vals)))
+    ys = [float(abs(v)) if v and abs(v).bit_length() < 1000 else float("nan") for v in vals]
+    ax.plot(xs, ys, color="C0", lw=0.9, label="|value| (exact)")
+    marked = [i for i, v in enumerate(vals[:-1]) if (v % d == 1 if d == 2 else v % d != 0)]
+    what = "odd step" if d == 2 else "step off residue 0"
+    ax.plot(marked, [ys[i] for i in marked], "o", ms=2.5, color="C3", label=f"{what} taken here")
+    if o.cycle and o.tail is not None:
+        ax.axvspan(o.tail, len(vals) - 1, color="0.85", label="on the cycle")
+    ax.set_yscale("log")
+    ax.set_xlabel("step", fontsize=8)
+    ax.set_ylabel("|value|", fontsize=8)
+    ax.set_title(f"{o.map.label}: orbit of {o.start} ({o.status})", fontsize=8)
+    _integer_ticks(ax.xaxis)
+    ax.tick_params(labelsize=7)
+    ax.legend(fontsize=6, loc="best", frameon=False)
+    fig.tight_layout()
+    return save_figure(fig, path)

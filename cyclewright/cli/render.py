@@ -2,6 +2,9 @@
 
 Conventions (shared by every command)
 -------------------------------------
+- LaTeX (``--latex``): a booktabs ``tabular`` (:func:`latex_table`), numbers
+  in math mode, integers of five or more digits grouped by thin spaces, the
+  label of each figure in a column of its own.
 - JSON: one document on stdout; integers stay JSON integers (any size);
   rationals become ``"p/q"`` strings (``"5"`` when integral); floats only
   where a value is a rate or a plot coordinate.
@@ -30,6 +33,10 @@ __all__ = [
     "make_table",
     "short",
     "write_csv",
+    "csv_text",
+    "tex_escape",
+    "tex_number",
+    "latex_table",
 ]
 
 
@@ -182,3 +189,122 @@ def csv_text(columns: Sequence[str], rows: Iterable[Sequence]) -> str:
     buf = io.StringIO()
     write_csv(buf, columns, rows)
     return buf.getvalue()
+
+
+# --------------------------------------------------------------------------- LaTeX
+_TEX_SPECIAL = {
+    "\\": r"\textbackslash{}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "{": r"\{",
+    "}": r"\}",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+}
+
+
+def tex_escape(text: str) -> str:
+    """Text with LaTeX's special characters escaped.
+
+    >>> tex_escape("3x+1 & 50% of n_1")
+    '3x+1 \\\\& 50\\\\% of n\\\\_1'
+    """
+    return "".join(_TEX_SPECIAL.get(c, c) for c in str(text))
+
+
+def tex_number(value) -> str:
+    """A number in math mode; integers of five or more digits grouped by thin spaces.
+
+    >>> tex_number(56991483520)
+    '$56\\\\,991\\\\,483\\\\,520$'
+    >>> tex_number(-1234), tex_number(Fraction(39889, 1000)), tex_number(None)
+    ('$-1234$', '$\\\\frac{39889}{1000}$', '--')
+    >>> tex_number(0.5)
+    '$0.5$'
+    """
+    if value is None:
+        return "--"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, Fraction):
+        if value.denominator == 1:
+            return tex_number(value.numerator)
+        sign = "-" if value < 0 else ""
+        return f"${sign}\\frac{{{abs(value.numerator)}}}{{{value.denominator}}}$"
+    if isinstance(value, float):
+        return f"${value:.6g}$" if math.isfinite(value) else "--"
+    if hasattr(value, "item") and not isinstance(value, int):  # numpy scalars
+        return tex_number(value.item())
+    if isinstance(value, int) or type(value).__name__ == "mpz":
+        text = str(int(value))
+        sign, digits = ("-", text[1:]) if text.startswith("-") else ("", text)
+        if len(digits) >= 5:
+            groups = []
+            while digits:
+                groups.append(digits[-3:])
+                digits = digits[:-3]
+            digits = r"\,".join(reversed(groups))
+        return f"${sign}{digits}$"
+    return tex_escape(str(value))
+
+
+def latex_table(
+    columns: Sequence[str],
+    rows: Iterable[Sequence],
+    *,
+    caption: str | None = None,
+    label: str | None = None,
+    notes: Sequence[str] = (),
+) -> str:
+    """A booktabs ``tabular`` (in a ``table`` float when a caption or label is given).
+
+    Numbers are set in math mode (:func:`tex_number`), text is escaped, numeric
+    columns are right-aligned. Each figure's kind (exact, certified, proved,
+    heuristic) belongs in a column of its own; ``notes`` are printed under the
+    rule (e.g. a caution for heuristic figures). Needs ``\\usepackage{booktabs}``.
+
+    Examples
+    --------
+    >>> print(latex_table(["start", "steps", "label"], [[27, 111, "exact"]]))
+    \\begin{tabular}{rrl}
+    \\toprule
+    start & steps & label \\\\
+    \\midrule
+    $27$ & $111$ & exact \\\\
+    \\bottomrule
+    \\end{tabular}
+    """
+    rows = [list(r) for r in rows]
+
+    def numeric(v) -> bool:
+        return (isinstance(v, (int, float, Fraction)) and not isinstance(v, bool)) or (
+            type(v).__name__ == "mpz"
+        )
+
+    align = []
+    for j in range(len(columns)):
+        vals = [r[j] for r in rows if j < len(r) and r[j] is not None]
+        align.append("r" if vals and all(numeric(v) for v in vals) else "l")
+    lines = [f"\\begin{{tabular}}{{{''.join(align)}}}", r"\toprule"]
+    lines.append(" & ".join(tex_escape(c) for c in columns) + r" \\")
+    lines.append(r"\midrule")
+    for r in rows:
+        lines.append(" & ".join(tex_number(v) for v in r) + r" \\")
+    lines.append(r"\bottomrule")
+    for n in notes:
+        lines.append(
+            f"\\multicolumn{{{len(columns)}}}{{p{{0.9\\linewidth}}}}{{\\footnotesize {tex_escape(n)}}} \\\\"
+        )
+    lines.append(r"\end{tabular}")
+    body = "\n".join(lines)
+    if caption is None and label is None:
+        return body
+    head = ["\\begin{table}", "\\centering"]
+    if caption:
+        head.append(f"\\caption{{{tex_escape(caption)}}}")
+    if label:
+        head.append(f"\\label{{{label}}}")
+    return "\n".join(head + [body, "\\end{table}"])

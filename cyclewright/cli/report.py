@@ -3,8 +3,9 @@
 Inside
 ------
 - :class:`Table` -- a titled table whose columns carry figure labels
-  (``exact``, ``certified``, ``proved``, ``heuristic``); it is written as CSV
-  and JSON beside the report and shown in the Markdown with a link to both.
+  (``exact``, ``certified``, ``proved``, ``heuristic``); it is written as CSV,
+  JSON and LaTeX (booktabs) beside the report and shown in the Markdown with
+  links to them.
 - :class:`Figure` -- a PNG written by a plot function, with a caption.
 - :class:`Section` -- text, tables and figures under one heading.
 - :class:`Report` -- sections plus the standing caution about heuristic
@@ -74,6 +75,21 @@ class Table:
     def csv(self) -> str:
         return csv_text(self.header_cells(), self.rows)
 
+    def latex(self) -> str:
+        """The table as a booktabs ``tabular`` in a ``table`` float (labels in the header)."""
+        from .render import latex_table
+
+        return (
+            latex_table(
+                self.header_cells(),
+                self.rows,
+                caption=self.title,
+                label=f"tab:{self.name}",
+                notes=[self.note] if self.note else (),
+            )
+            + "\n"
+        )
+
     def json(self) -> str:
         return json.dumps(jsonable(self.to_dict()), indent=2, sort_keys=False) + "\n"
 
@@ -98,7 +114,8 @@ class Table:
         extra = []
         if link_stem:
             extra.append(
-                f"Data: [{link_stem}.csv]({link_stem}.csv), [{link_stem}.json]({link_stem}.json)."
+                f"Data: [{link_stem}.csv]({link_stem}.csv), [{link_stem}.json]({link_stem}.json); "
+                f"LaTeX: [{link_stem}.tex]({link_stem}.tex)."
             )
         if self.note:
             extra.append(self.note)
@@ -197,7 +214,7 @@ class Report:
             if t.name in seen:
                 raise ValueError(f"two tables share the file name {t.name!r}")
             seen.add(t.name)
-            for ext, text in (("csv", t.csv()), ("json", t.json())):
+            for ext, text in (("csv", t.csv()), ("json", t.json()), ("tex", t.latex())):
                 p = out / f"{t.name}.{ext}"
                 p.write_text(text)
                 written.append(p)

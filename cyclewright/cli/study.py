@@ -3,8 +3,8 @@
 Inside
 ------
 - :func:`run_study` -- run a validated :class:`~cli.studyfile.Study` and write
-  ``report.md``, ``report.html``, the PNG plots, CSV and JSON for every
-  table, census certificates and ``study.json`` (versions and parameters)
+  ``report.md``, ``report.html``, the PNG plots, CSV, JSON and LaTeX for
+  every table, census certificates and ``study.json`` (versions and parameters)
   into the output directory. The scan stores live in ``DIR/stores/`` (one
   per map definition), so a re-run reuses them and writes identical data
   files (no timings or dates go into data files).
@@ -282,6 +282,94 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     return sec
 
 
+def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
+    from cyclewright.cycles.records import KIND_TITLES, records
+
+    from .plots import plot_records
+
+    p = spec.params
+    sec = Section(
+        f"Records over the starts {p['from']}..{p['to']} ({p['side']}, step cap {p['max_steps']})"
+    )
+    rows, brows = [], []
+    for m in spec.maps:
+        ctx.say(f"records {m.label}")
+        r = records(
+            m,
+            p["to"],
+            start=p["from"],
+            side=p["side"],
+            max_steps=p["max_steps"],
+            workers=ctx.workers,
+        )
+        for row in r.summary_rows():
+            rows.append(
+                [
+                    m.label,
+                    row["side"],
+                    KIND_TITLES[row["kind"]],
+                    row["holder"],
+                    row["value"],
+                    row["records"],
+                    row["mean"],
+                    row["model_mean"],
+                    row["unresolved"],
+                ]
+            )
+        for sd in r.sides.values():
+            for cmin, n in sd.basins.items():
+                brows.append([m.label, sd.side, cmin, n])
+        if r.unresolved:
+            sec.cautions.append(f"{m.label}: {r.caution}")
+        if p["plot"]:
+            png = ctx.out / f"{ctx.name('records-plot', m.label)}.png"
+            plot_records(r, png)
+            sec.figures.append(
+                Figure(
+                    png,
+                    f"{m.label}: steps to the cycle and stopping times over "
+                    f"{p['from']}..{p['to']} (counts exact; model heuristic)",
+                )
+            )
+    sec.tables.append(
+        Table(
+            ctx.name("records"),
+            "Record holders and mean step counts",
+            [
+                "map",
+                "side",
+                "record of",
+                "holder",
+                "value",
+                "records",
+                "mean",
+                "model mean",
+                "unresolved",
+            ],
+            rows,
+            {
+                "holder": "exact",
+                "value": "exact",
+                "mean": "exact",
+                "model mean": "heuristic",
+                "unresolved": "exact",
+            },
+            note="Means and records over resolved starts; model means from the drift "
+            "and random-walk model.",
+        )
+    )
+    sec.tables.append(
+        Table(
+            ctx.name("records-basins"),
+            "Basin sizes",
+            ["map", "side", "cycle minimum", "starts in basin"],
+            brows,
+            {"starts in basin": "exact"},
+        )
+    )
+    return sec
+
+
 ANALYSES: dict[str, Callable[[StudyContext, AnalysisSpec], Section]] = {
     "count": _count,
     "sweep": _sweep,
@@ -290,6 +378,7 @@ ANALYSES: dict[str, Callable[[StudyContext, AnalysisSpec], Section]] = {
     "floor": _floor,
     "compare": _compare,
     "graph": _graph,
+    "records": _records,
 }
 
 

@@ -147,6 +147,13 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
         "plot": (_bool, True),
     },
+    "records": {
+        "to": (_int(1, 2**62), 10**5),
+        "from": (_int(1, 2**62), 1),
+        "side": (SIDE, "positive"),
+        "max_steps": (_int(1, 10**6), 1000),
+        "plot": (_bool, True),
+    },
     "graph": {
         "to": (_int(1, 10**6), 200),
         "side": (SIDE, DEFAULT_SIDE),

@@ -2,7 +2,8 @@
 
 Inside
 ------
-- :func:`compare` -- one :class:`MapProfile` per map: drift, critical ratio,
+- :func:`compare` -- one :class:`MapProfile` per map: drift, critical ratio, the
+  delay record over the scanned range (:mod:`cyclewright.cycles.records`),
   necklace growth rate, the certified census up to a length on both sides,
   the scan up to ``N`` (share dropping, share unresolved, cycles met, largest
   excursion), the floor given ``N`` (when the scan verified ``N``), and the
@@ -89,6 +90,9 @@ ROW_COLUMNS = (
     "largest_peak",
     "largest_peak_start",
     "peak_walk_cut",
+    "delay_record_start",
+    "delay_record",
+    "delay_record_unresolved",
     "floor_positive_length",
     "floor_negative_length",
     "x",
@@ -433,6 +437,11 @@ class MapProfile:
             "largest_peak_start": top.peak_start if top else None,
             "peak_walk_cut": cut,
         }
+        rec = self.extras.get("records")
+        holder = rec.sides["positive"].holder("delay") if rec is not None else None
+        row["delay_record_start"] = holder.start if holder else None
+        row["delay_record"] = holder.value if holder else None
+        row["delay_record_unresolved"] = rec.sides["positive"].unresolved if rec else None
         for side in ("positive", "negative"):
             f = self.floors.get(side)
             row[f"floor_{side}_length"] = f.least_length if f is not None and f.possible else None
@@ -469,6 +478,7 @@ class MapProfile:
             "cycles_met": EXACT.value,
             # a cut walk leaves only a lower bound, established exactly
             "largest_peak": PROVED.value if cut else EXACT.value,
+            "delay_record": EXACT.value,
             "floor_positive_length": PROVED.value,
             "floor_negative_length": PROVED.value,
             "necklaces_at_x": EXACT.value,
@@ -602,6 +612,7 @@ def compare(
     see the module docstring.
     """
     from .floors import floor
+    from .records import records
     from .scan.run import scan
 
     if not maps_:
@@ -644,6 +655,8 @@ def compare(
             except InputError as e:
                 floors[side] = None
                 fnotes[side] = str(e)
+        say(f"{m.label}: records over 1..{to}")
+        recs = records(m, to, side="positive", max_steps=max_steps, workers=workers)
         tc, tnote = None, ""
         try:
             if m.divisor == 2:
@@ -672,7 +685,7 @@ def compare(
                 tc,
                 tnote,
                 preds,
-                {"met": met, "scan_counts": scan_counts},
+                {"met": met, "scan_counts": scan_counts, "records": recs},
             )
         )
     report(progress, "compare", len(maps_), len(maps_), "maps")

@@ -57,6 +57,7 @@ References
 from __future__ import annotations
 
 import functools
+import itertools
 import math
 import time
 from dataclasses import dataclass, field
@@ -103,6 +104,7 @@ _TABLE_EXPANDING = 2**10
 _REC_BUF = 512
 _BUF = 4096
 _CYC_BUF = 256
+_CACHE = 2**17  # results of hard starts kept per chunk (bounded: memory stays flat)
 
 
 # --------------------------------------------------------------------------- plain definition
@@ -616,11 +618,17 @@ def _odd_steps(mm: Map, s: int, n: int) -> int:
     return odd
 
 
-def _exact_one(mm: Map, s: int, cap: int, tab, size: int) -> tuple | None:
+def _exact_one(
+    mm: Map, s: int, cap: int, tab, size: int, cache: dict | None = None
+) -> tuple | None:
     """The exact continuation of one start (Python integers), with the table of small starts.
 
     Returns ``(delay, odd, glide, full_glide, peak, full_peak, cycle_min)`` or None
     (unresolved); ``glide`` is -1 when there is none. Mirrors the compiled walk.
+    ``cache`` maps earlier starts of the same chunk to their results (None:
+    unresolved); it is consulted at the glide point ``0 < v < s`` when ``v`` is
+    past the table, which is exact for the same reason as the table (every
+    earlier value is at least ``s > v``).
     """
     from .records_kernel import T_UNRESOLVED
 
@@ -631,19 +639,20 @@ def _exact_one(mm: Map, s: int, cap: int, tab, size: int) -> tuple | None:
     def bigger(x, y):
         return abs(x) > abs(y)
 
-    budget = 3 * cap + 3
+    # a resolved start has mu + lam <= delay + lam <= 2C: 2C + 1 distinct values prove otherwise
+    budget = 2 * cap + 1
     bound = min(s, size)
     A = [a for a, _ in branches]
     B = [b for _, b in branches]
     v = s
     glide = -1
-    tort = s
-    power = lam = 1
+    seen = {s: 0}
+    lam = 0
     i = 0
     positive = use_table = True
     found = False
     hit = None
-    # phase 1: the plain walk with Brent's detection (peaks and odd steps come later)
+    # phase 1: the plain walk, every value kept until a repeat (peaks and odd steps come later)
     while i < budget:
         r = v % d
         v = (A[r] * v + B[r]) // d
@@ -652,6 +661,12 @@ def _exact_one(mm: Map, s: int, cap: int, tab, size: int) -> tuple | None:
             positive = False
         if glide < 0 and abs(v) < s:
             glide = i
+            if cache is not None and positive and v >= bound and v in cache:
+                got = cache[v]
+                if got is None or i + got[0] > cap:
+                    return None
+                hit = (v, got)
+                break
         if use_table and positive and v < bound:
             e = int(tab[v, 0])
             if e == T_UNRESOLVED:
@@ -659,17 +674,15 @@ def _exact_one(mm: Map, s: int, cap: int, tab, size: int) -> tuple | None:
             if e >= 0:
                 if i + e > cap:
                     return None
-                hit = (v, e)
+                hit = (v, (e, int(tab[v, 1]), int(tab[v, 2]), int(tab[v, 3]), int(tab[v, 4])))
                 break
             use_table = False
-        if v == tort:
+        j = seen.get(v)
+        if j is not None:
+            lam = i - j
             found = True
             break
-        if power == lam:
-            tort = v
-            power *= 2
-            lam = 0
-        lam += 1
+        seen[v] = i
 
     def path(stop_at, steps):
         """Walk from s: peaks and odd steps (and glide's odd steps) up to a value or a count."""
@@ -698,18 +711,17 @@ def _exact_one(mm: Map, s: int, cap: int, tab, size: int) -> tuple | None:
 
     uglide = -1
     if hit is not None:
-        v, e = hit
+        v, (e, o2, p2, u2, c2) = hit
         n, odd, peak, upk, godd = path(None, i)
         if glide >= 0:
             uglide = glide + godd
-        p2, u2 = int(tab[v, 2]), int(tab[v, 3])
         if bigger(p2, peak):
             peak = p2
         if bigger(u2, upk):
             upk = u2
         if bigger(peak, upk):
             upk = peak
-        return (i + e, odd + int(tab[v, 1]), glide, uglide, peak, upk, int(tab[v, 4]))
+        return (i + e, odd + o2, glide, uglide, peak, upk, c2)
     if not found or lam > cap:
         return None
     cmin = w = v
@@ -755,10 +767,13 @@ def _run_chunk(task) -> _ChunkResult:
     acc = _Accumulator(cap, undiv)
     hard: list[int] = []
     unres: list[int] = []
+    unres_all: list[int] = []
     if km is not None:
         pos = lo
         while pos <= hi:
             pos = acc.call(km, mm, pos, hi, tab, size, False)
+            if len(unres_all) < _CACHE:
+                unres_all.extend(acc.unres[: int(acc.nunres[0])].tolist())
             acc.drain(hard, unres)
     else:
         hard = list(range(lo, hi + 1))
@@ -768,9 +783,17 @@ def _run_chunk(task) -> _ChunkResult:
     extra_unres = acc.unresolved_extra
     # exact continuation of the hard starts
     if hard:
+        hard.sort()
         open_mask = _open_filter(km, hard, cap)
+        cache = _cache_for(mm, cap)
+        for s in unres_all:
+            cache[s] = None
         for s, is_open in zip(hard, open_mask):
-            out = None if is_open else _exact_one(mm, s, cap, tab, size if km else 1)
+            out = None if is_open else _exact_one(mm, s, cap, tab, size if km else 1, cache)
+            cache[s] = None if out is None else (out[0], out[1], out[4], out[5], out[6])
+            if len(cache) > _CACHE:
+                for key in list(itertools.islice(cache, _CACHE // 4)):
+                    del cache[key]
             if out is None:
                 sums[1] += 1
                 if len(unres) < LISTED_UNRESOLVED:
@@ -811,6 +834,19 @@ def _run_chunk(task) -> _ChunkResult:
         unres,
         sums[1],
     )
+
+
+_CACHES: dict = {}
+
+
+def _cache_for(mm: Map, cap: int) -> dict:
+    """This process's cache of hard starts' results for one side map and cap (bounded)."""
+    key = (mm.divisor, tuple(tuple(b) for b in mm.branches), cap)
+    if key not in _CACHES:
+        if len(_CACHES) >= 4:
+            _CACHES.clear()
+        _CACHES[key] = {}
+    return _CACHES[key]
 
 
 def _bump(arr: np.ndarray, k: int) -> None:

@@ -13,7 +13,7 @@ from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
-from ..files import check_output
+from ..files import check_figure_path, check_output
 from ..options import (
     all_offsets_option,
     csv_option,
@@ -113,7 +113,7 @@ def compare_cmd(
         raise BadInput("--odd must be at least 1")
     given = {"max_length": max_length, "to": to, "odd": odd}
     check_output(csv_path, "--csv")
-    check_output(plot_path, "--plot")
+    check_figure_path(plot_path, "--plot")
     ms = resolve_maps(map_specs, offsets, map_files, all_offsets)
     with progress_display() as show:
         cmp = compare(
@@ -152,6 +152,7 @@ def compare_cmd(
                 "minima",
                 "unresolved <= N [rounded]",
                 "largest peak [exact, or lower bound]",
+                "delay record 1..N [exact]",
                 "floor +/- [proved]",
                 "necklaces / candidates / heuristic at x",
             ],
@@ -166,6 +167,16 @@ def compare_cmd(
                     ", ".join(map(str, r["census_minima"] or [])) or "-",
                     f"{r['unresolved_share']:.4f}" if r["unresolved_share"] is not None else "-",
                     short(r["largest_peak"]),
+                    (
+                        f"{r['delay_record']} at {r['delay_record_start']}"
+                        + (
+                            f" ({r['delay_record_unresolved']} unresolved)"
+                            if r["delay_record_unresolved"]
+                            else ""
+                        )
+                        if r["delay_record"] is not None
+                        else "-"
+                    ),
                     f"{short(r['floor_positive_length'])} / {short(r['floor_negative_length'])}",
                     f"{short(r['necklaces_at_x'], 12)} / {short(r['candidates_at_x'])} / {short(r['heuristic_at_x'])}",
                 ]

@@ -7,13 +7,16 @@ import click
 from cyclewright.cycles.orbit import orbit
 
 from ..errors import BadInput
+from ..files import check_figure_path
 from ..options import (
     ceiling_option,
+    force_option,
     json_option,
     map_argument,
     maps_option,
     max_steps_option,
     parse_int,
+    plot_option,
     resolve_map,
     show_option,
 )
@@ -22,17 +25,21 @@ from ..render import emit_json, short, stdout_console
 
 @click.command(
     "orbit",
-    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 10^30",
+    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 10^30\n  cyclewright orbit 3x+1 27 --plot orbit27.pdf",
 )
 @map_argument
 @click.argument("start", metavar="N")
 @max_steps_option
 @ceiling_option
 @show_option
+@plot_option
+@force_option
 @maps_option
 @json_option
-def orbit_cmd(map_spec, start, max_steps, ceiling, show, map_files, as_json) -> None:
-    """Follow N under MAP: stopping time, the cycle entered, peak (exact).
+def orbit_cmd(
+    map_spec, start, max_steps, ceiling, show, plot_path, force, map_files, as_json
+) -> None:
+    """Follow N under MAP: stopping time, the cycle entered, peak (exact); --plot draws it.
 
     For ax+b maps the classic undivided step count and peak are shown too.
     Negative N is allowed (its stopping time compares absolute values).
@@ -44,7 +51,12 @@ def orbit_cmd(map_spec, start, max_steps, ceiling, show, map_files, as_json) -> 
         raise BadInput(
             f"--ceiling {ceil} is below |N| = {abs(n)}: give a larger --ceiling, or 'none'"
         )
+    check_figure_path(plot_path, "--plot", force)
     o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
+    if plot_path:
+        from ..plots import plot_orbit
+
+        plot_orbit(o, plot_path)
     if as_json:
         emit_json(o.to_dict(max_values=None))
         return

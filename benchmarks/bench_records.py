@@ -1,0 +1,139 @@
+"""Speed of ``cyclewright records`` against a plain C loop computing the same 3x+1 records.
+
+Run (from the repository root, after ``make test`` created .venv)::
+
+    .venv/bin/python benchmarks/bench_records.py              # 3x+1 on [1, 10^9]
+    .venv/bin/python benchmarks/bench_records.py --to 10^7    # a quick run
+
+What is measured, in one run on this machine:
+
+1. ``cyclewright records 3x+1 --to N --json`` as a user runs it: a fresh
+   process, wall-clock time including start-up, with the default workers (all
+   cores) and with one worker; peak memory at N and at N/10 (it must not grow
+   with the range). One warm-up run first loads the compiled kernels into
+   numba's cache (the first run on a machine compiles them, about 10 s).
+2. The same records as a plain C loop (``benchmarks/plain_records.c``,
+   compiled here with ``gcc -O2`` into ``benchmarks/_build/``): the classic
+   trajectory of every start followed to 1, one start after the other, one core.
+
+The record holders and values of the two (undivided delay, glide and peak)
+must agree; the script stops otherwise. Figures are measurements (floats);
+the results go to ``benchmarks/_build/bench_records.json``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import platform
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+BUILD = HERE / "_build"
+ROOT = HERE.parent
+
+_WRAPPER = r"""
+import json, resource, subprocess, sys, time
+t0 = time.perf_counter()
+p = subprocess.run(sys.argv[1:], capture_output=True, text=True)
+dt = time.perf_counter() - t0
+rss = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
+print(json.dumps({"seconds": dt, "maxrss_kib": rss, "rc": p.returncode, "out": p.stdout, "err": p.stderr}))
+"""
+
+
+def measured(cmd: list[str]) -> dict:
+    """Run ``cmd`` in a fresh wrapper process: wall time and the largest child's peak RSS."""
+    p = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True)
+    res = json.loads(p.stdout)
+    if res["rc"] != 0:
+        raise SystemExit(f"command failed: {' '.join(cmd)}\n{res['err']}")
+    return res
+
+
+def build_c() -> Path:
+    BUILD.mkdir(exist_ok=True)
+    exe = BUILD / "plain_records"
+    cc = shutil.which("gcc")
+    if cc is None:
+        raise SystemExit("gcc is needed for the plain C loop")
+    subprocess.run([cc, "-O2", "-o", str(exe), str(HERE / "plain_records.c")], check=True)
+    return exe
+
+
+def plain_c(exe: Path, lo: int, hi: int) -> dict:
+    out = subprocess.run(
+        [str(exe), str(lo), str(hi)], capture_output=True, text=True, check=True
+    ).stdout.split("\n")
+    recs: dict[str, list] = {"full_delay": [], "full_glide": [], "full_peak": []}
+    for line in out[1:]:
+        if line.strip():
+            kind, s, v = line.split()
+            recs[kind].append([int(s), int(v)])
+    secs = float(out[0])
+    return {"seconds": secs, "rate": (hi - lo + 1) / secs, "records": recs}
+
+
+def parse_n(text: str) -> int:
+    text = text.replace("_", "")
+    if "^" in text:
+        b, e = text.split("^")
+        return int(b) ** int(e)
+    return int(float(text)) if "e" in text else int(text)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--to", default="10^9", help="range end N (default 10^9)")
+    args = ap.parse_args()
+    n = parse_n(args.to)
+    cli = [sys.executable, "-m", "cyclewright"]
+    env_note = f"{platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()}"
+    print(f"machine: {env_note}")
+    # warm-up: compile or load the kernels
+    measured([*cli, "records", "3x+1", "--to", "1000", "--json"])
+    ours = measured([*cli, "records", "3x+1", "--to", str(n), "--json"])
+    ours1 = measured([*cli, "records", "3x+1", "--to", str(n), "--json", "--workers", "1"])
+    small = measured([*cli, "records", "3x+1", "--to", str(max(n // 10, 1)), "--json"])
+    doc = json.loads(ours["out"])
+    got = {
+        k: [[r["start"], r["value"]] for r in doc["sides"]["positive"]["records"][k]]
+        for k in ("full_delay", "full_glide", "full_peak")
+    }
+    exe = build_c()
+    c = plain_c(exe, 1, n)
+    if got != c["records"]:
+        raise SystemExit("the record holders of cyclewright and of the C loop differ")
+    res = {
+        "machine": env_note,
+        "to": n,
+        "cyclewright_seconds": ours["seconds"],
+        "cyclewright_one_worker_seconds": ours1["seconds"],
+        "cyclewright_peak_rss_kib": ours["maxrss_kib"],
+        "cyclewright_peak_rss_kib_at_n_over_10": small["maxrss_kib"],
+        "plain_c_seconds": c["seconds"],
+        "ratio_c_over_cyclewright": c["seconds"] / ours["seconds"],
+        "ratio_c_over_cyclewright_one_worker": c["seconds"] / ours1["seconds"],
+        "records_agree": True,
+    }
+    BUILD.mkdir(exist_ok=True)
+    (BUILD / "bench_records.json").write_text(json.dumps(res, indent=2) + "\n")
+    print(f"3x+1 records on [1, {n}] (the same record holders from both):")
+    print(
+        f"  cyclewright (all cores)   {ours['seconds']:9.2f} s wall, peak {ours['maxrss_kib'] / 1024:.0f} MiB"
+    )
+    print(f"  cyclewright (1 worker)    {ours1['seconds']:9.2f} s wall")
+    print(f"  plain C loop (1 core)     {c['seconds']:9.2f} s")
+    print(
+        f"  C / cyclewright           {res['ratio_c_over_cyclewright']:9.2f}x (all cores), "
+        f"{res['ratio_c_over_cyclewright_one_worker']:.2f}x (1 worker)"
+    )
+    print(f"  peak memory at N/10       {small['maxrss_kib'] / 1024:.0f} MiB")
+
+
+if __name__ == "__main__":
+    main()

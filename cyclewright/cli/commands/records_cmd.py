@@ -1,0 +1,306 @@
+"""``cyclewright records MAP --to N``: record holders, distributions and basins over a range."""
+
+from __future__ import annotations
+
+import sys
+
+import click
+
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.records import DEFAULT_MAX_STEPS, KIND_TITLES, records
+
+from ..errors import BadInput
+from ..files import atomic_write, check_figure_path, check_output
+from ..options import json_option, maps_option, parse_int, resolve_map
+from ..render import emit_json, latex_table, make_table, short, stdout_console, write_csv
+
+_EPILOG = """\b
+Examples:
+  cyclewright records 3x+1 --to 10^6
+  cyclewright records 3x+5 --to 10^5 --side both --plot 3x5.pdf
+  cyclewright records 5x+1 --to 10^4 --max-steps 500 --json
+  cyclewright records 3x+1 --to 10^7 --csv rec.csv --latex
+\b
+Every start s of the range is followed to the minimum of the cycle it enters.
+delay: steps to that minimum; glide: first step below |s|; peak: largest
+|value| on the way. For ax+b maps the classic undivided counts are shown too
+(full = steps + odd steps; the peak also sees a*n+b before each halving). A
+record holder beats every start of smaller |s| in the range. Starts that do
+not close a cycle within --max-steps are unresolved: counted, listed, and
+left out of every record and distribution. Model means are heuristic.
+"""
+
+
+@click.command("records", epilog=_EPILOG)
+@click.argument("map_spec", metavar="MAP")
+@click.option("--to", "to_text", required=True, metavar="N", help="Largest |start| (e.g. 10^6).")
+@click.option(
+    "--from", "from_text", default="1", show_default=True, metavar="M", help="Smallest |start|."
+)
+@click.option(
+    "--side",
+    type=click.Choice(["positive", "negative", "both"]),
+    default="positive",
+    show_default=True,
+    help="Positive starts, negative starts (-N .. -M), or both.",
+)
+@click.option(
+    "--max-steps",
+    type=int,
+    default=DEFAULT_MAX_STEPS,
+    show_default=True,
+    help="Step cap per start (a start must close its cycle within it).",
+)
+@click.option(
+    "--workers", type=int, default=None, help="Local worker processes [default: all cores]."
+)
+@click.option(
+    "--executor",
+    type=click.Choice(["local", "dask"]),
+    default="local",
+    show_default=True,
+    help="Where chunks run.",
+)
+@click.option(
+    "--scheduler", default=None, metavar="ADDR", help="Dask scheduler (with --executor dask)."
+)
+@click.option("--chunk-size", type=int, default=None, help="Starts per chunk (advanced).")
+@click.option(
+    "--csv",
+    "csv_path",
+    default=None,
+    metavar="FILE",
+    help="Write every figure as CSV ('-': stdout).",
+)
+@click.option(
+    "--plot",
+    "plot_path",
+    default=None,
+    metavar="FILE",
+    help="Distributions plot (.png, .svg or .pdf).",
+)
+@click.option("--latex", "as_latex", is_flag=True, help="Print the tables as LaTeX (booktabs).")
+@click.option(
+    "--show", "show_n", default=12, show_default=True, help="Record holders listed per kind."
+)
+@click.option("--force", is_flag=True, help="Replace existing output files.")
+@maps_option
+@json_option
+def records_cmd(
+    map_spec,
+    to_text,
+    from_text,
+    side,
+    max_steps,
+    workers,
+    executor,
+    scheduler,
+    chunk_size,
+    csv_path,
+    plot_path,
+    as_latex,
+    show_n,
+    force,
+    map_files,
+    as_json,
+) -> None:
+    """Record holders (delay, glide, peak), exact distributions and basin sizes of MAP over [M, N]."""
+    m = resolve_map(map_spec, map_files)
+    to = parse_int(to_text, "--to", minimum=1)
+    start = parse_int(from_text, "--from", minimum=1)
+    if workers is not None and workers < 1:
+        raise BadInput(f"--workers must be at least 1, got {workers}")
+    if as_json and as_latex:
+        raise BadInput("--json and --latex exclude each other")
+    if csv_path == "-" and (as_json or as_latex):
+        raise BadInput("--csv - writes to stdout; give --csv a file name with --json or --latex")
+    if csv_path != "-":
+        check_output(csv_path, "--csv", force)
+    check_figure_path(plot_path, "--plot", force)
+    try:
+        r = records(
+            m,
+            to,
+            start=start,
+            side=side,
+            max_steps=max_steps,
+            workers=workers,
+            executor=executor,
+            scheduler=scheduler,
+            chunk_size=chunk_size,
+        )
+    except InputError as exc:
+        raise BadInput(str(exc)) from None
+    # outputs only after the whole computation succeeded
+    if csv_path:
+        cols, rows = csv_rows(r)
+        if csv_path == "-":
+            write_csv(sys.stdout, cols, rows)
+        else:
+            atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
+    if plot_path:
+        from ..plots import plot_records
+
+        plot_records(r, plot_path)
+    if csv_path == "-":
+        return
+    if as_json:
+        emit_json(r.to_dict())
+        return
+    if as_latex:
+        print(latex_text(r, show_n))
+        return
+    _print(r, show_n)
+
+
+def csv_rows(r):
+    """Long-format rows: side, table, kind, key, value, label."""
+    cols = ["side", "table", "kind", "key", "value", "label"]
+    rows = []
+    for sd in r.sides.values():
+        for k in r.kinds:
+            for rec in sd.records.get(k, ()):
+                rows.append([sd.side, "record", k, rec.start, rec.value, "exact"])
+        for name, dist in (
+            ("delay", sd.delays),
+            ("full_delay", sd.full_delays),
+            ("glide", sd.glides),
+            ("full_glide", sd.full_glides),
+        ):
+            if name.startswith("full") and not r.undivided:
+                continue
+            for x, n in sorted(dist.items()):
+                rows.append([sd.side, "distribution", name, x, n, "exact"])
+        rows.append([sd.side, "distribution", "glide", "none", sd.no_glide, "exact"])
+        for cmin, n in sd.basins.items():
+            rows.append([sd.side, "basin", "cycle_minimum", cmin, n, "exact"])
+        rows.append([sd.side, "unresolved", "count", "", sd.unresolved, "exact"])
+        for s in sd.unresolved_first:
+            rows.append([sd.side, "unresolved", "start", s, "", "exact"])
+        for key in ("delay_mean", "delay_sd", "full_delay_mean", "glide_mean", "full_glide_mean"):
+            if key in sd.heuristic:
+                rows.append([sd.side, "model", key, "", sd.heuristic[key], "heuristic"])
+    return cols, rows
+
+
+_HEAD = [
+    "side",
+    "record of",
+    "holder",
+    "value",
+    "records",
+    "mean (exact)",
+    "model mean",
+    "unresolved",
+]
+
+
+def _summary(r):
+    rows = []
+    for row in r.summary_rows():
+        rows.append(
+            [
+                row["side"],
+                KIND_TITLES[row["kind"]],
+                row["holder"],
+                row["value"],
+                row["records"],
+                None if row["mean"] is None else round(float(row["mean"]), 3),
+                None if row["model_mean"] is None else round(row["model_mean"], 2),
+                row["unresolved"],
+            ]
+        )
+    return rows
+
+
+def latex_text(r, show_n: int) -> str:
+    """The summary, record-holder and basin tables as LaTeX."""
+    note = [r.caution]
+    parts = [
+        latex_table(
+            ["side", "record of", "holder", "value", "records", "mean", "model mean", "labels"],
+            [row[:7] + ["exact; model heuristic"] for row in _summary(r)],
+            caption=f"{r.map.label}: records over starts {r.start} to {r.to} "
+            f"(step cap {r.max_steps}; means over resolved starts, rounded)",
+            label=f"tab:records-{_slug(r.map.label)}",
+            notes=note,
+        )
+    ]
+    rows = []
+    for sd in r.sides.values():
+        for k in r.kinds:
+            for rec in list(sd.records.get(k, ()))[-show_n:]:
+                rows.append([sd.side, KIND_TITLES[k], rec.start, rec.value, "exact"])
+    parts.append(
+        latex_table(
+            ["side", "record of", "start", "value", "label"],
+            rows,
+            caption=f"{r.map.label}: the last {show_n} record holders of each kind",
+        )
+    )
+    brows = [
+        [sd.side, cmin, n, "exact"] for sd in r.sides.values() for cmin, n in sd.basins.items()
+    ]
+    parts.append(
+        latex_table(
+            ["side", "cycle minimum", "starts in its basin", "label"],
+            brows,
+            caption=f"{r.map.label}: basin sizes over the range",
+        )
+    )
+    return "\n\n".join(parts)
+
+
+def _slug(text: str) -> str:
+    return "".join(c if c.isalnum() else "-" for c in text).strip("-").lower()
+
+
+def _print(r, show_n: int) -> None:
+    con = stdout_console()
+    m = r.map
+    con.print(
+        f"[bold]{m.label}[/bold] ({m.formula()}), starts {r.start}..{r.to} "
+        f"({' and '.join(r.sides)}), step cap {r.max_steps}: exact"
+        + ("" if not r.unresolved else f" ({r.unresolved:,} unresolved, see below)")
+    )
+    con.print(
+        make_table(
+            "Records (exact; model mean heuristic)",
+            _HEAD,
+            _summary(r),
+            caption="mean: exact over the resolved starts, shown rounded (exact fractions in --json); "
+            "model mean: drift / random-walk model (heuristic)",
+        )
+    )
+    for sd in r.sides.values():
+        rows = []
+        for k in r.kinds:
+            recs = list(sd.records.get(k, ()))
+            shown = recs[-show_n:]
+            rows.append(
+                [
+                    KIND_TITLES[k],
+                    " ".join(f"{short(x.start, 12)}:{short(x.value, 12)}" for x in shown)
+                    + (f" (+{len(recs) - len(shown)} earlier)" if len(recs) > len(shown) else ""),
+                ]
+            )
+        con.print(
+            make_table(
+                f"{sd.side}: record holders (start:value, exact)", ["record of", "holders"], rows
+            )
+        )
+        brows = [[cmin, n, f"{100 * n / sd.starts:.2f}%"] for cmin, n in sd.basins.items()]
+        con.print(
+            make_table(f"{sd.side}: basins (exact)", ["cycle minimum", "starts", "share"], brows)
+        )
+        if sd.unresolved:
+            first = ", ".join(str(x) for x in sd.unresolved_first[:20])
+            con.print(
+                f"{sd.side}: {sd.unresolved:,} starts unresolved within {r.max_steps} steps "
+                f"(left out of the records above); first: {first}"
+            )
+    con.print(f"caution: {r.caution}")
+    con.print(f"{r.seconds:.2f} s (wall-clock measurement)")
+
+
+COMMANDS = [records_cmd]
