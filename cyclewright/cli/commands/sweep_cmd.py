@@ -13,7 +13,7 @@ from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
 from ..errors import BadInput
-from ..files import atomic_write, check_output
+from ..files import atomic_write, check_figure_path, check_output
 from ..options import (
     IntExpr,
     csv_option,
@@ -94,8 +94,7 @@ def sweep_cmd(
         raise BadInput("--json and --csv - both write to stdout; give --csv a file name")
     for path, what in ((csv_path, "--csv"), (plot_path, "--plot")):
         check_output(path, what, force)
-    if plot_path and not plot_path.lower().endswith(".png"):
-        raise BadInput(f"--plot writes PNG: give a file name ending in .png, got {plot_path!r}")
+    check_figure_path(plot_path, "--plot", force)
     if plot_path and side == "both":
         raise BadInput("--plot draws one side; give --side positive or --side negative")
     with progress_display() as show_progress:
