@@ -5,10 +5,10 @@ from __future__ import annotations
 import csv
 import io
 import json
-import tomllib
 from fractions import Fraction
 
 import pytest
+import tomllib
 
 from cyclewright.cli.app import main
 from cyclewright.cli.render import latex_table, tex_number
