@@ -96,6 +96,8 @@ _EXPORTS = {
     "Excursions": "cycles.excursions",
     "compare": "cycles.compare",
     "Comparison": "cycles.compare",
+    "records": "cycles.records",
+    "RangeRecords": "cycles.records",
 }
 
 _SUBPACKAGES = ("maps", "cycles", "cli")

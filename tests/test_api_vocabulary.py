@@ -66,6 +66,9 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "class_word": ((5, 4), {}),
     "jump_table": ((3,), {}),
     "default_store_path": ((), {}),
+    "records": ((300,), {"side": "both", "workers": 1}),
+    "start_figures": ((27,), {}),
+    "glide_model": ((), {}),
 }
 
 # Takes several maps: the first argument is a sequence of maps.

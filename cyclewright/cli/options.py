@@ -20,7 +20,7 @@ Inside
   :func:`limit_option`, :func:`show_option`, :func:`to_option`,
   :func:`from_option`, :func:`workers_option`, :func:`executor_options`,
   :func:`out_option`, :func:`csv_option`, :func:`plot_option`, :func:`force_option`,
-  :func:`maps_option`, :func:`json_option`.
+  :func:`maps_option`, :func:`json_option`, :func:`latex_option`.
 - :func:`resolve_map`, :func:`catalog_for`, :func:`resolve_store`,
   :func:`parse_int`.
 
@@ -80,6 +80,7 @@ __all__ = [
     "force_option",
     "maps_option",
     "json_option",
+    "latex_option",
     "resolve_map",
     "resolve_store",
     "catalog_for",
@@ -459,6 +460,13 @@ json_option = _shared(
     "as_json",
     is_flag=True,
     help="Print one JSON document instead of tables.",
+)
+
+latex_option = _shared(
+    "--latex",
+    "as_latex",
+    is_flag=True,
+    help="Print the tables as LaTeX (booktabs tabular; numbers in math mode, labels as a column).",
 )
 
 

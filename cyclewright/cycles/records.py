@@ -70,7 +70,9 @@ from cyclewright.maps.registry import as_map
 
 from .errors import InputError
 from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION
+from .limits import DEFAULT_MAX_STEPS
 from .progress import ProgressCallback, report
+from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
 
 __all__ = [
     "records",
@@ -79,13 +81,10 @@ __all__ = [
     "Record",
     "glide_model",
     "start_figures",
-    "DEFAULT_MAX_STEPS",
     "LISTED_UNRESOLVED",
     "KINDS",
 ]
 
-#: Default step cap per start.
-DEFAULT_MAX_STEPS = 1000
 #: How many unresolved starts a result lists per side (all are counted).
 LISTED_UNRESOLVED = 1000
 #: The record kinds: divided counts, then the undivided ("full") ones of ax+b maps.
@@ -108,7 +107,7 @@ _CACHE = 2**17  # results of hard starts kept per chunk (bounded: memory stays f
 
 
 # --------------------------------------------------------------------------- plain definition
-def start_figures(m: Map, s: int, max_steps: int = DEFAULT_MAX_STEPS) -> dict | None:
+def start_figures(m: Map | str, s: int, max_steps: int = DEFAULT_MAX_STEPS) -> dict | None:
     """The figures of one start, computed plainly with exact integers (None if unresolved).
 
     Parameters
@@ -134,6 +133,7 @@ def start_figures(m: Map, s: int, max_steps: int = DEFAULT_MAX_STEPS) -> dict | 
     >>> start_figures(maps.get("5x+1"), 7, 100) is None
     True
     """
+    m = as_map(m)
     seen: dict[int, int] = {}
     vals = []
     v = s
@@ -393,7 +393,7 @@ def _log_steps(m: Map) -> list[float]:
     return [math.log(abs(a) / d) for a in m.multipliers]
 
 
-def glide_model(m: Map, max_k: int = 1000, tol: float = 1e-13) -> dict | None:
+def glide_model(m: Map | str, max_k: int = 1000, tol: float = 1e-13) -> dict | None:
     """The random-walk model's stopping-time distribution (heuristic).
 
     Each step multiplies by ``|a_r| / d`` with probability ``1/d``; the model's
@@ -420,7 +420,12 @@ def glide_model(m: Map, max_k: int = 1000, tol: float = 1e-13) -> dict | None:
     >>> g = glide_model(maps.get("3x+1"))
     >>> round(g["p"][1], 3), round(g["p"][2], 3), round(g["mean"], 2)   # Terras 1976: 1/2, 1/4
     (0.5, 0.25, 3.49)
+
+    References
+    ----------
+    Terras 1976 (the density of stopping times); see the module docstring.
     """
+    m = as_map(m)
     if m.drift_ratio() >= 1:
         return None
     d = m.divisor
@@ -893,7 +898,7 @@ def records(
     to: int,
     *,
     start: int = 1,
-    side: str = "positive",
+    side: Side = DEFAULT_SIDE,
     max_steps: int = DEFAULT_MAX_STEPS,
     workers: int | None = 1,
     executor: str = "local",
@@ -949,8 +954,7 @@ def records(
     to = _as_int(to, "to")
     start = _as_int(start, "start")
     max_steps = _as_int(max_steps, "max_steps")
-    if side not in ("positive", "negative", "both"):
-        raise InputError(f"side must be 'positive', 'negative' or 'both', got {side!r}")
+    side = parse_side(side)
     if start < 1:
         raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
     if to < start:
@@ -962,7 +966,7 @@ def records(
     if max_steps > 10**6:
         raise InputError(f"max_steps must be at most 10^6, got {max_steps}")
     t0 = time.perf_counter()
-    sides = ("positive", "negative") if side == "both" else (side,)
+    sides = tuple(sides_of(side))
     csize = chunk_size or _chunk_size(m)
     if csize < 1:
         raise InputError(f"chunk_size must be at least 1, got {csize}")

@@ -7,11 +7,28 @@ import sys
 import click
 
 from cyclewright.cycles.errors import InputError
-from cyclewright.cycles.records import DEFAULT_MAX_STEPS, KIND_TITLES, records
+from cyclewright.cycles.records import KIND_TITLES, records
 
 from ..errors import BadInput
 from ..files import atomic_write, check_figure_path, check_output
-from ..options import json_option, maps_option, parse_int, resolve_map
+from ..options import (
+    csv_option,
+    executor_options,
+    force_option,
+    from_option,
+    json_option,
+    latex_option,
+    map_argument,
+    maps_option,
+    max_steps_option,
+    plot_option,
+    resolve_map,
+    show_option,
+    side_option,
+    to_option,
+    workers_option,
+)
+from ..progress import progress_display
 from ..render import emit_json, latex_table, make_table, short, stdout_console, write_csv
 
 _EPILOG = """\b
@@ -32,84 +49,41 @@ left out of every record and distribution. Model means are heuristic.
 
 
 @click.command("records", epilog=_EPILOG)
-@click.argument("map_spec", metavar="MAP")
-@click.option("--to", "to_text", required=True, metavar="N", help="Largest |start| (e.g. 10^6).")
-@click.option(
-    "--from", "from_text", default="1", show_default=True, metavar="M", help="Smallest |start|."
-)
-@click.option(
-    "--side",
-    type=click.Choice(["positive", "negative", "both"]),
-    default="positive",
-    show_default=True,
-    help="Positive starts, negative starts (-N .. -M), or both.",
-)
-@click.option(
-    "--max-steps",
-    type=int,
-    default=DEFAULT_MAX_STEPS,
-    show_default=True,
-    help="Step cap per start (a start must close its cycle within it).",
-)
-@click.option(
-    "--workers", type=int, default=None, help="Local worker processes [default: all cores]."
-)
-@click.option(
-    "--executor",
-    type=click.Choice(["local", "dask"]),
-    default="local",
-    show_default=True,
-    help="Where chunks run.",
-)
-@click.option(
-    "--scheduler", default=None, metavar="ADDR", help="Dask scheduler (with --executor dask)."
-)
-@click.option("--chunk-size", type=int, default=None, help="Starts per chunk (advanced).")
-@click.option(
-    "--csv",
-    "csv_path",
-    default=None,
-    metavar="FILE",
-    help="Write every figure as CSV ('-': stdout).",
-)
-@click.option(
-    "--plot",
-    "plot_path",
-    default=None,
-    metavar="FILE",
-    help="Distributions plot (.png, .svg or .pdf).",
-)
-@click.option("--latex", "as_latex", is_flag=True, help="Print the tables as LaTeX (booktabs).")
-@click.option(
-    "--show", "show_n", default=12, show_default=True, help="Record holders listed per kind."
-)
-@click.option("--force", is_flag=True, help="Replace existing output files.")
+@map_argument
+@to_option(required=True)
+@from_option
+@side_option
+@max_steps_option
+@workers_option
+@executor_options
+@csv_option
+@plot_option
+@latex_option
+@show_option
+@force_option
 @maps_option
 @json_option
 def records_cmd(
     map_spec,
-    to_text,
-    from_text,
+    to,
+    start,
     side,
     max_steps,
     workers,
     executor,
     scheduler,
-    chunk_size,
     csv_path,
     plot_path,
     as_latex,
-    show_n,
+    show,
     force,
     map_files,
     as_json,
 ) -> None:
     """Record holders (delay, glide, peak), exact distributions and basin sizes of MAP over [M, N]."""
     m = resolve_map(map_spec, map_files)
-    to = parse_int(to_text, "--to", minimum=1)
-    start = parse_int(from_text, "--from", minimum=1)
-    if workers is not None and workers < 1:
-        raise BadInput(f"--workers must be at least 1, got {workers}")
+    if to < 1:
+        raise BadInput(f"--to must be at least 1, got {to}")
     if as_json and as_latex:
         raise BadInput("--json and --latex exclude each other")
     if csv_path == "-" and (as_json or as_latex):
@@ -118,17 +92,18 @@ def records_cmd(
         check_output(csv_path, "--csv", force)
     check_figure_path(plot_path, "--plot", force)
     try:
-        r = records(
-            m,
-            to,
-            start=start,
-            side=side,
-            max_steps=max_steps,
-            workers=workers,
-            executor=executor,
-            scheduler=scheduler,
-            chunk_size=chunk_size,
-        )
+        with progress_display() as show_progress:
+            r = records(
+                m,
+                to,
+                start=start,
+                side=side,
+                max_steps=max_steps,
+                workers=workers,
+                executor=executor,
+                scheduler=scheduler,
+                progress=show_progress,
+            )
     except InputError as exc:
         raise BadInput(str(exc)) from None
     # outputs only after the whole computation succeeded
@@ -148,9 +123,9 @@ def records_cmd(
         emit_json(r.to_dict())
         return
     if as_latex:
-        print(latex_text(r, show_n))
+        print(latex_text(r, show))
         return
-    _print(r, show_n)
+    _print(r, show)
 
 
 def csv_rows(r):
