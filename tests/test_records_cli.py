@@ -159,3 +159,21 @@ def test_to_pandas_optional():
     else:
         df = r.to_pandas()
         assert list(df.columns) == ["side", "kind", "start", "value"]
+
+
+def test_latex_on_other_commands(capsys):
+    # common practice, no source: tables as booktabs, other lines as LaTeX comments
+    code, out, _ = run(capsys, "count", "3x+1", "--length", "13", "--odd", "8", "--latex")
+    assert code == 0
+    assert "\\toprule" in out and "% " in out
+    assert all(
+        line.startswith(("%", "\\", "$")) or " & " in line for line in out.splitlines() if line
+    )
+    code, out, _ = run(
+        capsys, "scan", "3x+5", "--to", "400", "--no-store", "--latex", "--workers", "1"
+    )
+    assert code == 0 and "\\begin{tabular}" in out
+    # OEIS A226607 (k = 5): the cycle minima 19 and 23
+    assert "$19$" in out and "$23$" in out
+    code, _, err = run(capsys, "count", "3x+1", "--length", "13", "--odd", "8", "--latex", "--json")
+    assert code == 2 and err.startswith("error:")

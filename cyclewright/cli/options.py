@@ -20,7 +20,8 @@ Inside
   :func:`limit_option`, :func:`show_option`, :func:`to_option`,
   :func:`from_option`, :func:`workers_option`, :func:`executor_options`,
   :func:`out_option`, :func:`csv_option`, :func:`plot_option`, :func:`force_option`,
-  :func:`maps_option`, :func:`json_option`, :func:`latex_option`.
+  :func:`maps_option`, :func:`json_option`, :func:`latex_option`,
+  :func:`latex_tables` (``--latex`` for commands printing rich tables).
 - :func:`resolve_map`, :func:`catalog_for`, :func:`resolve_store`,
   :func:`parse_int`.
 
@@ -81,6 +82,7 @@ __all__ = [
     "maps_option",
     "json_option",
     "latex_option",
+    "latex_tables",
     "resolve_map",
     "resolve_store",
     "catalog_for",
@@ -468,6 +470,21 @@ latex_option = _shared(
     is_flag=True,
     help="Print the tables as LaTeX (booktabs tabular; numbers in math mode, labels as a column).",
 )
+
+
+def latex_tables(f):
+    """``--latex`` for a command that prints rich tables: they print as LaTeX instead
+    (other lines become LaTeX comments). Put it right above the function."""
+    from .render import latex_output
+
+    @functools.wraps(f)
+    def wrapper(*args, as_latex: bool = False, **kwargs):
+        if as_latex and kwargs.get("as_json"):
+            raise BadInput("--json and --latex exclude each other")
+        with latex_output(as_latex):
+            return f(*args, **kwargs)
+
+    return latex_option(wrapper)
 
 
 # ------------------------------------------------------------------ resolution

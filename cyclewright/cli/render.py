@@ -37,6 +37,8 @@ __all__ = [
     "tex_escape",
     "tex_number",
     "latex_table",
+    "latex_output",
+    "LatexBlock",
 ]
 
 
@@ -91,7 +93,13 @@ def _console(stream):
 
 
 def stdout_console():
-    """A rich console on stdout (plain text when not a terminal)."""
+    """A rich console on stdout (plain text when not a terminal).
+
+    Inside :func:`latex_output` it is a console that prints tables as LaTeX
+    and every other line as a LaTeX comment, so the whole output compiles.
+    """
+    if _LATEX_MODE[0]:
+        return _LatexConsole(sys.stdout)
     return _console(sys.stdout)
 
 
@@ -129,7 +137,19 @@ def short(value, digits: int = 40) -> str:
 def make_table(
     title: str | None, columns: Sequence[str], rows: Iterable[Sequence], caption: str | None = None
 ):
-    """A rich table with the given header and rows (cells rendered with :func:`short`)."""
+    """A rich table with the given header and rows (cells rendered with :func:`short`).
+
+    Inside :func:`latex_output` the same table as LaTeX (:func:`latex_table`).
+    """
+    if _LATEX_MODE[0]:
+        return LatexBlock(
+            latex_table(
+                [_plain(c) for c in columns],
+                [[_plain(v) if isinstance(v, str) else v for v in r] for r in rows],
+                caption=_plain(title) if title else None,
+                notes=[_plain(caption)] if caption else (),
+            )
+        )
     from rich.table import Table
 
     t = Table(
@@ -308,3 +328,62 @@ def latex_table(
     if label:
         head.append(f"\\label{{{label}}}")
     return "\n".join(head + [body, "\\end{table}"])
+
+
+# --------------------------------------------------------------------------- LaTeX output mode
+_LATEX_MODE = [False]
+
+
+def _plain(text) -> str:
+    """Rich markup removed (``[bold]x[/bold]`` -> ``x``)."""
+    from rich.text import Text
+
+    try:
+        return Text.from_markup(str(text)).plain
+    except Exception:  # not markup after all (e.g. "[exact]" headers)
+        return str(text)
+
+
+class LatexBlock:
+    """LaTeX text that a console prints as it is."""
+
+    def __init__(self, text: str):
+        self.text = text
+
+    def __str__(self) -> str:
+        return self.text
+
+
+class _LatexConsole:
+    """What :func:`stdout_console` gives in LaTeX mode: tables as LaTeX, other lines as comments."""
+
+    def __init__(self, stream):
+        self.stream = stream
+
+    def print(self, *objects, **_kwargs) -> None:
+        for obj in objects:
+            if isinstance(obj, LatexBlock):
+                self.stream.write(obj.text + "\n\n")
+            else:
+                for line in _plain(obj).splitlines() or [""]:
+                    self.stream.write(f"% {line}\n")
+
+
+class latex_output:
+    """``with latex_output(True): ...``: tables made inside print as LaTeX.
+
+    >>> with latex_output(True):
+    ...     print(make_table("t", ["n"], [[12345]]).text.splitlines()[2])
+    \\caption{t}
+    """
+
+    def __init__(self, on: bool = True):
+        self.on = bool(on)
+
+    def __enter__(self):
+        self.prev = _LATEX_MODE[0]
+        _LATEX_MODE[0] = self.on
+        return self
+
+    def __exit__(self, *exc) -> None:
+        _LATEX_MODE[0] = self.prev

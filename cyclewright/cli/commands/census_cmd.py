@@ -12,6 +12,7 @@ from ..options import (
     IntExpr,
     all_offsets_option,
     json_option,
+    latex_tables,
     map_argument,
     maps_option,
     max_length_option,
@@ -70,6 +71,7 @@ __all__ = ["COMMANDS"]
 )
 @maps_option
 @json_option
+@latex_tables
 def census_cmd(
     map_spec,
     max_length,

@@ -18,6 +18,7 @@ from ..options import (
     all_offsets_option,
     csv_option,
     json_option,
+    latex_tables,
     maps_option,
     max_length_option,
     max_steps_option,
@@ -88,6 +89,7 @@ def resolve_maps(specs, offsets, map_files, all_k=False):
 @workers_option
 @maps_option
 @json_option
+@latex_tables
 def compare_cmd(
     map_specs,
     max_length,

@@ -14,6 +14,7 @@ from ..errors import BadInput
 from ..numbers import int_expression
 from ..options import (
     json_option,
+    latex_tables,
     length_option,
     limit_option,
     map_argument,
@@ -78,6 +79,7 @@ def parse_content(text: str) -> dict[int, int]:
 @show_option
 @maps_option
 @json_option
+@latex_tables
 def count_cmd(map_spec, length, odd, content_text, limit, show, map_files, as_json) -> None:
     """Words, necklaces, denominator, proved bound, candidates and integer cycles of one type.
 

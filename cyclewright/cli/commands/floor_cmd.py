@@ -8,7 +8,15 @@ from cyclewright.cycles.floors import floor
 from cyclewright.cycles.sides import PerSide
 
 from ..errors import BadInput
-from ..options import IntExpr, json_option, map_argument, maps_option, resolve_map, side_option
+from ..options import (
+    IntExpr,
+    json_option,
+    latex_tables,
+    map_argument,
+    maps_option,
+    resolve_map,
+    side_option,
+)
 from ..render import emit_json, show_table, stdout_console
 
 # The floor's work grows with the digits of N (continued fraction terms, precision).
@@ -47,6 +55,7 @@ _MAX_FLOOR_DIGITS = 1000
 )
 @maps_option
 @json_option
+@latex_tables
 def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> None:
     """The least length (and odd steps) any further cycle of MAP could have.
 

@@ -13,6 +13,7 @@ from ..options import (
     force_option,
     from_option,
     json_option,
+    latex_tables,
     map_argument,
     maps_option,
     max_steps_option,
@@ -48,6 +49,7 @@ from ..render import emit_json, short, show_table, stdout_console
 @force_option
 @maps_option
 @json_option
+@latex_tables
 def graph_cmd(
     map_spec,
     to,

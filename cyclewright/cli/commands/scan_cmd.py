@@ -11,6 +11,7 @@ from ..options import (
     executor_options,
     from_option,
     json_option,
+    latex_tables,
     map_argument,
     maps_option,
     max_length_option,
@@ -62,6 +63,7 @@ resumes where it stopped.
 @show_option
 @maps_option
 @json_option
+@latex_tables
 def scan_cmd(
     map_spec,
     to,

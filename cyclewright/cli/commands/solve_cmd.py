@@ -6,7 +6,7 @@ import click
 
 from cyclewright.cycles.solver import solve
 
-from ..options import json_option, map_argument, maps_option, resolve_map
+from ..options import json_option, latex_tables, map_argument, maps_option, resolve_map
 from ..render import emit_json, short, stdout_console
 
 
@@ -23,6 +23,7 @@ from ..render import emit_json, short, stdout_console
 @click.argument("itinerary", nargs=-1, required=True, metavar="ITINERARY...")
 @maps_option
 @json_option
+@latex_tables
 def solve_cmd(map_spec, itinerary, map_files, as_json) -> None:
     """The rational cycle whose itinerary (parity vector) is ITINERARY, exactly."""
     m = resolve_map(map_spec, map_files)

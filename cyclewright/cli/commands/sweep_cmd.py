@@ -19,6 +19,7 @@ from ..options import (
     csv_option,
     force_option,
     json_option,
+    latex_tables,
     limit_option,
     map_argument,
     maps_option,
@@ -67,6 +68,7 @@ __all__ = ["COMMANDS"]
 @show_option
 @maps_option
 @json_option
+@latex_tables
 def sweep_cmd(
     map_spec,
     odd_range,
