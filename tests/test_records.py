@@ -53,6 +53,7 @@ A060412 = [2, 3, 7, 27, 703, 10087, 35655, 270271, 362343, 381727, 626331]
 
 @pytest.fixture(scope="module")
 def million():
+    # a million starts: about a second once the kernels are compiled
     return records("3x+1", 10**6)
 
 
@@ -168,6 +169,7 @@ def test_exact_past_int64():
     assert sd.holder("full_peak").value == top and top > 2**63
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", ["3x+1", "3x-1", "3x+5", "3x+13", "mod3-4x"])
 def test_basins_equal_the_graph_module(name):
     # common practice, no source: two independent computations of the same basins

@@ -50,6 +50,7 @@ def test_records_unresolved_said(capsys):
     assert "unresolved" in out and "left out of the records" in out
 
 
+@pytest.mark.slow
 def test_records_csv_and_plot_formats(capsys, tmp_path):
     c = tmp_path / "r.csv"
     for ext in ("png", "svg", "pdf"):
@@ -119,6 +120,7 @@ def test_latex_renderer():
     assert tex_number(1234) == "$1234$" and tex_number(-12345) == "$-12\\,345$"
 
 
+@pytest.mark.slow
 def test_study_records_analysis(tmp_path):
     study = parse_study(
         tomllib.loads(
