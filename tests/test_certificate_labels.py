@@ -171,3 +171,35 @@ def test_every_json_label_is_documented(args):
         assert lab in LABELS, f"{where}: label {lab!r} is not one of {sorted(LABELS)}"
         if lab == "exact":
             assert not isinstance(value, float), f"{where}: a float labelled exact"
+
+
+def test_best_approximation_bound_matches_direct_minimum():
+    # sympy's continued fractions (reference library) of log_2 3; Khinchin, Continued
+    # Fractions, Theorems 16-17: the least |k ln 2 - x ln 3| over x <= X is at a convergent,
+    # so the direct minimum over every convergent and semiconvergent must equal the bound
+    import mpmath
+    import sympy
+
+    from cyclewright.cycles.continued_fractions import best_approximation_bound
+
+    X = 10**6
+    approx = sympy.Rational(str(sympy.N(sympy.log(3) / sympy.log(2), 60)))
+    terms = []
+    for t in sympy.continued_fraction_iterator(approx):
+        terms.append(int(t))
+        if len(terms) > 25:
+            break
+    p0, q0, p1, q1 = 0, 1, 1, 0
+    fractions = []
+    for t in terms:
+        for j in range(1, t + 1):
+            fractions.append((p0 + j * p1, q0 + j * q1))
+        p0, q0, p1, q1 = p1, q1, t * p1 + p0, t * q1 + q0
+    mpmath.mp.dps = 60
+    best = min(
+        (abs(p * mpmath.log(2) - q * mpmath.log(3)), p, q) for p, q in fractions if 1 <= q <= X
+    )
+    lo, k, x = best_approximation_bound(3, 2, X)
+    assert (k, x) == (best[1], best[2]) == (301994, 190537)
+    assert mpmath.mpf(lo.numerator) / lo.denominator <= best[0]
+    assert best[0] - mpmath.mpf(lo.numerator) / lo.denominator < best[0] * mpmath.mpf(10) ** -15

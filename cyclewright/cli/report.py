@@ -3,7 +3,7 @@
 Inside
 ------
 - :class:`Table` -- a titled table whose columns carry figure labels
-  (``exact``, ``certified``, ``proved``, ``heuristic``); it is written as CSV,
+  (``exact``, ``certified``, ``proved``, ``heuristic``, ``rounded``); it is written as CSV,
   JSON and LaTeX (booktabs) beside the report and shown in the Markdown with
   links to them.
 - :class:`Figure` -- a PNG written by a plot function, with a caption.
@@ -161,7 +161,8 @@ class Report:
         out.append(
             "Every figure carries a label: **exact** (computed exactly), **certified** (an "
             "exhaustive search, with its method and range), **proved** (a theorem's bound, "
-            "evaluated rigorously) or **heuristic** (a model's expectation)."
+            "evaluated rigorously), **heuristic** (a model's expectation) or **rounded** (the "
+            "float value of an exact form given beside it)."
         )
         out.append("")
         for c in self.cautions:

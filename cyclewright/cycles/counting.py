@@ -121,6 +121,25 @@ _TYPE_LABELS = {
 }
 
 
+def _down4(q: Fraction) -> str:
+    """A positive rational rounded down to four significant digits, e.g. ``5.212e-2``.
+
+    >>> _down4(Fraction(52125, 10**6))
+    '5.212e-2'
+    """
+    e = (
+        len(str(q.numerator // q.denominator)) - 1
+        if q >= 1
+        else -len(str(q.denominator // q.numerator))
+    )
+    while Fraction(10) ** e > q:
+        e -= 1
+    while Fraction(10) ** (e + 1) <= q:
+        e += 1
+    mant = math.floor(q / Fraction(10) ** (e - 3))
+    return f"{mant // 1000}.{mant % 1000:03d}e{e}"
+
+
 @dataclass(frozen=True)
 class TypeCount:
     """Counting figures for one type; see the module docstring for the definitions.
@@ -291,6 +310,7 @@ class TypeCount:
                 else f"not available: {lf.reason}",
                 PROVED.value if lf.applies else "-",
             ),
+            *self._best_approximation_rows(),
             (
                 "|min| bound from |Λ| bound",
                 self.candidates_linear_forms if self.candidates_linear_forms is not None else "-",
@@ -304,6 +324,32 @@ class TypeCount:
             {},
             self.enumeration_note,
         )
+
+    def _best_approximation_rows(self) -> list[tuple]:
+        """For ``d^k`` against ``a^x``: the least ``|Λ|`` over every type with at most this ``x``.
+
+        From the certified continued fraction alone (best approximations),
+        so no recalled constant is involved; None for other maps.
+        """
+        from .continued_fractions import best_approximation_bound
+
+        m = self.map
+        x = self.odd
+        if x is None or x < 1 or m.branches[0].multiplier != 1:
+            return []
+        a = abs(m.branches[1].multiplier)
+        try:
+            lo, k0, x0 = best_approximation_bound(a, m.divisor, x)
+        except InputError:
+            return []
+        return [
+            (
+                f"|Λ| lower bound, every type with x <= {x}",
+                f">= {_down4(lo)} (attained at k = {k0}, x = {x0}; best approximations "
+                "of the continued fraction, no recalled constant)",
+                PROVED.value,
+            )
+        ]
 
     @staticmethod
     def table_columns() -> tuple[str, ...]:
