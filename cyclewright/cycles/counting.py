@@ -737,8 +737,14 @@ def _count_content(
         cycles = None
         unrealized = None
         cand = mb.integer if mb.applies else None
-        labels["candidates"] = PROVED.value if cand is not None else "none"
+        labels["candidates"] = PROVED.value  # None when no bound applies (nothing claimed)
         note = f"not enumerated: {neck} necklaces exceed the limit {limit}"
+    if not m.multipliers_prime_to_divisor():
+        note += (
+            "; necklaces, words and necklaces/|D| count every itinerary, but a multiplier shares "
+            "a factor with d, so some itineraries are followed by no integer (they over-count); "
+            "the integer cycles are exact"
+        )
     return TypeCount(
         map=m,
         content=c,
