@@ -39,8 +39,9 @@ def demo_cmd(out, workers) -> None:
             "Highlights (from this run's data files)",
             [
                 "map",
-                "drift/step",
-                f"cycles <= {rows[0]['census_length'] if rows else 'K'} primitive/all [certified]",
+                "drift/step [exact = rounded]",
+                f"cycles <= {rows[0]['census_length'] if rows else 'K'} other than 0, "
+                "primitive/all [certified]",
                 "minima",
                 "unresolved share <= N",
                 "floor + / -  [proved]",
@@ -48,7 +49,7 @@ def demo_cmd(out, workers) -> None:
             [
                 [
                     r["map"],
-                    f"{r['drift']:+.4f}",
+                    f"{r['drift_exact']} = {r['drift']:+.4f}",
                     f"{r['census_primitive_cycles']}/{r['census_cycles']}",
                     ", ".join(map(str, r["census_minima"] or [])),
                     f"{r['unresolved_share']:.4f}",
