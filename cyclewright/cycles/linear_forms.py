@@ -27,6 +27,7 @@ from functools import lru_cache
 
 from cyclewright.maps import Map, as_map
 
+from .errors import InputError
 from .intervals import _iv_to_interval, _ivprec, resolve_content
 from .labels import PROVED
 from .minimum_bound import _setup
@@ -332,10 +333,57 @@ def _log_base_exact(n: int, base: int) -> int:
     return int(e)
 
 
+@lru_cache(maxsize=4096)
+def _best_approximation_form(d: int, branches: tuple, content: tuple[int, ...]):
+    """For ``Λ = k ln d - x ln |a|`` (branch 0 ``n/d``): the least ``|Λ|`` over every ``x' <= x``.
+
+    From the certified continued fraction of ``log_d |a|`` alone (best
+    approximations; :func:`~cyclewright.cycles.continued_fractions.best_approximation_bound`):
+    a statement about a finite range of ``x`` needs no recalled constant.
+    None when the map or type is not of that shape.
+    """
+    from mpmath import iv, libmp
+
+    from .continued_fractions import best_approximation_bound
+
+    if len(content) != 2 or tuple(branches[0])[0] != 1 or content[1] < 1:
+        return None
+    a = abs(tuple(branches[1])[0])
+    if a < 2:
+        return None
+    try:
+        lo, k0, x0 = best_approximation_bound(a, d, content[1])
+    except InputError:
+        return None
+    old = iv.prec
+    iv.prec = 128
+    try:
+        lg = iv.log(iv.mpf(lo.numerator) / iv.mpf(lo.denominator))
+        log_lower = Fraction(*map(int, libmp.to_rational(lg._mpi_[0])))
+    finally:
+        iv.prec = old
+    form = f"{sum(content)} ln {d} - {content[1]} ln {a}"
+    return LinearFormBound(
+        form,
+        True,
+        log_lower,
+        "best approximations (continued fraction)",
+        f"|k ln {d} - x ln {a}| >= |{k0} ln {d} - {x0} ln {a}| for every k and x <= {content[1]} "
+        "(the convergent with the largest denominator <= x; Legendre, Lagrange); no recalled constant",
+        False,
+    )
+
+
 def candidates_from_linear_form(
     m: Map | str, content_or_type, side: Side = DEFAULT_SIDE
 ) -> tuple[int | None, LinearFormBound]:
     """An integer ``M_LF`` with ``|minimum| <= M_LF`` for every cycle of the type, from ``|Λ| >= λ``.
+
+    ``λ`` is uniform in ``k``: for maps with branch 0 ``n/d`` and one other
+    multiplier ``a``, the least ``|k ln d - x' ln |a||`` over ``x' <= x`` from
+    the continued fraction's best approximations (no recalled constant: the
+    statement is about a finite range of ``x``); otherwise the linear-forms
+    bound of :func:`linear_form_bound` (published constants, from memory).
 
     From ``ln(1 + y) <= y``: ``|Λ| <= sum c_r |β_r| / M*`` (growth case), so
     ``M* <= sum c_r |β_r| / λ``; in the other case ``M* <= max |β_r| + sum
@@ -348,13 +396,15 @@ def candidates_from_linear_form(
     --------
     >>> from cyclewright import maps
     >>> M, lf = candidates_from_linear_form(maps.get("3x+1"), (13, 8))
-    >>> len(str(M))
-    16
+    >>> M, lf.source        # |Λ| >= |8 ln 2 - 5 ln 3| for every x <= 8: no recalled constant
+    (51, 'best approximations (continued fraction)')
     """
     m = as_map(m)
     content = resolve_content(m, content_or_type)
     st = _setup(m, content, side)
-    lf = _linear_form_bound(m.divisor, tuple(m.branches), content)
+    lf = _best_approximation_form(m.divisor, tuple(m.branches), content) or _linear_form_bound(
+        m.divisor, tuple(m.branches), content
+    )
     if not st.applies or not lf.applies:
         return None, lf
     if not st.S or st.D == 0 or (st.D > 0) != st.growth:

@@ -345,9 +345,10 @@ class Sweep:
             },
             "'bound below necklaces from x': from this x on, within the swept range, the "
             "proved candidate bound stays below the necklace count, so almost no itinerary "
-            "of those types closes. 'linear forms from x': the same with the bound on |Λ| "
-            "from published constants (Rhin 1987 for ln 2, ln 3; Laurent 2008, Corollary 2), "
-            "quoted from memory.",
+            "of those types closes. 'linear forms from x': the same with a bound on |Λ| uniform "
+            "in k: best approximations of the continued fraction (no recalled constant) for "
+            "maps n/d with one other multiplier, else published constants (Rhin 1987; "
+            "Laurent 2008, Corollary 2) quoted from memory.",
         )
 
     def to_dict(self) -> dict:
