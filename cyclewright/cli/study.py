@@ -283,7 +283,7 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
 
 
 def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
-    from cyclewright.cycles.records import KIND_TITLES, records
+    from cyclewright.cycles.records import records
 
     from .plots import plot_records
 
@@ -291,7 +291,7 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     sec = Section(
         f"Records over the starts {p['from']}..{p['to']} ({p['side']}, step cap {p['max_steps']})"
     )
-    rows, brows = [], []
+    summaries, basins = [], []
     for m in spec.maps:
         ctx.say(f"records {m.label}")
         r = records(
@@ -302,23 +302,9 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             max_steps=p["max_steps"],
             workers=ctx.workers,
         )
-        for row in r.summary_rows():
-            rows.append(
-                [
-                    m.label,
-                    row["side"],
-                    KIND_TITLES[row["kind"]],
-                    row["holder"],
-                    row["value"],
-                    row["records"],
-                    row["mean"],
-                    row["model_mean"],
-                    row["unresolved"],
-                ]
-            )
-        for sd in r.sides.values():
-            for cmin, n in sd.basins.items():
-                brows.append([m.label, sd.side, cmin, n])
+        summary, _, basin = r.tables()
+        summaries.append(summary.with_column("map", m.label))
+        basins.append(basin.with_column("map", m.label))
         if r.unresolved:
             sec.cautions.append(f"{m.label}: {r.caution}")
         if p["plot"]:
@@ -332,40 +318,13 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
                 )
             )
     sec.tables.append(
-        Table(
+        Table.of(
             ctx.name("records"),
-            "Record holders and mean step counts",
-            [
-                "map",
-                "side",
-                "record of",
-                "holder",
-                "value",
-                "records",
-                "mean",
-                "model mean",
-                "unresolved",
-            ],
-            rows,
-            {
-                "holder": "exact",
-                "value": "exact",
-                "mean": "exact",
-                "model mean": "heuristic",
-                "unresolved": "exact",
-            },
-            note="Means and records over resolved starts; model means from the drift "
-            "and random-walk model.",
+            ResultTable.stack(summaries, "Record holders and mean step counts"),
         )
     )
     sec.tables.append(
-        Table(
-            ctx.name("records-basins"),
-            "Basin sizes",
-            ["map", "side", "cycle minimum", "starts in basin"],
-            brows,
-            {"starts in basin": "exact"},
-        )
+        Table.of(ctx.name("records-basins"), ResultTable.stack(basins, "Basin sizes"))
     )
     return sec
 

@@ -66,7 +66,7 @@ from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element, cycles_table
 from .labels import CERTIFIED, EXACT, PROVED
 from .largest_bound import largest_bound_up_to
-from .presentation import Table
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .scan.run import scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
@@ -155,7 +155,7 @@ class SidePlan:
 
 
 @dataclass(frozen=True)
-class Census:
+class Census(Presentable):
     """All integer cycles of length ``<= max_length`` on the sides asked (certified).
 
     ``cycles`` are ordered zero first, then positive by minimum, then
@@ -608,7 +608,7 @@ def default_family_members(a: int, ks: Iterable[int]) -> list[int]:
 
 
 @dataclass(frozen=True)
-class FamilyCensus:
+class FamilyCensus(Presentable):
     """One census per member ``ax±k`` of a family (certified per row)."""
 
     template: str

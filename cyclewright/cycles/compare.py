@@ -49,7 +49,7 @@ from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
 from .limits import DEFAULT_MAX_STEPS
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
-from .presentation import Table
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sweep import critical_lengths, rho, rho_exact, sweep
 
@@ -174,7 +174,7 @@ class TypeRow:
 
 
 @dataclass(frozen=True)
-class Predictions:
+class Predictions(Presentable):
     """Predictions against findings for one map up to a length."""
 
     map: Map
@@ -505,7 +505,7 @@ class MapProfile:
 
 
 @dataclass(frozen=True)
-class Comparison:
+class Comparison(Presentable):
     """Profiles of several maps with shared parameters."""
 
     profiles: tuple[MapProfile, ...]

@@ -72,7 +72,7 @@ from .necklaces import (
     type_content,
     word_count,
 )
-from .presentation import Table
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .solver import cycle_representative
 
@@ -141,7 +141,7 @@ def _down4(q: Fraction) -> str:
 
 
 @dataclass(frozen=True)
-class TypeCount:
+class TypeCount(Presentable):
     """Counting figures for one type; see the module docstring for the definitions.
 
     Attributes

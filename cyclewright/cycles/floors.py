@@ -74,7 +74,7 @@ from .continued_fractions import (
 from .errors import InputError
 from .intervals import _log_sign, _Precision
 from .labels import EXACT, PROVED
-from .presentation import Table
+from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = [
@@ -205,7 +205,7 @@ def _lattice_points(cone: _Cone, first: tuple[int, int], count: int) -> list[tup
 
 
 @dataclass(frozen=True)
-class Floor:
+class Floor(Presentable):
     """The least type ``(k, x)`` a further cycle could have (label ``proved``).
 
     Attributes

@@ -59,7 +59,7 @@ from .files import atomic_write
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import EXACT
 from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
-from .presentation import Table
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side
 from .solver import cycle_representative
@@ -79,7 +79,7 @@ UNRESOLVED = -2
 
 
 @dataclass(frozen=True, repr=False)
-class FunctionalGraph:
+class FunctionalGraph(Presentable):
     """The functional graph of a map over a range of starts, with its cycles and basins.
 
     Attributes

@@ -4,7 +4,11 @@ Inside
 ------
 - :class:`Table` -- a title, column names, rows of values (exact values, not
   text) and a label per column (``exact``, ``certified``, ``proved``,
-  ``heuristic`` or a short mixed description), plus a note.
+  ``heuristic`` or a short mixed description), plus a note; it shows as an
+  HTML table in Jupyter (``_repr_html_``) and converts to a pandas DataFrame
+  (``to_pandas``, when pandas is installed: never a dependency).
+- :class:`Presentable` -- the same two for a result type, from its own
+  tables (``tables()``, ``figures_table()`` or ``table()``).
 
 Every result type builds its own tables (``table()``, and ``tables()`` where
 a result has several); the CLI commands print them and the study report
@@ -17,7 +21,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field, replace
 
-__all__ = ["Table"]
+__all__ = ["Table", "Presentable"]
 
 
 @dataclass(frozen=True)
@@ -53,6 +57,14 @@ class Table:
     def header(self) -> list[str]:
         """Column names with their labels in brackets."""
         return [f"{c} [{self.labels[c]}]" if c in self.labels else c for c in self.columns]
+
+    def _repr_html_(self) -> str:
+        """The table as HTML (Jupyter shows it)."""
+        return _table_html(self)
+
+    def to_pandas(self):
+        """The rows as a pandas DataFrame; the labels, title and note in ``df.attrs``."""
+        return _table_pandas(self)
 
     def records(self) -> list[dict]:
         """The rows as dicts keyed by column."""
@@ -125,3 +137,70 @@ class Table:
         return replace(
             first, title=title or first.title, columns=columns, rows=tuple(rows), labels=labels
         )
+
+
+def _html_cell(v) -> str:
+    from html import escape
+
+    if v is None:
+        return "&ndash;"
+    if isinstance(v, bool):
+        return "yes" if v else "no"
+    if isinstance(v, (list, tuple)):
+        return escape(", ".join(str(x) for x in v))
+    return escape(str(v))
+
+
+def _table_html(t: Table) -> str:
+    from html import escape
+
+    head = "".join(f"<th>{escape(h)}</th>" for h in t.header())
+    body = "".join(
+        "<tr>" + "".join(f"<td>{_html_cell(v)}</td>" for v in row) + "</tr>" for row in t.rows
+    )
+    note = f"<p><small>{escape(t.note)}</small></p>" if t.note else ""
+    return (
+        f"<table><caption>{escape(t.title)}</caption><thead><tr>{head}</tr></thead>"
+        f"<tbody>{body}</tbody></table>{note}"
+    )
+
+
+def _table_pandas(t: Table):
+    try:
+        import pandas as pd
+    except ImportError:
+        raise ImportError(
+            "to_pandas() needs pandas, which cyclewright does not install; use .records() or .rows"
+        ) from None
+    df = pd.DataFrame([list(r) for r in t.rows], columns=list(t.columns))
+    df.attrs["title"] = t.title
+    df.attrs["labels"] = dict(t.labels)
+    df.attrs["note"] = t.note
+    return df
+
+
+class Presentable:
+    """Jupyter display and pandas conversion for a result type, from its own tables.
+
+    A result type that builds :class:`Table` values (``tables()``,
+    ``figures_table()`` or ``table()``) and lists this class as a base shows
+    as HTML tables in a notebook, and ``to_pandas()`` gives its main table as a
+    DataFrame (pandas is optional).
+    """
+
+    def _display_tables(self) -> list[Table]:
+        if hasattr(self, "tables"):
+            return list(self.tables())
+        out = []
+        if hasattr(self, "figures_table"):
+            out.append(self.figures_table())
+        if hasattr(self, "table"):
+            out.append(self.table())
+        return out
+
+    def _repr_html_(self) -> str:
+        return "".join(_table_html(t) for t in self._display_tables())
+
+    def to_pandas(self):
+        """The main table (the last of :meth:`_display_tables`) as a pandas DataFrame."""
+        return _table_pandas(self._display_tables()[-1])

@@ -71,6 +71,7 @@ from cyclewright.maps.registry import as_map
 from .errors import InputError
 from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION
 from .limits import DEFAULT_MAX_STEPS
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
 
@@ -261,7 +262,7 @@ class SideRecords:
 
 
 @dataclass(frozen=True)
-class RangeRecords:
+class RangeRecords(Presentable):
     """What :func:`records` returns: one :class:`SideRecords` per side.
 
     Figures are ``exact`` except the ``heuristic`` entries (the drift model).
@@ -351,6 +352,69 @@ class RangeRecords:
             "caution": self.caution,
         }
 
+    def table(self) -> Table:
+        """The summary: per side and kind, the record holder, its value, the means (labelled)."""
+        cols = (
+            "side",
+            "record of",
+            "holder",
+            "value",
+            "records",
+            "mean",
+            "model mean",
+            "unresolved",
+        )
+        rows = tuple(
+            (
+                r["side"],
+                KIND_TITLES[r["kind"]],
+                r["holder"],
+                r["value"],
+                r["records"],
+                r["mean"],
+                r["model_mean"],
+                r["unresolved"],
+            )
+            for r in self.summary_rows()
+        )
+        return Table(
+            f"{self.map.label}: records over the starts {self.start}..{self.to} "
+            f"(step cap {self.max_steps})",
+            cols,
+            rows,
+            {
+                "holder": EXACT.value,
+                "value": EXACT.value,
+                "records": EXACT.value,
+                "mean": EXACT.value,
+                "model mean": HEURISTIC.value,
+                "unresolved": EXACT.value,
+            },
+            "Records, means and distributions over the resolved starts; model means from the "
+            "drift and random-walk model. " + self.caution,
+        )
+
+    def tables(self) -> list[Table]:
+        """The summary, every record holder, and the basins."""
+        holders = Table(
+            f"{self.map.label}: record holders",
+            ("side", "record of", "start", "value"),
+            tuple(
+                (r["side"], KIND_TITLES[r["kind"]], r["start"], r["value"])
+                for r in self.record_rows()
+            ),
+            {"start": EXACT.value, "value": EXACT.value},
+        )
+        basins = Table(
+            f"{self.map.label}: basin sizes",
+            ("side", "cycle minimum", "starts in basin"),
+            tuple(
+                (sd.side, cmin, n) for sd in self.sides.values() for cmin, n in sd.basins.items()
+            ),
+            {"starts in basin": EXACT.value},
+        )
+        return [self.table(), holders, basins]
+
     def to_pandas(self):
         """The record holders as a pandas DataFrame (pandas is optional; never installed by us)."""
         try:
@@ -362,19 +426,8 @@ class RangeRecords:
         return pd.DataFrame(self.record_rows())
 
     def _repr_html_(self) -> str:
-        from html import escape
-
-        head = (
-            f"<p><b>{escape(self.map.label)}</b>, starts {self.start}..{self.to}, "
-            f"cap {self.max_steps} (exact; model means heuristic)</p>"
-        )
-        cols = ["side", "kind", "holder", "value", "records", "mean", "model_mean", "unresolved"]
-        body = "".join(
-            "<tr>" + "".join(f"<td>{escape(str(r[c]))}</td>" for c in cols) + "</tr>"
-            for r in self.summary_rows()
-        )
-        th = "".join(f"<th>{c.replace('_', ' ')}</th>" for c in cols)
-        return f"{head}<table><thead><tr>{th}</tr></thead><tbody>{body}</tbody></table>"
+        """The summary table as HTML (Jupyter shows it); :meth:`tables` has them all."""
+        return self.table()._repr_html_()
 
     def __repr__(self) -> str:
         parts = []

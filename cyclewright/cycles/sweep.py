@@ -32,7 +32,7 @@ from .counting import (
 )
 from .errors import InputError
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
-from .presentation import Table
+from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -180,7 +180,7 @@ def _contents_rest(d: int, x: int):
 
 
 @dataclass
-class Sweep:
+class Sweep(Presentable):
     """Counting figures along the critical line, one row (:class:`TypeCount`) per type.
 
     Attributes

@@ -8,7 +8,7 @@ from cyclewright.maps import Map
 
 from ..integer_cycle import IntegerCycle, cycles_table
 from ..labels import CERTIFIED, EXACT
-from ..presentation import Table
+from ..presentation import Presentable, Table
 from .store import code_version
 
 _COLUMN = {
@@ -26,7 +26,7 @@ __all__ = [
 
 # --------------------------------------------------------------------------- results
 @dataclass(frozen=True)
-class ScanResult:
+class ScanResult(Presentable):
     """The outcome of :func:`scan`.
 
     Attributes
