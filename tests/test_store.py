@@ -152,32 +152,15 @@ def test_refuses_unwritable_paths(tmp_path):
     assert not (tmp_path / "missing").exists()
     with pytest.raises(StoreError, match="not a regular file"):
         ScanStore(tmp_path, maps.get("3x+1"))
-    if os.geteuid() == 0:
-        pytest.skip("permission checks do not apply to root")
-    path = _made_store(tmp_path)
-    path.chmod(0o444)
-    before = _fingerprint(path)
-    try:
-        with pytest.raises(StoreError, match="not writable"):
-            ScanStore(path, maps.get("3x+1"))
-    finally:
-        path.chmod(0o644)
-    assert _fingerprint(path) == before
-    ro = tmp_path / "ro"
-    ro.mkdir()
-    ro.chmod(0o555)
-    try:
-        with pytest.raises(StoreError, match="not writable"):
-            ScanStore(ro / "s.sqlite", maps.get("3x+1"))
-    finally:
-        ro.chmod(0o755)
 
 
-def test_refuses_paths_the_os_denies_even_as_root(tmp_path, monkeypatch):
-    # The permission part above is skipped for root (root may write anywhere);
-    # here the operating system's answer is simulated, so the refusal and the
-    # untouched store are checked under every user.
+def test_read_only_store_serves_finished_scans_and_refuses_the_rest(tmp_path, monkeypatch):
+    # The operating system's answer is simulated (root may write anywhere), so
+    # the check runs under every user. A store that cannot be written is read:
+    # a finished scan comes back, anything needing a write is refused with the
+    # file untouched.
     path = _made_store(tmp_path)
+    reference = scan(maps.get("3x+1"), 100, store=False, workers=1)
     before = _fingerprint(path)
     ro = tmp_path / "ro"
     ro.mkdir()
@@ -190,8 +173,15 @@ def test_refuses_paths_the_os_denies_even_as_root(tmp_path, monkeypatch):
         return real_access(p, mode, *a, **kw)
 
     monkeypatch.setattr(os, "access", access)
+    with ScanStore(path, maps.get("3x+1")) as st:
+        assert st.readonly
+    again = scan(maps.get("3x+1"), 100, store=path, workers=1)
+    assert (again.counts, again.cycles) == (reference.counts, reference.cycles)
+    assert again.chunks_reused == again.chunks_total and again.computed == 0
     with pytest.raises(StoreError, match="not writable"):
-        ScanStore(path, maps.get("3x+1"))
+        scan(maps.get("3x+1"), 200, store=path, workers=1)
+    with pytest.raises(StoreError, match="not writable"):
+        scan(maps.get("3x+1"), 100, store=path, workers=1, side="negative")
     assert _fingerprint(path) == before
     with pytest.raises(StoreError, match="not writable"):
         ScanStore(ro / "s.sqlite", maps.get("3x+1"))

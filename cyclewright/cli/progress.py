@@ -112,6 +112,14 @@ class ProgressDisplay:
             task, completed=event.done, total=event.total, description=label, unit=event.unit
         )
 
+    def notice(self, text: str) -> None:
+        """One line of news (a damaged chunk recomputed, a busy store...), above any bar."""
+        if self._bar is not None:
+            self._bar.console.print(text, markup=False, highlight=False, soft_wrap=True)
+        else:
+            self.stream.write(text + "\n")
+            self.stream.flush()
+
     # --------------------------------------------------------------- lifetime
     def close(self) -> None:
         """Remove the bar (a terminal) and end the display."""

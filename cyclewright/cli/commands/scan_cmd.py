@@ -60,6 +60,11 @@ resumes where it stopped.
 @click.option(
     "--chunk-size", type=IntExpr(minimum=1), default=None, help="Starts per chunk (advanced)."
 )
+@click.option(
+    "--no-recompute",
+    is_flag=True,
+    help="Refuse (exit 2) instead of recomputing a stored chunk that fails its checks.",
+)
 @show_option
 @maps_option
 @json_option
@@ -77,6 +82,7 @@ def scan_cmd(
     executor,
     scheduler,
     chunk_size,
+    no_recompute,
     show,
     map_files,
     as_json,
@@ -97,6 +103,8 @@ def scan_cmd(
             scheduler=scheduler,
             progress=show_progress,
             chunk_size=chunk_size,
+            recompute=not no_recompute,
+            notice=show_progress.notice,
         )
     if as_json:
         emit_json(result.to_dict())

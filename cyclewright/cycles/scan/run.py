@@ -5,6 +5,7 @@ See :mod:`cyclewright.cycles.scan` for what the classes of starts mean.
 
 from __future__ import annotations
 
+import json
 import time
 from collections.abc import Callable
 from pathlib import Path
@@ -14,7 +15,7 @@ import numpy as np
 from cyclewright.maps import Map, as_map
 
 from ..errors import InputError, StoreError
-from ..integer_cycle import IntegerCycle
+from ..integer_cycle import IntegerCycle, verified_cycle
 from ..limits import DEFAULT_MAX_STEPS
 from ..progress import ProgressCallback, report
 from ..sides import DEFAULT_SIDE, SIDES, Side, sides_of
@@ -29,7 +30,10 @@ from .chunks import (
     run_chunk,
 )
 from .result import ScanResult
-from .store import MAX_START, ScanStore, default_store_path
+from .store import MAX_START, ScanStore, _stderr_notice, default_store_path
+
+_CLAIM_GROUP = 16  # chunks claimed per store transaction
+_CLAIM_POLL = 0.5  # seconds between looks at chunks another run is computing
 
 __all__ = [
     "scan",
@@ -47,7 +51,7 @@ def _as_int(value, what: str) -> int:
     raise InputError(f"{what} must be an integer, got {value!r}")
 
 
-def _open_store(store, m: Map) -> tuple[ScanStore, bool]:
+def _open_store(store, m: Map, notice=None) -> tuple[ScanStore, bool]:
     """(store, opened_here)."""
     if isinstance(store, ScanStore):
         if store.map.key != m.key:
@@ -58,11 +62,11 @@ def _open_store(store, m: Map) -> tuple[ScanStore, bool]:
     if store is False:
         return ScanStore(":memory:", m), True
     if store is None:
-        return ScanStore(default_store_path(m), m, create_dirs=True), True
+        return ScanStore(default_store_path(m), m, create_dirs=True, notice=notice), True
     if isinstance(store, (str, Path)):
         if Path(store).is_dir():  # a directory of stores, one per map definition
-            return ScanStore(Path(store) / default_store_path(m).name, m), True
-        return ScanStore(store, m), True
+            return ScanStore(Path(store) / default_store_path(m).name, m, notice=notice), True
+        return ScanStore(store, m, notice=notice), True
     raise InputError(f"store must be a path, a ScanStore, None (default) or False, got {store!r}")
 
 
@@ -91,6 +95,8 @@ def scan(
     scheduler: str | None = None,
     progress: ProgressCallback | None = None,
     chunk_size: int | None = None,
+    recompute: bool = True,
+    notice: Callable[[str], None] | None = None,
 ) -> ScanResult:
     """Find every integer cycle whose minimum lies in ``[start, to]``, exactly.
 
@@ -127,6 +133,14 @@ def scan(
     chunk_size : int, optional
         Starts per chunk (default :func:`default_chunk_size`); chunks lie on
         the grid of its multiples, and only identical chunks are reused.
+    recompute : bool
+        A stored chunk that fails its checks (checksum, counts, a cycle that
+        does not re-prove) is marked damaged and recomputed; with False the
+        scan refuses instead (:class:`StoreError`). Either way it is never
+        reported.
+    notice : callable, optional
+        Receives one-line messages (a damaged chunk recomputed, a busy
+        store waited for, chunks another run is computing); default: stderr.
 
     Returns
     -------
@@ -202,7 +216,9 @@ def scan(
         executor, workers=workers, scheduler=scheduler, prepare=_prepare_parent(m, sides, cap, to)
     )
     try:
-        led, opened = _open_store(store, m)
+        if notice is None:
+            notice = _stderr_notice
+        led, opened = _open_store(store, m, notice)
         try:
             return _run(
                 m,
@@ -217,6 +233,8 @@ def scan(
                 cs,
                 progress,
                 t0,
+                recompute,
+                notice,
             )
         finally:
             if opened:
@@ -230,32 +248,111 @@ def _detail(side: str, unresolved: int) -> str:
     return f"{side} side, {unresolved:,} unresolved"
 
 
-def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> ScanResult:
+def _prove_cycles(m: Map, side: str, rows) -> str | None:
+    """Re-prove stored cycle rows exactly; why one is wrong, or None."""
+    for minimum, length, text in rows:
+        try:
+            rec = json.loads(text.decode("utf-8"))
+            if (side == "positive") != (minimum > 0) or rec.get("minimum") != minimum:
+                return f"stored cycle {minimum} is on the wrong side or mislabelled"
+            if rec.get("length") != length or length < 1:
+                return f"stored cycle {minimum} has a wrong length"
+            fresh = verified_cycle(m, side, abs(minimum), length).to_record()
+        except (ValueError, TypeError, AttributeError, RuntimeError, ArithmeticError):
+            return f"stored cycle {minimum} does not re-prove"
+        if json.loads(json.dumps(fresh, sort_keys=True)) != rec:
+            return f"stored cycle {minimum} differs from its exact re-proof"
+    return None
+
+
+def _check_batch(m, led, sid, side, batch, recompute, notice) -> dict:
+    """The good finished chunks of ``batch``; damaged ones are marked (or refused)."""
+    chk = led.check(sid, batch)
+    damaged = list(chk.damaged)
+    good = dict(chk.good)
+    for key, rows in chk.cycles.items():
+        why = _prove_cycles(m, side, rows)
+        if why is not None:
+            damaged.append((key[0], key[1], why))
+            good.pop(key, None)
+    if damaged:
+        lo, hi, why = damaged[0]
+        more = f" and {len(damaged) - 1} more" if len(damaged) > 1 else ""
+        where = led.path or "in memory"
+        what = f"store {where}: chunk [{lo}, {hi}] of the {side} side{more} is damaged ({why})"
+        if not recompute:
+            raise StoreError(f"{what}; refused (--no-recompute), nothing was reported")
+        if led.readonly:
+            raise StoreError(
+                f"{what}; the store is not writable, so it cannot be recomputed; nothing was reported"
+            )
+        led.mark_damaged(sid, damaged)
+        notice(f"{what}; recomputing {'them' if more else 'it'}")
+    return good
+
+
+def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0, recompute, notice):
     branches = tuple(tuple(b) for b in m.branches)
     counts, cycles, ucount, uesc, ufirst, sieved, depth = {}, [], {}, {}, {}, {}, {}
     reused = 0
     computed = 0
     total = to - start + 1
     for side in sides:
-        sid = led.scan_id(side, max_steps, K)
-        # what the store already has (streamed: memory does not grow with the range)
+        sid = led.scan_id(side, max_steps, K, create=not led.readonly)
+        if sid is None:
+            raise StoreError(
+                f"store {led.path} is not writable (permission denied) and does not hold the "
+                f"{side} scan asked for; nothing was changed"
+            )
+        # what the store already has, checked (streamed: memory does not grow with the range)
         done_starts = unresolved = n_done = 0
         for batch in _batches(start, to, cs):
-            for r in led.finished(sid, batch).values():
+            for r in _check_batch(m, led, sid, side, batch, recompute, notice).values():
                 n_done += 1
                 done_starts += r.hi - r.lo + 1
                 unresolved += r.counts["unresolved"]
         reused += n_done
 
-        def todo(sid=sid, side=side):
-            for batch in _batches(start, to, cs):
-                have = led.finished(sid, batch)
-                for lo, hi in batch:
-                    if (lo, hi) not in have:
-                        yield ChunkTask(m.divisor, branches, side, lo, hi, cap, K is not None)
-
         if done_starts < total:
+            if led.readonly:
+                raise StoreError(
+                    f"store {led.path} is not writable (permission denied) and lacks "
+                    f"{total - done_starts} of the {total} starts of the {side} side; "
+                    "nothing was changed"
+                )
             run_id = led.begin_run(sid, start, to, cs)
+            waiting: dict = {}
+            shared: list = []
+
+            def todo(sid=sid, side=side, run_id=run_id, waiting=waiting, shared=shared):
+                for batch in _batches(start, to, cs):
+                    have = led.finished(sid, batch)
+                    missing = [c for c in batch if c not in have]
+                    for i in range(0, len(missing), _CLAIM_GROUP):
+                        mine, others = led.claim(sid, run_id, missing[i : i + _CLAIM_GROUP])
+                        waiting.update(others)
+                        for lo, hi in mine:
+                            yield ChunkTask(m.divisor, branches, side, lo, hi, cap, K is not None)
+                # chunks another run is computing: wait for them, or take them over
+                told = False
+                while waiting:
+                    mine, others = led.claim(sid, run_id, list(waiting))
+                    for c in list(waiting):
+                        if c not in others:
+                            del waiting[c]
+                    for lo, hi in mine:
+                        yield ChunkTask(m.divisor, branches, side, lo, hi, cap, K is not None)
+                    if others:
+                        shared.append(True)
+                        if not told:
+                            who = sorted(set(others.values()))[0]
+                            notice(
+                                f"waiting for {len(others)} chunk{'s' if len(others) != 1 else ''}"
+                                f" of the {side} side that {who} is computing"
+                            )
+                            told = True
+                        time.sleep(_CLAIM_POLL)
+
             status = "interrupted"
             try:
                 report(progress, "scan", done_starts, total, "starts", _detail(side, unresolved))
@@ -272,6 +369,7 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
                         sieve_depth=out.sieve_depth,
                         seconds=out.seconds,
                         version=out.version,
+                        run_id=run_id,
                     )
                     n = out.hi - out.lo + 1
                     done_starts += n
@@ -286,13 +384,19 @@ def _run(m, led, ex, sides, start, to, cap, max_steps, K, cs, progress, t0) -> S
                     led.end_run(run_id, status)
                 except Exception:  # pragma: no cover - best effort while unwinding
                     pass
+            if shared:  # what other runs finished meanwhile is checked like the rest
+                for batch in _batches(start, to, cs):
+                    _check_batch(m, led, sid, side, batch, recompute, notice)
         c = dict.fromkeys(_COUNT_KEYS, 0)
         n_sieved = n_depth = n_open = n_esc = 0
         first: list[int] = []
         for batch in _batches(start, to, cs):
             records = led.finished(sid, batch)
-            if len(records) != len(batch):  # pragma: no cover - defensive
-                raise RuntimeError("internal error: a chunk is missing from the store")
+            if len(records) != len(batch):  # pragma: no cover - a concurrent writer's damage
+                raise StoreError(
+                    f"store {led.path}: a chunk of the {side} side went missing during the run "
+                    "(another process changed the store); re-run to complete it"
+                )
             for r in records.values():
                 for k in _COUNT_KEYS:
                     c[k] += r.counts[k]
