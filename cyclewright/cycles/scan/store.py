@@ -259,6 +259,18 @@ def default_store_path(m: Map | str) -> Path:
     return data_dir() / "scans" / f"{m.key[:16]}.sqlite"
 
 
+def _busy_wait() -> float:
+    text = os.environ.get("CYCLEWRIGHT_STORE_WAIT")
+    if text:
+        try:
+            return max(0.0, float(text))
+        except ValueError:
+            raise StoreError(
+                f"CYCLEWRIGHT_STORE_WAIT must be a number of seconds, got {text!r}"
+            ) from None
+    return DEFAULT_BUSY_WAIT
+
+
 def _stderr_notice(text: str) -> None:
     print(text, file=sys.stderr, flush=True)
 
@@ -319,9 +331,10 @@ class ScanStore:
         same definition (its canonical hash).
     create_dirs : bool
         Create missing parent directories (used for the default location).
-    busy_wait : float
+    busy_wait : float, optional
         Seconds to wait, with a message, while another process holds the
-        store; then :class:`StoreBusy` is raised.
+        store; then :class:`StoreBusy` is raised. Default:
+        ``$CYCLEWRIGHT_STORE_WAIT`` if set, else :data:`DEFAULT_BUSY_WAIT`.
     notice : callable, optional
         Receives one-line messages (waiting for a busy store...); default:
         printed on stderr.
@@ -349,14 +362,14 @@ class ScanStore:
         m: Map,
         *,
         create_dirs: bool = False,
-        busy_wait: float = DEFAULT_BUSY_WAIT,
+        busy_wait: float | None = None,
         notice: Callable[[str], None] | None = None,
     ) -> None:
         self.map = m
         self.memory = str(path) == ":memory:"
         self.path = None if self.memory else Path(path).expanduser()
         self.readonly = False
-        self.busy_wait = float(busy_wait)
+        self.busy_wait = _busy_wait() if busy_wait is None else float(busy_wait)
         self.notice = notice or _stderr_notice
         self._conn = None
         if self.memory:
