@@ -74,6 +74,7 @@ SQLite integers are signed 64-bit, so starts are limited to ``2^63 - 1``
 
 from __future__ import annotations
 
+import contextlib
 import datetime as _dt
 import hashlib
 import json
@@ -651,6 +652,18 @@ class ScanStore:
             return StoreError(f"store {where} is corrupt ({exc}); nothing was reported from it")
         return exc
 
+    @contextlib.contextmanager
+    def _immediate(self):
+        """A write transaction that takes the write lock first (read-then-write stays atomic)."""
+        self._conn.execute("BEGIN IMMEDIATE")
+        try:
+            yield
+        except BaseException:
+            self._conn.rollback()
+            raise
+        else:
+            self._conn.commit()
+
     def _writable(self, what: str) -> None:
         if self.readonly:
             raise StoreError(
@@ -674,15 +687,19 @@ class ScanStore:
             if not create:
                 return None
             self._writable(f"the {side} scan asked for")
-            with self._conn:
+            with self._immediate():
                 if row:  # a damaged row: the configuration is recorded again, fresh
                     self._conn.execute("DELETE FROM scans WHERE id = ?", (row[0],))
-                cur = self._conn.execute(
-                    "INSERT INTO scans (side, max_steps, max_cycle_length, config, created_by,"
-                    " created_at) VALUES (?, ?, ?, ?, ?, ?)",
+                # OR IGNORE: another process may record the same configuration at once
+                self._conn.execute(
+                    "INSERT OR IGNORE INTO scans (side, max_steps, max_cycle_length, config,"
+                    " created_by, created_at) VALUES (?, ?, ?, ?, ?, ?)",
                     (side, max_steps, max_cycle_length, config, code_version(), _now()),
                 )
-            return int(cur.lastrowid)
+                row = self._conn.execute(
+                    "SELECT id FROM scans WHERE config = ?", (config,)
+                ).fetchone()
+            return int(row[0])
 
         try:
             return self._retry(work, "scan")
@@ -754,7 +771,7 @@ class ScanStore:
 
         def work():
             mine, others = [], {}
-            with self._conn:
+            with self._immediate():
                 for lo, hi in chunks:
                     done = self._conn.execute(
                         "SELECT 1 FROM chunks WHERE scan_id = ? AND lo = ? AND hi = ?"
