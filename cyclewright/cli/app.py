@@ -46,6 +46,14 @@ class _LazyGroup(click.Group):
     Command ``NAME`` lives in ``cli/commands/NAME_cmd.py`` and is listed in its ``COMMANDS``.
     """
 
+    def invoke(self, ctx: click.Context):
+        # click answers KeyboardInterrupt by printing an empty line; the
+        # command's interrupt is reported once, by main(), as one line
+        try:
+            return super().invoke(ctx)
+        except KeyboardInterrupt:
+            raise _Stopped() from None
+
     def list_commands(self, ctx: click.Context) -> list[str]:
         names = [
             i.name[: -len("_cmd")]
@@ -68,6 +76,10 @@ class _LazyGroup(click.Group):
             _accept_leading_minus(cmd)
             self.add_command(cmd)
         return self.commands.get(name)
+
+
+class _Stopped(BaseException):
+    """A stop signal ended the command (passed through click untouched)."""
 
 
 _NEGATIVE = re.compile(r"-\d")
@@ -118,17 +130,58 @@ def cli() -> None:
 def main(argv: list[str] | None = None) -> None:
     """Run the CLI with the project's exit-code policy (0 ok, 1 internal, 2 bad input)."""
     args = sys.argv[1:] if argv is None else list(argv)
-    user_errors = USER_ERRORS()
+    from cyclewright.cycles import stopping
+
+    saved = _install_stop_handlers(stopping)
     try:
+        try:
+            _main(args, stopping)
+        except (KeyboardInterrupt, _Stopped):  # one that landed outside the command's handling
+            _interrupted(stopping)
+    finally:
+        _restore_handlers(saved)
+
+
+def _install_stop_handlers(stopping) -> dict:
+    """SIGINT, SIGTERM and SIGHUP end the command alike (the previous handlers are returned)."""
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        return {}
+    saved = {sig: signal.getsignal(sig) for sig in stopping.STOP_SIGNALS}
+    stopping.install_stop_handlers()
+    return saved
+
+
+def _restore_handlers(saved: dict) -> None:
+    import signal
+
+    for sig, handler in saved.items():
+        try:
+            signal.signal(sig, handler)
+        except (TypeError, ValueError):  # pragma: no cover - a handler set outside Python
+            pass
+
+
+def _interrupted(stopping) -> None:
+    click.echo("error: interrupted", err=True)
+    sys.exit(stopping.exit_status())
+
+
+def _main(args: list[str], stopping) -> None:
+    user_errors: tuple = ()
+    try:
+        user_errors = USER_ERRORS()
         cli.main(args=args, prog_name="cyclewright", standalone_mode=False)
+        stopping.check_interrupt()  # an interrupt some library swallowed still ends the command
     except click.exceptions.NoArgsIsHelpError as exc:
         click.echo(exc.ctx.get_help() if exc.ctx else str(exc))
         sys.exit(0)
     except click.exceptions.Exit as exc:
         sys.exit(exc.exit_code)
-    except click.exceptions.Abort:
-        click.echo("error: interrupted", err=True)
-        sys.exit(130)
+    except (click.exceptions.Abort, KeyboardInterrupt, _Stopped):
+        _interrupted(stopping)
     except click.ClickException as exc:
         msg = " ".join(exc.format_message().split())
         click.echo(f"error: {msg}", err=True)
@@ -137,12 +190,11 @@ def main(argv: list[str] | None = None) -> None:
         msg = " ".join(str(exc).split())
         click.echo(f"error: {msg}", err=True)
         sys.exit(2)
-    except KeyboardInterrupt:
-        click.echo("error: interrupted", err=True)
-        sys.exit(130)
     except BrokenPipeError:
         sys.exit(0)
     except Exception as exc:
+        if stopping.stop_signal() is not None:  # a failure while stopping is the stop
+            _interrupted(stopping)
         if os.environ.get("CYCLEWRIGHT_DEBUG"):
             raise
         msg = " ".join(str(exc).split())

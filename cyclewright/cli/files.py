@@ -3,9 +3,10 @@
 from __future__ import annotations
 
 import os
-import tempfile
 from collections.abc import Callable
 from pathlib import Path
+
+from cyclewright.cycles.files import atomic_write as _atomic_write
 
 from .errors import BadInput
 
@@ -31,28 +32,20 @@ def check_output(path: str | None, option: str, force: bool = False) -> Path | N
     return p
 
 
-def _public_mode(tmp: str) -> None:
-    # mkstemp creates 0600 files; give the result the usual permissions (umask applies)
-    um = os.umask(0)
-    os.umask(um)
-    os.chmod(tmp, 0o666 & ~um)
-
-
 def atomic_write(path: str | os.PathLike, writer: Callable, *, binary: bool = False) -> Path:
-    """Write through ``writer(fh)`` into a temporary file beside ``path``, then rename it over."""
+    """Write through ``writer(fh)`` into a temporary file beside ``path``, then rename it over.
+
+    The one atomic writer of the project (:func:`cyclewright.cycles.files.atomic_write`)
+    does the work: the file honours the umask like any new file.
+    """
     target = Path(path)
     target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.")
-    try:
-        with os.fdopen(fd, "wb" if binary else "w", **({} if binary else {"newline": ""})) as fh:
+
+    def write(tmp: str) -> None:
+        with open(tmp, "wb" if binary else "w", **({} if binary else {"newline": ""})) as fh:
             writer(fh)
-        _public_mode(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-    return target
+
+    return _atomic_write(target, write)
 
 
 def figure_format(path: str | os.PathLike) -> str:

@@ -67,6 +67,7 @@ __all__ = [
     "odd_range_option",
     "offsets_option",
     "all_offsets_option",
+    "store_option",
     "store_options",
     "ceiling_option",
     "limit_option",
@@ -321,6 +322,11 @@ _no_store = _shared(
     is_flag=True,
     help="Keep no scan results (nothing is reused or resumed).",
 )
+
+
+def store_option(f):
+    """``--store PATH`` alone (commands that manage stores rather than fill them)."""
+    return _store(f)
 
 
 def store_options(f):

@@ -12,12 +12,17 @@ Inside
   :class:`~cli.report.Section`.
 
 An existing output directory is used only when it is empty or holds an
-earlier run of the same study (same ``study.json`` parameters); anything
-else is refused, so no result is silently overwritten.
+earlier run of the same study (same ``study.json`` parameters, written when
+the run starts, so a killed or interrupted study resumes in its folder
+without a flag); anything else is refused, so no result is silently
+overwritten. ``study.json`` records the SHA-256 of every file the study
+wrote; a re-run refuses to overwrite one that changed since (a hand-edited
+report) unless forced.
 """
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import platform
@@ -25,6 +30,7 @@ import shutil
 from collections.abc import Callable
 from pathlib import Path
 
+from cyclewright.cycles.files import atomic_write
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.cycles.presentation import Table as ResultTable
 
@@ -360,7 +366,40 @@ def _catalogue_section(ctx: StudyContext, study: Study) -> Section:
     return sec
 
 
+def _sha256(path: Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for block in iter(lambda: fh.read(1 << 20), b""):
+            h.update(block)
+    return h.hexdigest()
+
+
+def _result_files(out: Path) -> list[Path]:
+    """The files a study wrote into ``out`` (its stores and ``study.json`` aside)."""
+    found = []
+    for p in sorted(out.rglob("*")):
+        rel = p.relative_to(out)
+        if not p.is_file() or rel.parts[0] == "stores" or rel.as_posix() == "study.json":
+            continue
+        if any(part.startswith(".") for part in rel.parts):  # temporaries of atomic writes
+            continue
+        found.append(p)
+    return found
+
+
+def _write_json(path: Path, doc: dict) -> None:
+    text = json.dumps(doc, indent=2, sort_keys=True) + "\n"
+    atomic_write(path, lambda tmp: Path(tmp).write_text(text))
+
+
 def _check_out_dir(out: Path, params: dict, force: bool) -> None:
+    """Refuse an output directory whose files the study would overwrite without leave.
+
+    Empty or missing: fine. Holding this study (finished or interrupted: its
+    ``study.json`` has the same parameters): fine, unless a file it wrote
+    has changed since (hand edits), which needs ``force``. Anything else
+    needs ``force``.
+    """
     if not out.exists():
         return
     if not out.is_dir():
@@ -372,10 +411,28 @@ def _check_out_dir(out: Path, params: dict, force: bool) -> None:
     if sj.is_file():
         try:
             old = json.loads(sj.read_text())
-        except (OSError, json.JSONDecodeError):
+        except (OSError, ValueError):
             old = None
-        if old is not None and old.get("study") == params.get("study"):
-            return  # a re-run of the same study: its files are reproduced identically
+        if isinstance(old, dict) and old.get("study") == params.get("study"):
+            # a re-run (or the resumption) of the same study: its own files
+            # are reproduced, but never over a file changed since it wrote it
+            recorded = old.get("files")
+            if isinstance(recorded, dict) and not force:
+                changed = []
+                for name, digest in sorted(recorded.items()):
+                    f = out / name
+                    try:
+                        if f.is_file() and _sha256(f) != digest:
+                            changed.append(name)
+                    except OSError:
+                        changed.append(name)
+                if changed:
+                    more = f" and {len(changed) - 1} more" if len(changed) > 1 else ""
+                    raise StudyError(
+                        f"{out / changed[0]}{more} changed since this study wrote it; "
+                        "move the edited file away, or re-run with --force to overwrite it"
+                    )
+            return
         if force:
             return
         raise StudyError(
@@ -404,6 +461,18 @@ def run_study(
     params = {"study": jsonable(study.to_dict())}
     _check_out_dir(out_dir, params, force)
     out_dir.mkdir(parents=True, exist_ok=True)
+    # Mark the folder as this study's at once: a run killed midway resumes
+    # here without --force (its stores keep what was finished).
+    sj = out_dir / "study.json"
+    previous: dict = {}
+    if sj.is_file():
+        try:
+            previous = json.loads(sj.read_text())
+        except (OSError, ValueError):
+            previous = {}
+    if not isinstance(previous, dict) or previous.get("study") != params["study"]:
+        previous = {}
+    _write_json(sj, {**params, "status": "running", "files": previous.get("files", {})})
     ctx = StudyContext(out_dir, workers, say or (lambda _m: None))
     ctx.stores.mkdir(exist_ok=True)
     report = Report(study.title, intro=[study.description] if study.description else [])
@@ -415,10 +484,10 @@ def run_study(
         shutil.copyfile(study.path, out_dir / "study.toml")  # the exact input, beside its results
     doc = dict(params)
     doc["versions"] = _versions()
-    doc["files"] = sorted(
-        p.name for p in out_dir.iterdir() if p.is_file() and p.name != "study.json"
-    )
-    (out_dir / "study.json").write_text(json.dumps(doc, indent=2, sort_keys=True) + "\n")
+    doc["status"] = "complete"
+    # what the study wrote, with hashes: a re-run refuses to overwrite a file changed since
+    doc["files"] = {p.relative_to(out_dir).as_posix(): _sha256(p) for p in _result_files(out_dir)}
+    _write_json(sj, doc)
     return {
         "out": str(out_dir),
         "report": str(out_dir / "report.md"),

@@ -8,7 +8,10 @@ Inside
   sieve tables (``$CYCLEWRIGHT_CACHE_DIR``, else the user cache directory).
 - :func:`atomic_write` -- write through a temporary file beside the target,
   then rename it into place: a reader sees the old file or the new one, never
-  a part, and a failure leaves any existing file untouched.
+  a part, and a failure leaves any existing file untouched. The file gets the
+  permissions any new file gets under the process's umask (``0644`` under the
+  usual ``022``), so shared results come out shared.
+- :func:`file_mode` -- that mode.
 """
 
 from __future__ import annotations
@@ -18,7 +21,7 @@ import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
-__all__ = ["data_dir", "cache_dir", "atomic_write"]
+__all__ = ["data_dir", "cache_dir", "atomic_write", "file_mode"]
 
 
 def data_dir() -> Path:
@@ -59,6 +62,7 @@ def atomic_write(path: str | os.PathLike, writer: Callable[[str], object]) -> Pa
     os.close(fd)
     try:
         writer(tmp)
+        os.chmod(tmp, file_mode())  # mkstemp makes 0600; a new file would get 0666 & ~umask
         os.replace(tmp, target)
     except BaseException:
         try:
@@ -67,3 +71,16 @@ def atomic_write(path: str | os.PathLike, writer: Callable[[str], object]) -> Pa
             pass
         raise
     return target
+
+
+def file_mode() -> int:
+    """The mode a new file gets under the current umask (``0o666 & ~umask``).
+
+    >>> old = os.umask(0o022)
+    >>> oct(file_mode())
+    '0o644'
+    >>> _ = os.umask(old)
+    """
+    mask = os.umask(0)  # reading the umask means setting it: put it back at once
+    os.umask(mask)
+    return 0o666 & ~mask

@@ -20,15 +20,86 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import signal
 import socket
+import sys
+import threading
 import time
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from urllib.parse import urlsplit
 
 from ..errors import InputError
+from ..stopping import STOP_SIGNALS, check_interrupt
 
-__all__ = ["LocalExecutor", "DaskExecutor", "make_executor", "DEFAULT_DASK_TIMEOUT"]
+__all__ = [
+    "LocalExecutor",
+    "DaskExecutor",
+    "make_executor",
+    "DEFAULT_DASK_TIMEOUT",
+]
+
+
+def _block_stop_signals():
+    if not hasattr(signal, "pthread_sigmask"):
+        return None
+    return signal.pthread_sigmask(signal.SIG_BLOCK, STOP_SIGNALS)
+
+
+def _restore_signals(old) -> None:
+    if old is not None:
+        signal.pthread_sigmask(signal.SIG_SETMASK, old)
+
+
+def _parent_watch(parent: int) -> None:
+    while True:
+        time.sleep(0.5)
+        if os.getppid() != parent:
+            os._exit(1)
+
+
+def _worker_setup(parent: int) -> None:
+    """In each worker: leave stop signals to the parent, and end when the parent is gone."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    for name in ("SIGTERM", "SIGHUP"):
+        if hasattr(signal, name):
+            signal.signal(getattr(signal, name), signal.SIG_DFL)
+    if sys.platform.startswith("linux"):
+        try:  # the kernel ends this worker the moment its parent ends
+            import ctypes
+
+            libc = ctypes.CDLL(None, use_errno=True)
+            libc.prctl(1, signal.SIGKILL, 0, 0, 0)  # PR_SET_PDEATHSIG
+        except Exception:  # pragma: no cover - the watch thread below still works
+            pass
+    if os.getppid() != parent:  # the parent ended before this worker was set up
+        os._exit(1)
+    threading.Thread(target=_parent_watch, args=(parent,), daemon=True).start()
+    _restore_signals(set())  # unblock what the parent blocked while starting the pool
+
+
+def _stop_pool(pool: ProcessPoolExecutor) -> None:
+    """End the workers now (interrupt or error): nothing they compute is wanted any more."""
+    procs = list((getattr(pool, "_processes", None) or {}).values())
+    for p in procs:
+        try:
+            p.terminate()
+        except Exception:  # pragma: no cover - already gone
+            pass
+    try:
+        pool.shutdown(wait=False, cancel_futures=True)
+    except Exception:  # pragma: no cover - a broken pool
+        pass
+    deadline = time.monotonic() + 10
+    for p in procs:
+        try:
+            p.join(max(0.0, deadline - time.monotonic()))
+            if p.is_alive():
+                p.kill()
+                p.join(1)
+        except Exception:  # pragma: no cover - already gone
+            pass
+
 
 DEFAULT_DASK_TIMEOUT = 10.0
 
@@ -70,27 +141,45 @@ class LocalExecutor:
         head = [t for _, t in zip(range(2 * self.workers), it)]
         if self.workers == 1 or len(head) <= 1:
             for t in head:
+                check_interrupt()
                 yield fn(t)
             for t in it:
+                check_interrupt()
                 yield fn(t)
             return
         if self.prepare is not None:
             self.prepare()
+        check_interrupt()
         methods = multiprocessing.get_all_start_methods()
         ctx = multiprocessing.get_context("fork" if "fork" in methods else None)
         n = min(self.workers, len(head))
-        pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        # The workers are started with the stop signals blocked, so none can
+        # reach a worker before it has set itself up to ignore them (the
+        # parent alone answers an interrupt, and ends the workers).
+        old = _block_stop_signals()
         try:
+            pool = ProcessPoolExecutor(
+                max_workers=n, mp_context=ctx, initializer=_worker_setup, initargs=(os.getpid(),)
+            )
             pending = {pool.submit(fn, t) for t in head}
+        finally:
+            _restore_signals(old)
+        finished = False
+        try:
             while pending:
-                done, pending = wait(pending, return_when=FIRST_COMPLETED)
+                check_interrupt()
+                done, pending = wait(pending, timeout=0.5, return_when=FIRST_COMPLETED)
                 for f in done:
                     nxt = next(it, None)
                     if nxt is not None:
                         pending.add(pool.submit(fn, nxt))
                     yield f.result()
+            finished = True
         finally:
-            pool.shutdown(wait=True, cancel_futures=True)
+            if finished:
+                pool.shutdown(wait=True)
+            else:
+                _stop_pool(pool)
 
     def close(self) -> None:
         pass

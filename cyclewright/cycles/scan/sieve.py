@@ -11,6 +11,8 @@ Inside
 - :func:`jump_table` -- the exact composite of ``j`` steps for every residue
   mod ``d^j`` (plain Python integers; used by tests and for inspection).
 - :func:`class_word` -- the first ``K`` residues shared by a class.
+- :func:`cache_limit`, :func:`cache_usage`, :func:`clear_cache` -- the bounded
+  on-disk cache of tables (least recently used evicted first).
 
 The mathematics (the proof the scan relies on)
 ----------------------------------------------
@@ -96,6 +98,10 @@ __all__ = [
     "MAX_DEPTH",
     "MAX_MODULUS",
     "MAX_SURVIVORS",
+    "DEFAULT_CACHE_LIMIT",
+    "cache_limit",
+    "cache_usage",
+    "clear_cache",
 ]
 
 #: Never sieve deeper than this many steps.
@@ -295,12 +301,16 @@ def sieve_table(m: Map | str, limit: int = MAX_DEPTH) -> SieveTable:
     negative side. The depth never exceeds ``limit``; pass the step cap (or
     the cycle-length bound) so that a proved drop is a drop within the cap.
 
-    Tables of depth 16 and more are kept in the user cache directory
+    Tables of ``2^20`` classes and more (cheaper ones are rebuilt in
+    milliseconds) are kept in the user cache directory
     (``$CYCLEWRIGHT_CACHE_DIR`` overrides; ``CYCLEWRIGHT_NO_CACHE=1`` turns
     it off), keyed on the map's canonical hash, the depth limit and a hash of
     this module's source, so a changed construction never reads an old
     table. A cached file that does not read back whole and consistent is
-    rebuilt.
+    rebuilt. The cache is bounded by :func:`cache_limit` (512 MiB unless
+    ``$CYCLEWRIGHT_CACHE_LIMIT`` says otherwise): the least recently used
+    tables are removed first, and a table larger than half the bound is
+    not cached at all.
 
     Examples
     --------
@@ -313,7 +323,7 @@ def sieve_table(m: Map | str, limit: int = MAX_DEPTH) -> SieveTable:
     K = safe_depth(m, min(limit, MAX_DEPTH))
     if K <= 0:
         return _empty(m.key)
-    cache = _cache_file(m, K) if K >= _CACHE_MIN_DEPTH else None
+    cache = _cache_file(m, K) if m.divisor**K >= _CACHE_MIN_MODULUS else None
     if cache is not None:
         table = _cache_read(cache, m, K)
         if table is not None:
@@ -349,7 +359,7 @@ def _build(m: Map, K: int) -> SieveTable:
 
 
 # --------------------------------------------------------------------------- the table cache
-_CACHE_MIN_DEPTH = 16  # shallower tables take milliseconds to build
+_CACHE_MIN_MODULUS = 2**20  # tables of fewer classes take milliseconds to build: not cached
 _FIELDS = ("classes", "jump", "A", "C", "qmax")
 
 
@@ -393,17 +403,106 @@ def _cache_read(path: Path, m: Map, K: int) -> SieveTable | None:
         return None
     if not ok:
         return None
+    try:  # recently used: the last to be evicted
+        os.utime(path)
+    except OSError:
+        pass
     return SieveTable(m.key, depth, modulus, *arrays)
 
 
 def _cache_write(path: Path, t: SieveTable) -> None:
-    """Write atomically; failures (no space, no permission) only cost speed."""
+    """Write atomically, then evict to the limit; failures (no space, no permission) only cost speed."""
+    limit = cache_limit()
+    size = sum(a.nbytes for a in t.arrays())
+    if size > limit // 2:  # a table that would crowd out the rest is rebuilt instead
+        return
     meta = np.array([t.map_key, str(t.depth), str(t.modulus)])
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
         atomic_write(path, lambda tmp: np.savez(tmp, meta=meta, **dict(zip(_FIELDS, t.arrays()))))
     except OSError:
-        pass
+        return
+    _evict(path.parent, limit, keep=path)
+
+
+#: Default bound of the sieve table cache in bytes (``$CYCLEWRIGHT_CACHE_LIMIT`` overrides).
+DEFAULT_CACHE_LIMIT = 512 * 2**20
+_UNITS = {"": 1, "K": 2**10, "M": 2**20, "G": 2**30, "T": 2**40}
+
+
+def cache_limit() -> int:
+    """The cache bound in bytes: ``$CYCLEWRIGHT_CACHE_LIMIT`` (``500M``, ``2G``, ``0``) or 512 MiB.
+
+    Least recently used tables are removed first when the cache would pass it.
+
+    >>> cache_limit() > 0
+    True
+    """
+    text = os.environ.get("CYCLEWRIGHT_CACHE_LIMIT", "").strip().upper().removesuffix("B")
+    if not text:
+        return DEFAULT_CACHE_LIMIT
+    unit = text[-1] if text[-1] in _UNITS else ""
+    try:
+        value = float(text[: len(text) - len(unit)] if unit else text)
+    except ValueError:
+        from ..errors import InputError
+
+        raise InputError(
+            f"CYCLEWRIGHT_CACHE_LIMIT must be a size like 500M or 2G, got {text!r}"
+        ) from None
+    return max(0, int(value * _UNITS[unit]))
+
+
+def _cache_files(root: Path) -> list[tuple[float, int, Path]]:
+    out = []
+    for f in root.glob("*.npz"):
+        try:
+            st = f.stat()
+        except OSError:
+            continue
+        out.append((st.st_mtime, st.st_size, f))
+    return sorted(out)
+
+
+def _evict(root: Path, limit: int, keep: Path | None = None) -> None:
+    """Remove the least recently used tables until the cache holds at most ``limit`` bytes."""
+    files = _cache_files(root)
+    total = sum(size for _, size, _ in files)
+    for _, size, f in files:
+        if total <= limit:
+            break
+        if keep is not None and f == keep:
+            continue
+        try:
+            f.unlink()
+            total -= size
+        except OSError:
+            pass
+
+
+def cache_usage() -> dict:
+    """``{"path", "files", "bytes", "limit"}`` of the sieve table cache."""
+    root = cache_dir() / "sieve"
+    files = _cache_files(root) if root.is_dir() else []
+    return {
+        "path": str(root),
+        "files": len(files),
+        "bytes": sum(size for _, size, _ in files),
+        "limit": cache_limit(),
+    }
+
+
+def clear_cache() -> int:
+    """Remove every cached sieve table; the bytes freed."""
+    root = cache_dir() / "sieve"
+    freed = 0
+    for _, size, f in _cache_files(root) if root.is_dir() else []:
+        try:
+            f.unlink()
+            freed += size
+        except OSError:
+            pass
+    return freed
 
 
 def sieve_levels(m: Map | str, limit: int = MAX_DEPTH) -> tuple[SieveTable, ...]:

@@ -11,6 +11,9 @@ Inside
 - :func:`default_store_path` -- where a map's store lives by default: keyed
   on the map's canonical definition (``$CYCLEWRIGHT_DATA_DIR``, else the
   platform's user data directory), so every name of the same map shares it.
+- :func:`store_info`, :func:`list_stores`, :func:`remove_store` -- the
+  stores on this machine (map, ranges, size, age), and removing one that no
+  process is using.
 - :data:`SCHEMA_VERSION`, :data:`SEMANTICS` -- versions checked on opening.
 
 Layout (schema version 2)
@@ -105,6 +108,9 @@ __all__ = [
     "MAX_START",
     "DEFAULT_BUSY_WAIT",
     "code_version",
+    "store_info",
+    "list_stores",
+    "remove_store",
 ]
 
 #: Layout version of the file; a store of another version is refused.
@@ -1149,3 +1155,139 @@ def _chunk_problem(lo: int, hi: int, counts, cycle_rows, unres) -> str | None:
     if n_open and int(np.frombuffer(esc, dtype=np.uint8).max()) > 1:
         return "an escape flag is not 0 or 1"
     return None
+
+
+# --------------------------------------------------------------------------- stores on disk
+def store_info(path: str | os.PathLike) -> dict:
+    """What a store file holds, read without writing and without knowing its map.
+
+    Returns a dict with ``path``, ``size`` (bytes), ``modified`` (POSIX
+    time), and when readable ``map_label``, ``map_key``, ``formula``,
+    ``schema_version`` and ``scans`` (side, step cap, length bound, chunks,
+    starts done, lowest and highest start); otherwise ``problem``.
+    """
+    p = Path(path)
+    st = p.stat()
+    info: dict = {"path": str(p), "size": st.st_size, "modified": st.st_mtime}
+    for extra in ("-journal", "-wal"):
+        side = p.with_name(p.name + extra)
+        if side.exists():
+            info["size"] += side.stat().st_size
+    try:
+        conn = sqlite3.connect(p.resolve().as_uri() + "?mode=ro", uri=True, timeout=0.5)
+    except sqlite3.Error as exc:
+        info["problem"] = f"cannot be opened ({exc})"
+        return info
+    conn.text_factory = lambda b: b.decode("utf-8", "replace")
+    try:
+        if conn.execute("PRAGMA application_id").fetchone()[0] != _APPLICATION_ID:
+            info["problem"] = "not a cyclewright scan store"
+            return info
+        meta = dict(conn.execute("SELECT key, value FROM meta").fetchall())
+        info["schema_version"] = conn.execute("PRAGMA user_version").fetchone()[0]
+        info["map_label"] = meta.get("map_label")
+        info["map_key"] = meta.get("map_key")
+        try:
+            d = json.loads(meta.get("map_definition", "{}"))
+            info["formula"] = Map(d["divisor"], d["branches"]).formula()
+        except Exception:
+            info["formula"] = None
+        scans = []
+        for sid, side, steps, K in conn.execute(
+            "SELECT id, side, max_steps, max_cycle_length FROM scans ORDER BY id"
+        ).fetchall():
+            n, starts, lo, hi = conn.execute(
+                "SELECT count(*), coalesce(sum(hi - lo + 1), 0), min(lo), max(hi) FROM chunks"
+                " WHERE scan_id = ? AND status = 'done'",
+                (sid,),
+            ).fetchone()
+            scans.append(
+                {
+                    "side": side,
+                    "max_steps": steps,
+                    "max_cycle_length": K,
+                    "chunks_done": n,
+                    "starts_done": starts,
+                    "lowest": lo,
+                    "highest": hi,
+                }
+            )
+        info["scans"] = scans
+        running = conn.execute("SELECT count(*) FROM runs WHERE status = 'running'").fetchone()[0]
+        info["runs_marked_running"] = running
+        if info["schema_version"] != SCHEMA_VERSION:
+            info["problem"] = (
+                f"schema version {info['schema_version']}, this cyclewright reads {SCHEMA_VERSION}"
+            )
+    except sqlite3.Error as exc:
+        info["problem"] = ("busy" if _kind(exc) == "busy" else "unreadable") + f" ({exc})"
+    finally:
+        conn.close()
+    return info
+
+
+def list_stores(directory: str | os.PathLike | None = None) -> list[dict]:
+    """:func:`store_info` of every ``*.sqlite`` file in ``directory`` (default: the stores' directory).
+
+    >>> import tempfile
+    >>> list_stores(tempfile.mkdtemp())
+    []
+    """
+    root = Path(directory) if directory is not None else data_dir() / "scans"
+    if not root.is_dir():
+        return []
+    return [store_info(p) for p in sorted(root.glob("*.sqlite")) if p.is_file()]
+
+
+def remove_store(path: str | os.PathLike) -> int:
+    """Delete a store file (with its journal) unless a process is using it; the bytes freed.
+
+    Raises
+    ------
+    StoreError
+        The file is not a scan store, or another process is using it.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise StoreError(f"no store at {p}")
+    with open(p, "rb") as fh:
+        if fh.read(len(_HEADER)) != _HEADER:
+            raise StoreError(f"{p} is not a cyclewright scan store; nothing was removed")
+    try:
+        conn = sqlite3.connect(str(p), timeout=0.2, isolation_level=None)
+        try:
+            if conn.execute("PRAGMA application_id").fetchone()[0] != _APPLICATION_ID:
+                raise StoreError(f"{p} is not a cyclewright scan store; nothing was removed")
+            conn.execute("BEGIN EXCLUSIVE")  # nobody else may hold it while it goes
+            live = [
+                (pid, host)
+                for pid, host in conn.execute(
+                    "SELECT pid, host FROM runs WHERE status = 'running'"
+                ).fetchall()
+                if host != _host() or _pid_alive(int(pid))
+            ]
+            if live:
+                conn.execute("ROLLBACK")
+                who = ", ".join(f"process {pid} on {host}" for pid, host in live)
+                raise StoreError(f"store {p} is in use by {who}; nothing was removed")
+            freed = p.stat().st_size
+            p.unlink()
+            conn.execute("ROLLBACK")
+        finally:
+            conn.close()
+    except sqlite3.Error as exc:
+        if _kind(exc) == "busy":
+            raise StoreError(
+                f"store {p} is in use by another process; nothing was removed"
+            ) from None
+        # an unreadable or damaged file: it is still ours to remove
+        freed = p.stat().st_size
+        p.unlink()
+    for extra in ("-journal", "-wal", "-shm"):
+        side = p.with_name(p.name + extra)
+        try:
+            freed += side.stat().st_size
+            side.unlink()
+        except OSError:
+            pass
+    return freed

@@ -1,0 +1,194 @@
+"""No process outlives its command; every stop signal ends it the same way.
+
+The runs here are real subprocesses; the tests wait on what the processes
+write (store rows, signal masks) with generous timeouts, never on speed.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import signal
+import sqlite3
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+
+def _children(pid: int) -> set[int]:
+    """Process ids whose parent is ``pid`` (Linux /proc)."""
+    out = set()
+    for d in Path("/proc").iterdir():
+        if not d.name.isdigit():
+            continue
+        try:
+            stat = (d / "stat").read_text()
+        except OSError:
+            continue
+        fields = stat[stat.rindex(")") + 2 :].split()
+        if int(fields[1]) == pid:
+            out.add(int(d.name))
+    return out
+
+
+def _alive(pid: int) -> bool:
+    try:
+        stat = Path(f"/proc/{pid}/stat").read_text()
+    except OSError:
+        return False
+    return stat[stat.rindex(")") + 2] != "Z"
+
+
+def _gone(pids, timeout=120.0) -> bool:
+    deadline = time.monotonic() + timeout
+    while time.monotonic() < deadline:
+        if not any(_alive(p) for p in pids):
+            return True
+        time.sleep(0.1)
+    return False
+
+
+def _done_chunks(path) -> int:
+    try:
+        conn = sqlite3.connect(f"file:{path}?mode=ro", uri=True, timeout=0.2)
+        try:
+            return conn.execute("SELECT count(*) FROM chunks WHERE status = 'done'").fetchone()[0]
+        finally:
+            conn.close()
+    except sqlite3.Error:
+        return 0
+
+
+def _handlers_installed(pid: int) -> bool:
+    """Whether the process catches SIGTERM (the CLI installs its stop handlers first thing)."""
+    try:
+        for line in Path(f"/proc/{pid}/status").read_text().splitlines():
+            if line.startswith("SigCgt:"):
+                return bool(int(line.split()[1], 16) >> (signal.SIGTERM - 1) & 1)
+    except OSError:
+        pass
+    return False
+
+
+_ARGS = ["5x+1", "--to", "60000", "--chunk-size", "2000", "--workers", "2", "--json"]
+_TOTAL = 30
+
+
+def _scan(store, steps, **kw):
+    return subprocess.Popen(
+        [sys.executable, "-m", "cyclewright", "scan", *_ARGS, "--max-steps", str(steps)]
+        + ["--store", str(store)],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        start_new_session=True,
+        **kw,
+    )
+
+
+def _midway(proc, store, at_least):
+    """Wait until the run has finished ``at_least`` chunks and still runs with its workers."""
+    deadline = time.monotonic() + 300
+    while time.monotonic() < deadline and proc.poll() is None:
+        workers = _children(proc.pid)
+        if _done_chunks(store) >= at_least and len(workers) >= 2:
+            return workers
+        time.sleep(0.02)
+    return None
+
+
+def _essentials(doc):
+    return (doc["counts"], doc["cycles"], doc["minima"], doc["unresolved"], doc["complete"])
+
+
+def test_no_worker_outlives_sigterm_or_kill_9_and_the_rerun_is_whole(tmp_path):
+    for steps in (3000, 6000, 12000, 24000):
+        store = tmp_path / f"s{steps}.sqlite"
+        # 1. SIGTERM to the main process only: one line, exit 128+15, workers gone
+        proc = _scan(store, steps)
+        workers = _midway(proc, store, 1)
+        if workers is None:
+            proc.communicate(timeout=600)
+            continue  # finished too soon: a heavier scan
+        proc.send_signal(signal.SIGTERM)
+        out, err = proc.communicate(timeout=300)
+        assert proc.returncode == 128 + signal.SIGTERM, err
+        assert err.splitlines()[-1] == "error: interrupted" and "Traceback" not in err
+        assert out == ""
+        assert _gone(workers), "a worker outlived SIGTERM of its command"
+        # 2. kill -9 of the main process only: the workers notice and end, and
+        # the pipe they shared closes (communicate would wait forever otherwise)
+        n = _done_chunks(store)
+        if n >= _TOTAL - 2:
+            continue
+        proc = _scan(store, steps)
+        workers = _midway(proc, store, n + 1)
+        if workers is None:
+            proc.communicate(timeout=600)
+            continue
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.communicate(timeout=300)
+        assert _gone(workers), "a worker outlived kill -9 of its command"
+        # 3. the re-run completes, equal to an uninterrupted run
+        again = subprocess.run(
+            [sys.executable, "-m", "cyclewright", "scan", *_ARGS, "--max-steps", str(steps)]
+            + ["--store", str(store)],
+            capture_output=True,
+            text=True,
+            timeout=900,
+        )
+        assert again.returncode == 0, again.stderr
+        whole = subprocess.run(
+            [sys.executable, "-m", "cyclewright", "scan", *_ARGS, "--max-steps", str(steps)]
+            + ["--store", str(tmp_path / "whole.sqlite")],
+            capture_output=True,
+            text=True,
+            timeout=900,
+        )
+        assert whole.returncode == 0, whole.stderr
+        assert _essentials(json.loads(again.stdout)) == _essentials(json.loads(whole.stdout))
+        # Lagarias 1985 (from memory): the positive 5x+1 cycles have minima 1, 13, 17
+        assert json.loads(again.stdout)["minima"] == {"positive": [1, 13, 17]}
+        conn = sqlite3.connect(store)
+        statuses = [r[0] for r in conn.execute("SELECT status FROM runs ORDER BY id")]
+        conn.close()
+        assert statuses[-1] == "complete" and "running" not in statuses
+        return
+    pytest.fail("the scan always finished before it could be stopped")
+
+
+@pytest.mark.parametrize("sig", ["SIGINT", "SIGTERM", "SIGHUP"])
+def test_a_stop_signal_at_any_moment_ends_the_command(tmp_path, sig):
+    # A scan far too long to finish; the signal arrives at growing delays
+    # after the command has set up its handlers, from kernel loading on.
+    env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba"))
+    signum = getattr(signal, sig)
+    for delay in (0.0, 0.3, 1.0, 2.5):
+        proc = subprocess.Popen(
+            [sys.executable, "-m", "cyclewright", "scan", "3x+1", "--to", "10^15"]
+            + ["--no-store", "--workers", "2"],
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+            env=env,
+            start_new_session=True,
+        )
+        deadline = time.monotonic() + 120
+        while not _handlers_installed(proc.pid) and proc.poll() is None:
+            assert time.monotonic() < deadline
+            time.sleep(0.005)
+        time.sleep(delay)
+        kids = _children(proc.pid)
+        if signum == signal.SIGINT:  # Ctrl-C reaches the whole process group
+            os.killpg(proc.pid, signum)
+        else:
+            proc.send_signal(signum)
+        out, err = proc.communicate(timeout=300)
+        assert proc.returncode == 128 + signum, (delay, err)
+        lines = [x for x in err.splitlines() if not x.startswith("progress:")]
+        assert lines == ["error: interrupted"], (delay, err)
+        assert out == ""
+        assert _gone(kids)
