@@ -192,3 +192,63 @@ def test_a_stop_signal_at_any_moment_ends_the_command(tmp_path, sig):
         assert lines == ["error: interrupted"], (delay, err)
         assert out == ""
         assert _gone(kids)
+
+
+# ----------------------------------------------------------------- Dask clusters
+def _local_cluster(n_workers):
+    distributed = pytest.importorskip("distributed")
+    return distributed.LocalCluster(
+        n_workers=n_workers,
+        threads_per_worker=1,
+        processes=False,
+        protocol="tcp://",
+        host="127.0.0.1",
+        dashboard_address=None,
+    )
+
+
+def test_a_cluster_without_workers_is_waited_for_then_given_up(tmp_path, monkeypatch):
+    from cyclewright.cycles.scan import scan
+    from cyclewright.cycles.scan.executors import ClusterError
+
+    monkeypatch.setenv("CYCLEWRIGHT_WORKER_WAIT", "2")
+    lines = []
+    with _local_cluster(0) as cluster:
+        with pytest.raises(ClusterError, match="no workers for 2 s"):
+            scan(
+                "3x+1",
+                5000,
+                chunk_size=1000,
+                store=tmp_path / "s.sqlite",
+                executor="dask",
+                scheduler=cluster.scheduler_address,
+                notice=lines.append,
+            )
+    assert len(lines) == 1 and "has no workers; waiting up to 2 s" in lines[0]
+
+
+def test_losing_the_scheduler_is_one_line_and_nothing_finished_is_lost(tmp_path):
+    from cyclewright.cycles.scan import scan
+    from cyclewright.cycles.scan.executors import ClusterError
+
+    store = tmp_path / "s.sqlite"
+    with _local_cluster(1) as cluster:
+
+        def progress(event):
+            if event.done:  # the first chunk is in: the scheduler goes away
+                cluster.close()
+
+        with pytest.raises(ClusterError, match="lost the Dask scheduler"):
+            scan(
+                "3x+1",
+                40000,
+                chunk_size=1000,
+                store=store,
+                executor="dask",
+                scheduler=cluster.scheduler_address,
+                progress=progress,
+            )
+    kept = _done_chunks(store)
+    assert kept >= 1
+    again = scan("3x+1", 40000, chunk_size=1000, store=store, workers=1)
+    assert again.chunks_reused >= kept and again.counts["positive"]["drops"] == 39999

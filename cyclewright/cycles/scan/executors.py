@@ -37,6 +37,8 @@ __all__ = [
     "DaskExecutor",
     "make_executor",
     "DEFAULT_DASK_TIMEOUT",
+    "DEFAULT_WORKER_WAIT",
+    "ClusterError",
 ]
 
 
@@ -102,6 +104,29 @@ def _stop_pool(pool: ProcessPoolExecutor) -> None:
 
 
 DEFAULT_DASK_TIMEOUT = 10.0
+#: Seconds a Dask run waits for a cluster without workers before giving up.
+DEFAULT_WORKER_WAIT = 300.0
+_DASK_POLL = 1.0
+
+
+class ClusterError(InputError):
+    """The Dask cluster went away (scheduler lost) or stayed without workers: one line."""
+
+
+def _worker_wait() -> float:
+    text = os.environ.get("CYCLEWRIGHT_WORKER_WAIT")
+    if text:
+        try:
+            return max(0.0, float(text))
+        except ValueError:
+            raise InputError(
+                f"CYCLEWRIGHT_WORKER_WAIT must be a number of seconds, got {text!r}"
+            ) from None
+    return DEFAULT_WORKER_WAIT
+
+
+def _stderr_notice(text: str) -> None:
+    print(text, file=sys.stderr, flush=True)
 
 
 def default_workers() -> int:
@@ -230,12 +255,26 @@ class DaskExecutor:
         Seconds to wait for the scheduler before giving up.
     window : int, optional
         Tasks in flight at once (default: twice the cluster's threads, at least 4).
+    worker_wait : float, optional
+        Seconds to wait, with a message, while the cluster has no workers;
+        then :class:`ClusterError`. Default: ``$CYCLEWRIGHT_WORKER_WAIT`` or
+        :data:`DEFAULT_WORKER_WAIT`.
+    notice : callable, optional
+        Receives one-line messages (default: stderr).
+
+    A scheduler lost mid-run raises :class:`ClusterError` with one line; the
+    chunks finished before are in the store.
     """
 
     name = "dask"
 
     def __init__(
-        self, address: str, timeout: float = DEFAULT_DASK_TIMEOUT, window: int | None = None
+        self,
+        address: str,
+        timeout: float = DEFAULT_DASK_TIMEOUT,
+        window: int | None = None,
+        worker_wait: float | None = None,
+        notice: Callable[[str], None] | None = None,
     ):
         try:
             import distributed
@@ -249,6 +288,8 @@ class DaskExecutor:
                 "the dask executor needs a scheduler address (--scheduler tcp://HOST:PORT)"
             )
         self.address = address
+        self.worker_wait = _worker_wait() if worker_wait is None else float(worker_wait)
+        self.notice = notice or _stderr_notice
         _probe(address, timeout)
         try:
             self.client = distributed.Client(address, timeout=f"{timeout}s", set_as_default=False)
@@ -264,25 +305,85 @@ class DaskExecutor:
             window = max(4, 2 * threads)
         self.window = window
 
+    def _workers(self) -> int | None:
+        try:
+            return len(self.client.scheduler_info().get("workers", {}))
+        except Exception:  # the scheduler itself is gone: the next result says so
+            return None
+
+    def _lost(self, exc: BaseException) -> ClusterError:
+        why = " ".join(str(exc).split()) or type(exc).__name__
+        return ClusterError(
+            f"lost the Dask scheduler at {self.address} ({type(exc).__name__}: {why}); "
+            "every chunk finished before is kept in the store, re-run to resume"
+        )
+
     def map_unordered(self, fn: Callable, tasks: Iterable) -> Iterator:
+        import asyncio
+        import concurrent.futures as cf
+
         it = iter(tasks)
         live = [self.client.submit(fn, t, pure=False) for _, t in zip(range(self.window), it)]
         if not live:
             return
-        queue = self._distributed.as_completed(live, loop=self.client.loop)
+        pending = set(live)
+        lonely_since = None
+        quiet = 0.0
+        lost = (cf.CancelledError, asyncio.CancelledError, OSError, EOFError)
         try:
-            for fut in queue:
-                nxt = next(it, None)
-                if nxt is not None:
-                    new = self.client.submit(fn, nxt, pure=False)
-                    live.append(new)
-                    queue.add(new)
-                result = fut.result()
-                live.remove(fut)
-                yield result
+            while pending:
+                check_interrupt()
+                done = {f for f in pending if f.done()}
+                if not done:
+                    if self.client.status in ("closing", "closed"):
+                        raise self._lost(ConnectionError("the client was disconnected"))
+                    time.sleep(0.05)
+                    quiet += 0.05
+                    if quiet < _DASK_POLL:
+                        continue
+                quiet = 0.0
+                pending -= done
+                if not done:
+                    n = self._workers()
+                    now = time.monotonic()
+                    if n == 0:
+                        if lonely_since is None:
+                            lonely_since = now
+                            self.notice(
+                                f"the Dask cluster at {self.address} has no workers; waiting up "
+                                f"to {self.worker_wait:g} s for one"
+                            )
+                        elif now - lonely_since > self.worker_wait:
+                            raise ClusterError(
+                                f"the Dask cluster at {self.address} had no workers for "
+                                f"{self.worker_wait:g} s; every chunk finished before is kept in "
+                                "the store, re-run to resume"
+                            )
+                    else:
+                        lonely_since = None
+                    continue
+                for fut in done:
+                    try:
+                        result = fut.result()
+                    except lost as exc:
+                        raise self._lost(exc) from None
+                    except Exception as exc:
+                        if type(exc).__name__ in ("FutureCancelledError", "CommClosedError"):
+                            raise self._lost(exc) from None
+                        raise
+                    live.remove(fut)
+                    nxt = next(it, None)
+                    if nxt is not None:
+                        new = self.client.submit(fn, nxt, pure=False)
+                        live.append(new)
+                        pending.add(new)
+                    yield result
         finally:
             for fut in live:
-                fut.cancel()
+                try:
+                    fut.cancel()
+                except Exception:  # pragma: no cover - the scheduler is gone
+                    pass
 
     def close(self) -> None:
         try:

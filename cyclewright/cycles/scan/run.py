@@ -218,6 +218,8 @@ def scan(
     try:
         if notice is None:
             notice = _stderr_notice
+        if hasattr(ex, "notice"):
+            ex.notice = notice
         led, opened = _open_store(store, m, notice)
         try:
             return _run(
