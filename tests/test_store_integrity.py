@@ -228,3 +228,22 @@ def test_cli_no_recompute_refuses_with_one_line_and_keeps_the_file(tmp_path):
     doc = json.loads(p.stdout)
     # 3x+1: every positive start up to 300 reaches the cycle of 1 (common practice, no source)
     assert doc["counts"]["positive"]["drops"] == 299 and doc["minima"] == {"positive": [1]}
+
+
+def test_a_full_disk_is_one_line_and_keeps_what_was_finished(tmp_path):
+    # SQLite answers "database or disk is full" when a file reaches its page
+    # limit exactly as when the disk fills (sqlite.org/pragma.html#pragma_max_page_count).
+    m = maps.get("5x+1")
+    path = tmp_path / "full.sqlite"
+    kw = dict(workers=1, chunk_size=500, max_steps=2000)
+    scan(m, 1000, store=path, **kw)
+    with ScanStore(path, m) as st:
+        pages = st._conn.execute("PRAGMA page_count").fetchone()[0]
+        st._conn.execute(f"PRAGMA max_page_count = {pages + 1}")
+        with pytest.raises(StoreError, match="the disk is full") as err:
+            scan(m, 20000, store=st, **kw)
+        assert "\n" not in str(err.value) and "re-run" in str(err.value)
+    again = scan(m, 20000, store=path, **kw)
+    assert again.chunks_reused >= 2
+    fresh = scan(m, 20000, store=False, **kw)
+    assert _essentials(again) == _essentials(fresh)
