@@ -181,16 +181,20 @@ class LocalExecutor:
         # The workers are started with the stop signals blocked, so none can
         # reach a worker before it has set itself up to ignore them (the
         # parent alone answers an interrupt, and ends the workers).
+        pool = None
+        finished = False
         old = _block_stop_signals()
         try:
-            pool = ProcessPoolExecutor(
-                max_workers=n, mp_context=ctx, initializer=_worker_setup, initargs=(os.getpid(),)
-            )
-            pending = {pool.submit(fn, t) for t in head}
-        finally:
-            _restore_signals(old)
-        finished = False
-        try:
+            try:
+                pool = ProcessPoolExecutor(
+                    max_workers=n,
+                    mp_context=ctx,
+                    initializer=_worker_setup,
+                    initargs=(os.getpid(),),
+                )
+                pending = {pool.submit(fn, t) for t in head}
+            finally:
+                _restore_signals(old)  # a signal that came meanwhile is raised here
             while pending:
                 check_interrupt()
                 done, pending = wait(pending, timeout=0.5, return_when=FIRST_COMPLETED)
@@ -201,10 +205,11 @@ class LocalExecutor:
                     yield f.result()
             finished = True
         finally:
-            if finished:
-                pool.shutdown(wait=True)
-            else:
-                _stop_pool(pool)
+            if pool is not None:
+                if finished:
+                    pool.shutdown(wait=True)
+                else:
+                    _stop_pool(pool)
 
     def close(self) -> None:
         pass
