@@ -27,11 +27,14 @@ by $CYCLEWRIGHT_CACHE_LIMIT.
 """
 
 
-def _size(n: int) -> str:
-    for unit in ("B", "kB", "MB", "GB"):
-        if n < 1000 or unit == "GB":
-            return f"{n:,.0f} {unit}" if unit == "B" else f"{n:,.1f} {unit}"
-        n /= 1000
+def _size(n: float) -> str:
+    """Bytes in binary units (the cache limit is given the same way: 512M = 512 MiB)."""
+    if n < 1024:
+        return f"{n:,.0f} B"
+    for unit in ("KiB", "MiB", "GiB", "TiB"):
+        n /= 1024
+        if n < 1024 or unit == "TiB":
+            return f"{n:,.1f} {unit}"
     return f"{n}"  # pragma: no cover
 
 
@@ -84,7 +87,7 @@ def list_cmd(store, as_json: bool) -> None:
     rows = []
     for i in infos:
         what = i.get("map_label") or "?"
-        if i.get("formula"):
+        if i.get("formula") and i["formula"] != what:
             what += f" = {i['formula']}"
         rows.append(
             [
