@@ -281,7 +281,8 @@ def _check_batch(m, led, sid, side, batch, recompute, notice) -> dict:
         lo, hi, why = damaged[0]
         more = f" and {len(damaged) - 1} more" if len(damaged) > 1 else ""
         where = led.path or "in memory"
-        what = f"store {where}: chunk [{lo}, {hi}] of the {side} side{more} is damaged ({why})"
+        verb = "are" if more else "is"
+        what = f"store {where}: chunk [{lo}, {hi}] of the {side} side{more} {verb} damaged ({why})"
         if not recompute:
             raise StoreError(f"{what}; refused (--no-recompute), nothing was reported")
         if led.readonly:
