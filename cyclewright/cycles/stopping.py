@@ -16,6 +16,7 @@ an interrupt at any moment ends the work.
 
 from __future__ import annotations
 
+import os
 import signal
 import threading
 
@@ -39,10 +40,25 @@ def stop_signal() -> int | None:
     return _stop["signal"]
 
 
+#: Code that runs Python callbacks from C (the compiler's object cache): an
+#: exception raised there is printed and dropped, so the stop waits for the
+#: next :func:`check_interrupt` instead.
+_CALLBACK_CODE = ("llvmlite", f"{os.sep}numba{os.sep}")
+
+
+def _inside_callback(frame) -> bool:
+    while frame is not None:
+        name = frame.f_code.co_filename
+        if any(part in name for part in _CALLBACK_CODE):
+            return True
+        frame = frame.f_back
+    return False
+
+
 def _on_stop(signum, frame) -> None:
     first = _stop["signal"] is None
     _stop["signal"] = signum
-    if first:
+    if first and not _inside_callback(frame):
         raise KeyboardInterrupt
 
 
@@ -50,7 +66,9 @@ def install_stop_handlers() -> None:
     """Make SIGINT, SIGTERM and SIGHUP raise :class:`KeyboardInterrupt` in the main thread.
 
     A second signal while the first is being handled is only remembered, so
-    the clean-up of the first is not itself interrupted.
+    the clean-up of the first is not itself interrupted; so is a signal that
+    arrives while the kernel compiler runs Python callbacks (which would
+    drop the exception): the next :func:`check_interrupt` raises it.
     """
     if threading.current_thread() is not threading.main_thread():
         return

@@ -165,6 +165,9 @@ class LocalExecutor:
         it = iter(tasks)
         head = [t for _, t in zip(range(2 * self.workers), it)]
         if self.workers == 1 or len(head) <= 1:
+            if self.prepare is not None:  # compile first: an interrupt then ends it at once
+                self.prepare()
+                check_interrupt()
             for t in head:
                 check_interrupt()
                 yield fn(t)
