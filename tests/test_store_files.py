@@ -196,3 +196,22 @@ def test_a_killed_study_resumes_in_its_folder_without_a_flag(tmp_path):
     other.write_text(STUDY.replace("Overwrite check", "Another study"))
     r = run_cli("study", str(other), "--out", str(out), "--workers", "1")
     assert r.returncode == 2 and "different study" in r.stderr
+
+
+def test_study_files_follow_the_umask(tmp_path):
+    src = tmp_path / "s.toml"
+    src.write_text(STUDY)
+    out = tmp_path / "out"
+    r = subprocess.run(
+        [sys.executable, "-m", "cyclewright", "study", str(src), "--out", str(out)]
+        + ["--workers", "1"],
+        capture_output=True,
+        text=True,
+        timeout=600,
+        preexec_fn=lambda: os.umask(0o022),
+    )
+    assert r.returncode == 0, r.stderr
+    files = [p for p in out.rglob("*") if p.is_file() and "stores" not in p.parts]
+    assert len(files) > 5
+    for f in files:  # tables, report, plots, study.json: shared like any new file
+        assert stat.S_IMODE(f.stat().st_mode) == 0o644, f

@@ -25,6 +25,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from cyclewright.cycles.files import atomic_write
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 
 from .render import csv_text, jsonable, short
@@ -217,13 +218,18 @@ class Report:
             seen.add(t.name)
             for ext, text in (("csv", t.csv()), ("json", t.json()), ("tex", t.latex())):
                 p = out / f"{t.name}.{ext}"
-                p.write_text(text)
+                _write(p, text)
                 written.append(p)
         text = self.markdown()
-        (out / "report.md").write_text(text)
-        (out / "report.html").write_text(self.html(text))
+        _write(out / "report.md", text)
+        _write(out / "report.html", self.html(text))
         written += [out / "report.md", out / "report.html"]
         return written
+
+
+def _write(path: Path, text: str) -> None:
+    """Atomically, with the permissions of any new file (the umask), like every output."""
+    atomic_write(path, lambda tmp: Path(tmp).write_text(text))
 
 
 def table_from_records(
