@@ -2,7 +2,10 @@
 
 Error policy: bad input prints one line ``error: ...`` on stderr and exits
 with status 2; an internal failure prints one line and exits with 1 (set
-``CYCLEWRIGHT_DEBUG=1`` for the traceback); success exits 0.
+``CYCLEWRIGHT_DEBUG=1`` for the traceback); success exits 0. A message
+never repeats a long input in full: any word longer than 60 characters is
+shortened to its ends and its length. Commands run with Python's limit on
+integer/text conversion lifted for our own output (see ``render``).
 """
 
 from __future__ import annotations
@@ -17,7 +20,8 @@ import sys
 import click
 
 from . import commands as _commands_pkg
-from .errors import USER_ERRORS
+from .errors import USER_ERRORS, one_line
+from .render import unlimited_digits
 
 __all__ = ["cli", "main", "run"]
 
@@ -173,7 +177,8 @@ def _main(args: list[str], stopping) -> None:
     user_errors: tuple = ()
     try:
         user_errors = USER_ERRORS()
-        cli.main(args=args, prog_name="cyclewright", standalone_mode=False)
+        with unlimited_digits():
+            cli.main(args=args, prog_name="cyclewright", standalone_mode=False)
         stopping.check_interrupt()  # an interrupt some library swallowed still ends the command
     except click.exceptions.NoArgsIsHelpError as exc:
         click.echo(exc.ctx.get_help() if exc.ctx else str(exc))
@@ -183,12 +188,10 @@ def _main(args: list[str], stopping) -> None:
     except (click.exceptions.Abort, KeyboardInterrupt, _Stopped):
         _interrupted(stopping)
     except click.ClickException as exc:
-        msg = " ".join(exc.format_message().split())
-        click.echo(f"error: {msg}", err=True)
+        click.echo(f"error: {one_line(exc.format_message())}", err=True)
         sys.exit(2)
     except user_errors as exc:
-        msg = " ".join(str(exc).split())
-        click.echo(f"error: {msg}", err=True)
+        click.echo(f"error: {one_line(exc)}", err=True)
         sys.exit(2)
     except BrokenPipeError:
         sys.exit(0)
@@ -197,8 +200,7 @@ def _main(args: list[str], stopping) -> None:
             _interrupted(stopping)
         if os.environ.get("CYCLEWRIGHT_DEBUG"):
             raise
-        msg = " ".join(str(exc).split())
-        click.echo(f"error: internal failure: {type(exc).__name__}: {msg}", err=True)
+        click.echo(f"error: internal failure: {type(exc).__name__}: {one_line(exc)}", err=True)
         sys.exit(1)
     sys.exit(0)
 

@@ -45,7 +45,18 @@ from cyclewright.cycles.sides import SIDES as _ACTUAL_SIDES
 from cyclewright.maps import Map, MapError, load_catalog
 
 from .errors import BadInput
-from .numbers import int_expression, int_range
+from .numbers import (
+    MAX_ENUMERATION,
+    MAX_FAMILY_MEMBERS,
+    MAX_STEP_CAP,
+    MAX_TYPE_LENGTH,
+    MAX_WORKERS,
+    check_members,
+    check_range,
+    int_expression,
+    int_range,
+    quote,
+)
 
 __all__ = [
     "IntExpr",
@@ -146,25 +157,38 @@ class IntRange(click.ParamType):
 
     name = "range"
 
-    def __init__(self, minimum: int | None = None) -> None:
+    def __init__(
+        self,
+        minimum: int | None = None,
+        maximum: int | None = None,
+        max_members: int | None = None,
+    ) -> None:
         self.minimum = minimum
+        self.maximum = maximum
+        self.max_members = max_members
 
     def convert(self, value, param, ctx):
+        what = _name(param, ctx)
         if isinstance(value, range):
             r = value
         else:
             try:
                 r = int_range(value)
             except ValueError as exc:
-                raise BadInput(f"{_name(param, ctx)}: {exc}") from None
+                raise BadInput(f"{what}: {exc}") from None
         if self.minimum is not None and r.start < self.minimum:
-            raise BadInput(
-                f"{_name(param, ctx)} must start at {self.minimum} or above, got {value!r}"
-            )
+            raise BadInput(f"{what} must start at {self.minimum} or above, got {quote(value)}")
+        try:
+            if self.max_members is not None:
+                check_members(r, what, self.max_members)
+            if self.maximum is not None:
+                check_range(r[-1], f"the end of {what}", maximum=self.maximum)
+        except ValueError as exc:
+            raise BadInput(str(exc)) from None
         return r
 
     def __repr__(self) -> str:
-        return f"IntRange({self.minimum})"
+        return f"IntRange({self.minimum}, {self.maximum}, {self.max_members})"
 
 
 class CeilingType(IntExpr):
@@ -239,7 +263,7 @@ side_option = _shared(
 max_steps_option = _shared(
     "--max-steps",
     "max_steps",
-    type=IntExpr(minimum=1),
+    type=IntExpr(minimum=1, maximum=MAX_STEP_CAP),
     default=DEFAULT_MAX_STEPS,
     show_default=True,
     metavar="S",
@@ -250,7 +274,7 @@ length_option = _shared(
     "--length",
     "length",
     hidden=("-k",),
-    type=IntExpr(minimum=1),
+    type=IntExpr(minimum=1, maximum=MAX_TYPE_LENGTH),
     default=None,
     metavar="K",
     help="Length k of the type (number of steps of the cycle).",
@@ -260,7 +284,7 @@ max_length_option = _shared(
     "--max-length",
     "max_length",
     hidden=("-K", "--max-cycle-length"),
-    type=IntExpr(minimum=1),
+    type=IntExpr(minimum=1, maximum=MAX_STEP_CAP),
     default=None,
     metavar="K",
     help="Largest cycle length K taken into account.",
@@ -270,7 +294,7 @@ odd_option = _shared(
     "--odd",
     "odd",
     hidden=("-x",),
-    type=IntExpr(minimum=0),
+    type=IntExpr(minimum=0, maximum=MAX_TYPE_LENGTH),
     default=None,
     metavar="X",
     help="Odd steps x of the type (steps off residue 0).",
@@ -280,7 +304,7 @@ odd_range_option = _shared(
     "--odd",
     "odd_range",
     hidden=("-x",),
-    type=IntRange(minimum=0),
+    type=IntRange(minimum=0, maximum=MAX_TYPE_LENGTH, max_members=MAX_TYPE_LENGTH),
     default=None,
     metavar="RANGE",
     help="Range of x, the odd steps (steps off residue 0), e.g. 1..2000 or 1..10^3.",
@@ -290,7 +314,7 @@ offsets_option = _shared(
     "--offsets",
     "offsets",
     hidden=("--k",),
-    type=IntRange(),
+    type=IntRange(max_members=MAX_FAMILY_MEMBERS),
     default=None,
     metavar="RANGE",
     help="For a family template such as 3x+k: the offsets k to take, e.g. 1..200.",
@@ -348,7 +372,7 @@ ceiling_option = _shared(
 limit_option = _shared(
     "--limit",
     "limit",
-    type=IntExpr(minimum=0),
+    type=IntExpr(minimum=0, maximum=MAX_ENUMERATION),
     default=None,
     metavar="L",
     help=(
@@ -391,7 +415,7 @@ from_option = _shared(
 workers_option = _shared(
     "--workers",
     "workers",
-    type=IntExpr(minimum=1),
+    type=IntExpr(minimum=1, maximum=MAX_WORKERS),
     default=None,
     metavar="W",
     help="Worker processes [default: all cores].",
@@ -543,7 +567,9 @@ def resolve_store(store: str | None, no_store: bool) -> str | bool | None:
     return store
 
 
-def parse_int(text, what: str, *, minimum: int | None = None, maximum: int | None = None) -> int:
+def parse_int(
+    text, what: str, *, minimum: int | None = None, maximum: int | None = None, why: str = ""
+) -> int:
     """An integer written as ``1000000``, ``10^9``, ``2^63-1``, ``3*2^40`` or ``1e9``.
 
     For positional arguments and values that are not options; bad input
@@ -554,12 +580,7 @@ def parse_int(text, what: str, *, minimum: int | None = None, maximum: int | Non
     """
     try:
         value = int_expression(text)
+        return check_range(value, what, text=text, minimum=minimum, maximum=maximum, why=why)
     except ValueError as exc:
-        raise BadInput(f"{what} {exc}") from None
-    if isinstance(text, int):
-        text = str(text)
-    if minimum is not None and value < minimum:
-        raise BadInput(f"{what} must be at least {minimum}, got {text!r}")
-    if maximum is not None and value > maximum:
-        raise BadInput(f"{what} must be at most {maximum}, got {text!r}")
-    return value
+        msg = str(exc)
+        raise BadInput(msg if msg.startswith(what) else f"{what} {msg}") from None

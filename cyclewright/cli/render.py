@@ -5,14 +5,24 @@ Conventions (shared by every command)
 - LaTeX (``--latex``): a booktabs ``tabular`` (:func:`latex_table`), numbers
   in math mode, integers of five or more digits grouped by thin spaces, the
   label of each figure in a column of its own.
-- JSON: one document on stdout; integers stay JSON integers (any size);
-  rationals become ``"p/q"`` strings (``"5"`` when integral); floats only
-  where a value is a rate or a plot coordinate.
-- Tables: rich tables on stdout; progress and warnings on stderr.
+- JSON: one document on stdout; integers stay JSON integers with all their
+  digits, whatever their size (Python's 4300-digit limit on turning
+  integers into text is lifted for our own output, see
+  :func:`unlimited_digits`); rationals become ``"p/q"`` strings (``"5"``
+  when integral); floats only where a value is a rate or a plot coordinate.
+- Tables and text: an exact integer longer than a cell shows its first and
+  last digits and its digit count (:func:`short`, ``12345…67890 (5000
+  digits)``); a bound, whose digits carry no information, may be shown as
+  ``~10^x`` (:func:`magnitude`) next to its label.
+- Progress and warnings go to stderr.
+
+Every renderer goes through :func:`short` / :func:`jsonable`, so no integer
+is ever turned into text by another route.
 """
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import dataclasses
 import enum
@@ -26,12 +36,16 @@ from fractions import Fraction
 from pathlib import Path
 
 __all__ = [
+    "unlimited_digits",
+    "int_digits",
+    "magnitude",
     "jsonable",
     "emit_json",
     "stdout_console",
     "stderr_console",
     "make_table",
     "short",
+    "elide_digits",
     "write_csv",
     "csv_text",
     "tex_escape",
@@ -40,6 +54,70 @@ __all__ = [
     "latex_output",
     "LatexBlock",
 ]
+
+
+@contextlib.contextmanager
+def unlimited_digits():
+    """Lift Python's limit on integer/text conversion (4300 digits) for our own output.
+
+    The CLI runs every command inside this; text read from files is parsed
+    with the limit back in place (:func:`cyclewright.maps.mapfile.parsing_digit_limit`).
+    """
+    get = getattr(sys, "get_int_max_str_digits", None)
+    if get is None:  # pragma: no cover - Python without the limit
+        yield
+        return
+    old = get()
+    sys.set_int_max_str_digits(0)
+    try:
+        yield
+    finally:
+        sys.set_int_max_str_digits(old)
+
+
+_LOG10_2 = math.log10(2)
+
+
+def int_digits(n: int) -> int:
+    """Decimal digits of ``|n|`` (1 for 0), without converting to text.
+
+    >>> int_digits(0), int_digits(9), int_digits(10), int_digits(-(10**5000))
+    (1, 1, 2, 5001)
+    """
+    n = abs(n)
+    if n < 10:
+        return 1
+    d = int((n.bit_length() - 1) * _LOG10_2) + 1
+    return d + 1 if n >= 10**d else d
+
+
+def _log10(n: int) -> float:
+    n = abs(n)
+    shift = max(n.bit_length() - 64, 0)
+    return math.log10(n >> shift) + shift * _LOG10_2
+
+
+def magnitude(n: int | Fraction) -> str:
+    """An order of magnitude, ``~10^x``, for values whose digits carry no information (bounds).
+
+    >>> magnitude(12345), magnitude(3**10000), magnitude(-(2**100))
+    ('12345', '~10^4771.21', '-~10^30.10')
+    """
+    if isinstance(n, Fraction):
+        n = n.numerator // n.denominator
+    if abs(n) < 10**6:
+        return str(n)
+    sign = "-" if n < 0 else ""
+    return f"{sign}~10^{_log10(n):.2f}"
+
+
+def _elided(n: int, keep: int) -> str:
+    """First and last ``keep`` digits of a long integer, computed without full conversion."""
+    a = abs(n)
+    d = int_digits(a)
+    head = a // 10 ** (d - keep)
+    tail = a % 10**keep
+    return f"{'-' if n < 0 else ''}{head}…{tail:0{keep}d} ({d} digits)"
 
 
 def jsonable(obj):
@@ -79,9 +157,10 @@ def jsonable(obj):
 
 
 def emit_json(obj, stream=None) -> None:
-    """Print ``obj`` as one JSON document."""
+    """Print ``obj`` as one JSON document (integers with all their digits)."""
     stream = stream or sys.stdout
-    stream.write(json.dumps(jsonable(obj), indent=2) + "\n")
+    with unlimited_digits():
+        stream.write(json.dumps(jsonable(obj), indent=2) + "\n")
 
 
 def _console(stream):
@@ -124,7 +203,17 @@ def short(value, digits: int = 40) -> str:
         return "-"
     if isinstance(value, float):
         return f"{value:.6g}"
-    text = str(value)
+    keep = max(digits // 2, 5)
+    if isinstance(value, int) and int_digits(value) > 2 * digits + 8:
+        return _elided(value, keep)
+    if (
+        isinstance(value, Fraction)
+        and int_digits(value.numerator) + int_digits(value.denominator) > 2 * digits + 8
+    ):
+        num = short(value.numerator, digits)
+        return f"{num}/{short(value.denominator, digits)}"
+    with unlimited_digits():
+        text = str(value)
     n = len(text.lstrip("-"))
     if isinstance(value, (int, Fraction)) and n > digits:
         if isinstance(value, int) and n <= 2 * digits + 8:
@@ -132,6 +221,23 @@ def short(value, digits: int = 40) -> str:
         keep = max(digits // 2, 5)
         return f"{text[:keep]}…{text[-keep:]} ({n} digits)"
     return text
+
+
+def elide_digits(text: str, digits: int = 40) -> str:
+    """``text`` with every run of more than ``2 * digits + 8`` digits shortened as :func:`short` does.
+
+    For notes and sentences the API writes with integers inside.
+
+    >>> elide_digits("there are " + "7" * 100 + " necklaces", digits=5)
+    'there are 77777…77777 (100 digits) necklaces'
+    """
+    import re
+
+    keep = max(digits // 2, 5)
+    pattern = re.compile(r"\d{" + str(2 * digits + 9) + ",}")
+    return pattern.sub(
+        lambda m: f"{m.group(0)[:keep]}…{m.group(0)[-keep:]} ({len(m.group(0))} digits)", text
+    )
 
 
 def make_table(
@@ -200,8 +306,9 @@ def write_csv(path_or_stream, columns: Sequence[str], rows: Iterable[Sequence]) 
         return
     w = csv.writer(path_or_stream, lineterminator="\n")
     w.writerow(columns)
-    for row in rows:
-        w.writerow([cell(v) for v in row])
+    with unlimited_digits():
+        for row in rows:
+            w.writerow([cell(v) for v in row])
 
 
 def csv_text(columns: Sequence[str], rows: Iterable[Sequence]) -> str:

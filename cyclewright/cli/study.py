@@ -54,6 +54,10 @@ class StudyContext:
     def name(self, *parts: str) -> str:
         """A unique file stem for a table or plot."""
         base = slug("-".join(parts))
+        if len(base) > 80:  # e.g. a verified range of 1000 digits: keep names short
+            import hashlib
+
+            base = f"{base[:60]}-{hashlib.sha256(base.encode()).hexdigest()[:12]}"
         stem, i = base, 2
         while stem in self.names:
             stem, i = f"{base}-{i}", i + 1

@@ -31,28 +31,53 @@ the defaults are the command line's (:mod:`cyclewright.cli.options`).
 
 Every error names the file, the table and the key, e.g.
 ``demo.toml: [[analysis]] #2 (census): key 'max_length': must be an integer >= 1, got 0``.
+
+Limits: a study file has at most :data:`MAX_STUDY_FILE_BYTES` bytes and
+:data:`MAX_ANALYSES` analyses; it is parsed with Python's 4300-digit limit on
+integers in place; every parameter has the range given in :data:`PARAMS`
+(the same limits as the command-line options).
 """
 
 from __future__ import annotations
 
-import sys
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
-from cyclewright.maps.mapfile import map_from_table
+from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
 
-from .numbers import int_expression, int_range
+from .numbers import (
+    MAX_CENSUS_LENGTH,
+    MAX_START_DIGITS,
+    MAX_STEP_CAP,
+    check_members,
+    int_expression,
+    int_range,
+    quote,
+)
 from .options import DEFAULT_CEILING, DEFAULT_MAX_STEPS, DEFAULT_SIDE, SIDES
 
-if sys.version_info >= (3, 11):
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
+__all__ = [
+    "StudyError",
+    "Study",
+    "AnalysisSpec",
+    "load_study",
+    "parse_study",
+    "PARAMS",
+    "MAX_STUDY_FILE_BYTES",
+    "MAX_ANALYSES",
+]
 
-__all__ = ["StudyError", "Study", "AnalysisSpec", "load_study", "parse_study", "PARAMS"]
+#: Largest study file read (bytes).
+MAX_STUDY_FILE_BYTES = 2**20
+
+#: Most ``[[analysis]]`` entries in one study.
+MAX_ANALYSES = 200
+
+#: Most values one range parameter (``odd = "1..60"``) takes.
+MAX_RANGE_MEMBERS = 10_000
 
 
 class StudyError(ValueError):
@@ -63,21 +88,39 @@ class StudyError(ValueError):
 def _int(lo: int | None = None, hi: int | None = None) -> Callable[[object], int]:
     def check(v):
         if isinstance(v, bool) or not isinstance(v, (int, str)):
-            raise ValueError(f"must be an integer, got {v!r}")
+            raise ValueError(f"must be an integer, got {_shown(v)}")
         value = int_expression(v)  # raises ValueError with the reason
         if lo is not None and value < lo:
-            raise ValueError(f"must be an integer >= {lo}, got {v}")
+            raise ValueError(f"must be an integer >= {lo}, got {_shown(v)}")
         if hi is not None and value > hi:
-            raise ValueError(f"must be an integer <= {hi}, got {v}")
+            raise ValueError(f"must be an integer <= {_limit(hi)}, got {_shown(v)}")
         return value
 
     return check
 
 
+def _shown(v: object) -> str:
+    """A value from the file for an error message, shortened when long."""
+    if isinstance(v, int) and not isinstance(v, bool):
+        from .render import short
+
+        return short(v, 20)
+    if isinstance(v, str):
+        return quote(v)
+    text = repr(v)
+    return text if len(text) <= 48 else f"{text[:20]}…{text[-20:]}"
+
+
+def _limit(value: int) -> str:
+    from .numbers import limit_text
+
+    return limit_text(value)
+
+
 def _choice(*options: str) -> Callable[[object], str]:
     def check(v):
         if v not in options:
-            raise ValueError(f"must be one of {', '.join(options)}, got {v!r}")
+            raise ValueError(f"must be one of {', '.join(options)}, got {_shown(v)}")
         return v
 
     return check
@@ -85,11 +128,11 @@ def _choice(*options: str) -> Callable[[object], str]:
 
 def _range_text(v) -> range:
     if isinstance(v, bool) or not isinstance(v, (int, str)):
-        raise ValueError(f'must be a range like "1..60", got {v!r}')
+        raise ValueError(f'must be a range like "1..60", got {_shown(v)}')
     r = int_range(v)  # raises ValueError with the reason
     if r.start < 1:
-        raise ValueError(f"must start at 1 or above, got {v!r}")
-    return r
+        raise ValueError(f"must start at 1 or above, got {_shown(v)}")
+    return check_members(r, "the range", MAX_RANGE_MEMBERS)
 
 
 def _bool(v) -> bool:
@@ -126,22 +169,22 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "to": (_int(1, 2**62), 10**6),
         "from": (_int(1, 2**62), 1),
         "side": (SIDE, DEFAULT_SIDE),
-        "max_steps": (_int(1, 10**9), DEFAULT_MAX_STEPS),
+        "max_steps": (_int(1, MAX_STEP_CAP), DEFAULT_MAX_STEPS),
     },
     "census": {
-        "max_length": (_int(1, 10**7), 30),
+        "max_length": (_int(1, MAX_CENSUS_LENGTH), 30),
         "side": (SIDE, DEFAULT_SIDE),
         "method": (_choice("auto", "bound-scan", "itineraries", "necklaces", "both"), "auto"),
         "family": (_str, ""),
         "offsets": (_range_text, "1..1"),
     },
     "floor": {
-        "verified_to": (_int(1), 2**40),
+        "verified_to": (_int(1, 10**MAX_START_DIGITS), 2**40),
         "side": (SIDE, DEFAULT_SIDE),
         "next": (_int(0, 50), 3),
     },
     "compare": {
-        "max_length": (_int(1, 10**7), 20),
+        "max_length": (_int(1, MAX_CENSUS_LENGTH), 20),
         "to": (_int(1, 2**62), 10**5),
         "odd": (_int(1, 100_000), 20),
         "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
@@ -158,7 +201,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "to": (_int(1, 10**6), 200),
         "side": (SIDE, DEFAULT_SIDE),
         "plot": (_bool, True),
-        "ceiling": (_int(1), DEFAULT_CEILING),
+        "ceiling": (_int(1, 10**MAX_START_DIGITS), DEFAULT_CEILING),
     },
 }
 
@@ -206,15 +249,15 @@ class Study:
 def load_study(path: str | Path) -> Study:
     """Read and validate a study file; raises :class:`StudyError` with a precise message."""
     p = Path(path)
+    if p.is_dir():
+        raise StudyError(f"{p}: is a directory, not a study file")
     try:
-        text = p.read_text()
-    except OSError as exc:
-        raise StudyError(f"{p}: cannot read study file ({exc.strerror or exc})") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise StudyError(f"{p}: not valid TOML: {exc}") from None
-    return parse_study(data, origin=str(p), base_dir=p.parent, path=p)
+        raw = read_limited(p, MAX_STUDY_FILE_BYTES, "study file")
+    except ValueError as exc:
+        raise StudyError(str(exc)) from None
+    data = parse_toml(raw, str(p), "study file", StudyError)
+    with parsing_digit_limit():
+        return parse_study(data, origin=str(p), base_dir=p.parent, path=p)
 
 
 def parse_study(
@@ -265,6 +308,7 @@ def parse_study(
             m = map_from_table(
                 name, table, origin=f"{origin}: [maps.define]", source=f"study:{origin}"
             )
+            catalog.check_file_map(m)
         except MapError as exc:
             raise StudyError(str(exc)) from None
         catalog.add(m, override=True)
@@ -295,6 +339,10 @@ def parse_study(
     an = data.get("analysis", [])
     if not isinstance(an, list) or not an:
         raise StudyError(f"{origin}: [[analysis]]: the study needs at least one analysis")
+    if len(an) > MAX_ANALYSES:
+        raise StudyError(
+            f"{origin}: [[analysis]]: {len(an)} analyses; a study has at most {MAX_ANALYSES}"
+        )
     specs = []
     for i, table in enumerate(an, start=1):
         where = f"{origin}: [[analysis]] #{i}"
@@ -306,9 +354,9 @@ def parse_study(
             else table
         )
         kind = table.get("kind")
-        if kind not in PARAMS:
+        if not isinstance(kind, str) or kind not in PARAMS:
             raise StudyError(
-                f"{where}: key 'kind': must be one of {', '.join(PARAMS)}, got {kind!r}"
+                f"{where}: key 'kind': must be one of {', '.join(PARAMS)}, got {_shown(kind)}"
             )
         where = f"{where} ({kind})"
         schema = PARAMS[kind]

@@ -279,29 +279,34 @@ def _crossing(m: Map) -> int | None:
     return math.floor(best)
 
 
-def itinerary_work(m: Map | str, max_length: int) -> int:
+def itinerary_work(m: Map | str, max_length: int, cap: int | None = None) -> int:
     """Half-words the itinerary method joins up to ``max_length`` (for feasibility checks).
 
     For each length ``k`` the join pairs every product class of the prefixes
     (length ``floor(k/2)``) with every class of the suffixes, so the work is
-    ``sum_k (classes_j * d^i + classes_i * d^j)``.
+    ``sum_k (classes_j * d^i + classes_i * d^j)``. With ``cap`` the sum stops
+    as soon as it exceeds ``cap`` (the answer is then some value above ``cap``),
+    so the estimate itself costs little for any length.
 
     >>> from cyclewright import maps
     >>> itinerary_work(maps.get("3x+1"), 4)
     50
+    >>> itinerary_work(maps.get("3x+1"), 10**9, cap=10**8) > 10**8
+    True
     """
     m = as_map(m)
     d = m.divisor
-    half = (max_length + 1) // 2
     classes = [1]
     products = {1}
-    for _ in range(half):
-        products = {p * a for p in products for a in m.multipliers}
-        classes.append(len(products))
     total = 0
     for k in range(1, max_length + 1):
         i, j = k // 2, k - k // 2
+        while len(classes) <= j:
+            products = {p * a for p in products for a in m.multipliers}
+            classes.append(len(products))
         total += classes[j] * d**i + classes[i] * d**j
+        if cap is not None and total > cap:
+            break
     return total
 
 
@@ -432,18 +437,18 @@ def census(
     words_sides = [s for s, p in plans.items() if p.method == "itineraries"]
     need_words = bool(words_sides) or method == "both" or (method == "auto" and K <= 16)
     if need_words:
-        work = itinerary_work(m, K)
+        work = itinerary_work(m, K, cap=MAX_ITINERARY_WORK)
         if work > MAX_ITINERARY_WORK:
             if words_sides:
                 raise InputError(
                     f"{m.label}: no applicable method for length {K} on the {'/'.join(words_sides)} side: "
-                    f"{plans[words_sides[0]].reason}, and the itinerary method would join about "
-                    f"{work:.1e} half-words (limit {MAX_ITINERARY_WORK:.0e}); lower the length"
+                    f"{plans[words_sides[0]].reason}, and the itinerary method would join more than "
+                    f"{MAX_ITINERARY_WORK:.0e} half-words (limit {MAX_ITINERARY_WORK:.0e}); lower the length"
                 )
             if method == "both":
                 raise InputError(
-                    f"{m.label}: the itinerary cross-check for length {K} would join about {work:.1e} "
-                    "half-words; use method bound-scan"
+                    f"{m.label}: the itinerary cross-check for length {K} would join more than "
+                    f"{MAX_ITINERARY_WORK:.0e} half-words; use method bound-scan"
                 )
             need_words = False  # the automatic cross-check is skipped when too costly
 

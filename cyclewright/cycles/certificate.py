@@ -75,6 +75,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from cyclewright.maps import Map, MapError
+from cyclewright.maps.mapfile import digits_problem, parsing_digit_limit, read_limited
 
 from .errors import InputError
 from .files import atomic_write
@@ -109,6 +110,19 @@ EXIT_NOT_RUN = 3
 
 _SIDES = ("positive", "negative")
 _METHODS = ("bound-scan", "itineraries", "necklaces")
+
+#: Largest certificate file read (bytes); integers in it have at most 4300 digits.
+MAX_CERTIFICATE_BYTES = 64 * 2**20
+
+# The shape of a certificate: top-level key -> type, and the type of each entry.
+_SHAPE = {
+    "map": dict,
+    "max_length": int,
+    "sides": list,
+    "plans": dict,
+    "cycles": list,
+    "count": int,
+}
 
 # ----------------------------------------------------------------- writing
 
@@ -226,19 +240,77 @@ def load_certificate(path: str | os.PathLike) -> dict:
     checks everything else.
     """
     p = Path(path)
+    if p.is_dir():
+        raise InputError(f"{p}: is a directory, not a certificate")
     try:
-        doc = json.loads(p.read_text())
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
-    except (UnicodeDecodeError, json.JSONDecodeError, RecursionError):
+        raw = read_limited(p, MAX_CERTIFICATE_BYTES, "certificate")
+    except ValueError as exc:
+        raise InputError(str(exc)) from None
+    try:
+        with parsing_digit_limit():
+            doc = json.loads(raw.decode("utf-8"))
+    except (UnicodeDecodeError, json.JSONDecodeError):
         raise InputError(f"{p}: not a census certificate (not JSON)") from None
+    except RecursionError:
+        raise InputError(f"{p}: not a census certificate (nested too deeply)") from None
+    except ValueError as exc:  # an integer beyond the digit limit
+        raise InputError(f"{p}: not a usable certificate: {digits_problem(exc)}") from None
     if not isinstance(doc, dict) or doc.get("format") != FORMAT:
         raise InputError(f"{p}: not a census certificate (format field missing or different)")
     if doc.get("version") != VERSION:
         raise InputError(
             f"{p}: certificate version {doc.get('version')!r} is not supported (expected {VERSION})"
         )
+    _check_shape(doc, p)
     return doc
+
+
+def _kind(value: object) -> str:
+    return {dict: "an object", list: "a list", str: "a string", type(None): "null"}.get(
+        type(value), type(value).__name__
+    )
+
+
+def _check_shape(doc: dict, p: Path) -> None:
+    """Refuse (one line) a document whose structure is not a certificate's, before any check runs."""
+
+    names = {dict: "an object", list: "a list", int: "an integer"}
+
+    def bad(where: str, want: str, got: object) -> InputError:
+        return InputError(
+            f"{p}: not a census certificate ({where} must be {want}, got {_kind(got)})"
+        )
+
+    for key, kind in _SHAPE.items():
+        if key not in doc:
+            raise InputError(f"{p}: not a census certificate (key {key!r} missing)")
+        value = doc[key]
+        if not isinstance(value, kind) or isinstance(value, bool):
+            raise bad(key, names[kind], value)
+    definition = doc["map"].get("definition")
+    if not isinstance(definition, dict):
+        raise bad("map.definition", "an object", definition)
+    branches = definition.get("branches")
+    if not isinstance(branches, list) or not all(
+        isinstance(b, list) and len(b) == 2 and all(type(x) is int for x in b) for b in branches
+    ):
+        raise bad("map.definition.branches", "a list of [multiplier, offset] pairs", branches)
+    if type(definition.get("divisor")) is not int:
+        raise bad("map.definition.divisor", "an integer", definition.get("divisor"))
+    for side, plan in doc["plans"].items():
+        if not isinstance(plan, dict):
+            raise bad(f"plans.{side}", "an object", plan)
+    for i, rec in enumerate(doc["cycles"]):
+        if not isinstance(rec, dict):
+            raise bad(f"cycles[{i}]", "an object", rec)
+        elems = rec.get("elements")
+        if not isinstance(elems, list) or not all(type(e) is int for e in elems):
+            raise bad(f"cycles[{i}].elements", "a list of integers", elems)
+    scanned = doc.get("scanned", [])
+    if not isinstance(scanned, list) or not all(isinstance(r, dict) for r in scanned):
+        raise bad("scanned", "a list of objects", scanned)
+    if not all(isinstance(s, str) for s in doc["sides"]) or not doc["sides"]:
+        raise InputError(f"{p}: not a census certificate (sides must name the sides)")
 
 
 # ----------------------------------------------------------------- outcome

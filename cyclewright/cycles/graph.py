@@ -354,6 +354,7 @@ class FunctionalGraph(Presentable):
         (deterministic for a given ``seed``); they are for looking only.
         """
         n = self.graph.number_of_nodes()
+        _fmt(path)  # an unknown format is refused before any drawing
         if n > PLOT_NODE_LIMIT:
             raise InputError(
                 f"the graph has {n} nodes; plotting is for at most {PLOT_NODE_LIMIT} "
@@ -424,7 +425,11 @@ def _layout(g: nx.DiGraph, seed: int) -> dict:
 
 def _fmt(path: str | os.PathLike) -> str:
     ext = Path(path).suffix.lower().lstrip(".")
-    return ext if ext in ("png", "svg", "pdf") else "png"
+    if ext not in ("png", "svg", "pdf"):
+        raise InputError(
+            f"cannot tell the image format of {str(path)[-60:]!r}: use .png, .svg or .pdf"
+        )
+    return ext
 
 
 def _dot_id(text: str) -> str:

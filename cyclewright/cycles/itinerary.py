@@ -10,6 +10,7 @@ Inside
 - :func:`rotations`, :func:`least_rotation` -- necklace representatives.
 - :func:`composite` -- ``(A, B)`` with ``T_w(n) = (A n + B) / d^k``.
 - :func:`content` -- how many times each residue occurs (the type).
+- :data:`MAX_ITINERARY_LENGTH` -- the longest itinerary accepted.
 
 References
 ----------
@@ -35,7 +36,13 @@ __all__ = [
     "least_rotation",
     "composite",
     "content",
+    "MAX_ITINERARY_LENGTH",
 ]
+
+#: Longest itinerary accepted: its exact cycle has that many elements of about
+#: as many digits each, so work and memory grow with the square of the length
+#: (3x+1 at this length: about 2 s; ten times longer: minutes).
+MAX_ITINERARY_LENGTH = 100_000
 
 
 class ItineraryError(ValueError):
@@ -80,6 +87,8 @@ def parse_itinerary(text: str | Sequence[int], divisor: int) -> tuple[int, ...]:
     """
     if not isinstance(text, str):
         word = tuple(int(r) for r in text)
+        if len(word) > MAX_ITINERARY_LENGTH:
+            raise ItineraryError(f"the itinerary has more than {MAX_ITINERARY_LENGTH} letters")
     else:
         tokens = [t for t in re.split(r"[\s,]+", text.strip()) if t]
         if not tokens:
@@ -96,9 +105,19 @@ def parse_itinerary(text: str | Sequence[int], divisor: int) -> tuple[int, ...]:
                 piece = [int(c) for c in body]
             else:
                 piece = [int(body)]
+            if count is not None and len(count.lstrip("0")) > 12:
+                raise ItineraryError(
+                    f"{tok[:40]!r}: the itinerary would be longer than {MAX_ITINERARY_LENGTH} letters"
+                )
             reps = int(count) if count is not None else 1
             if reps < 1:
-                raise ItineraryError(f"{tok!r}: the repeat count must be at least 1")
+                raise ItineraryError(f"{tok[:40]!r}: the repeat count must be at least 1")
+            if len(word_list) + len(piece) * reps > MAX_ITINERARY_LENGTH:
+                raise ItineraryError(
+                    f"the itinerary has more than {MAX_ITINERARY_LENGTH} letters "
+                    f"(at least {len(word_list) + len(piece) * reps}); the exact cycle of a "
+                    "longer one takes minutes and gigabytes"
+                )
             for r in piece:
                 if r >= divisor:
                     raise ItineraryError(

@@ -18,6 +18,13 @@ does not get below ``|n|`` within the cap.
 *Cycle minimum*: the cycle element of least absolute value (the negative one
 on a tie), so ``-5`` for the cycle ``{-5, -7, -10}``.
 
+*Value cap*: an orbit may not grow without bound. Unless a ``ceiling`` is
+given, it stops with status ``"escaped"`` once a value's absolute value
+exceeds ``max(|n|, 1) * 10^DEFAULT_GROWTH_DIGITS`` (:func:`default_ceiling`),
+exactly as the step cap stops it with status ``"capped"``; neither is a
+statement that the orbit diverges. Memory is then at most about
+``max_steps`` values of the ceiling's size (:func:`orbit_memory_estimate`).
+
 *Total steps*: steps until the orbit first reaches its cycle's minimum (for
 3x+1, the steps to reach 1). For a divided ``ax+b`` map the classic count of
 the undivided map is ``total_steps + odd steps among them`` (OEIS A006577 for 3x+1).
@@ -41,9 +48,42 @@ from .itinerary import format_itinerary
 from .labels import EXACT
 from .limits import DEFAULT_MAX_STEPS
 
-__all__ = ["brent", "orbit", "Orbit"]
+__all__ = [
+    "brent",
+    "orbit",
+    "Orbit",
+    "DEFAULT_GROWTH_DIGITS",
+    "default_ceiling",
+    "orbit_memory_estimate",
+]
 
 T = TypeVar("T")
+
+#: Without an explicit ceiling an orbit stops ("escaped") once it has grown
+#: by this many decimal digits over its start.
+DEFAULT_GROWTH_DIGITS = 1000
+
+
+def default_ceiling(n: int) -> int:
+    """The value cap used when no ceiling is given: ``max(|n|, 1) * 10^1000``.
+
+    >>> default_ceiling(7) == 7 * 10**1000
+    True
+    """
+    return max(abs(n), 1) * 10**DEFAULT_GROWTH_DIGITS
+
+
+def orbit_memory_estimate(max_steps: int, ceiling: int) -> int:
+    """Bytes an :func:`orbit` may hold at most: ``max_steps + 1`` values below ``ceiling``.
+
+    A CPython integer takes about 28 bytes plus 4 bytes per 30 bits, and the
+    list of values 8 bytes per entry.
+
+    >>> orbit_memory_estimate(100_000, 10**1000) // 10**6
+    48
+    """
+    per_value = 36 + 4 * (ceiling.bit_length() // 30 + 1)
+    return (max_steps + 1) * per_value
 
 
 def brent(f: Callable[[T], T], x0: T, max_steps: int) -> tuple[int, int] | None:
@@ -117,7 +157,8 @@ class Orbit:
         The value of largest absolute value seen.
     status : str
         ``"cycle"``, ``"capped"`` (no cycle within ``max_steps``) or
-        ``"escaped"`` (passed the ceiling).
+        ``"escaped"`` (passed the ceiling, by default the value cap
+        :func:`default_ceiling`).
     """
 
     map: Map
@@ -217,8 +258,9 @@ def orbit(
         Cap on the number of steps (the orbit never loops forever); default
         :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`.
     ceiling : int, optional
-        Stop with status ``"escaped"`` once ``|value|`` exceeds this (default:
-        no ceiling, a single orbit is exact at any size).
+        Stop with status ``"escaped"`` once ``|value|`` exceeds this; by
+        default the value cap :func:`default_ceiling` (``|n| * 10^1000``),
+        so no orbit grows without bound.
 
     Returns
     -------
@@ -234,6 +276,8 @@ def orbit(
     (-17, -25, -37)
     >>> orbit(maps.get("5x+1"), 7, max_steps=200).status
     'capped'
+    >>> orbit(maps.get("5x+1"), 7, max_steps=10**5).status   # passes the value cap 7 * 10^1000
+    'escaped'
 
     References
     ----------
@@ -245,8 +289,10 @@ def orbit(
         raise TypeError(f"orbit start must be an integer, got {n!r}")
     if max_steps < 1:
         raise ValueError("max_steps must be at least 1")
-    if ceiling is not None and ceiling < abs(n):
-        raise ValueError(f"ceiling {ceiling} is below |start| = {abs(n)}")
+    if ceiling is None:
+        ceiling = default_ceiling(n)
+    elif ceiling < abs(n):
+        raise ValueError("the ceiling is below |start|")
     d = m.divisor
     step = m.step
 
@@ -261,7 +307,7 @@ def orbit(
     while len(values) - 1 < max_steps:
         v = step(values[-1])
         values.append(v)
-        if ceiling is not None and abs(v) > ceiling:
+        if abs(v) > ceiling:
             status = "escaped"
             break
         if values[tortoise_idx] == v:

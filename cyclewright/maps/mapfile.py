@@ -23,11 +23,25 @@ Each top-level table is a map; its key is the default name::
     shorthand = "7x+1"        # instead of divisor/branches
     undivided = false         # optional, shorthand only
 
+    [my-3x+1]
+    name = "3x+1"             # a name the catalog already has ...
+    shorthand = "3x+3"
+    override = true           # ... is taken over only with this opt-in
+
 Errors name the file, the map and the key.
+
+Limits
+------
+A map file has at most :data:`MAX_MAP_FILE_BYTES` bytes and
+:data:`MAX_MAPS_PER_FILE` maps; integers in it have at most 4300 digits
+(Python's own limit on reading integers from text, kept while a file is
+parsed, see :func:`parsing_digit_limit`); nesting deeper than Python can
+follow is refused. Loading takes time linear in the number of maps.
 """
 
 from __future__ import annotations
 
+import contextlib
 import os
 import sys
 from collections.abc import Mapping
@@ -41,7 +55,68 @@ if sys.version_info >= (3, 11):
 else:  # pragma: no cover
     import tomli as tomllib
 
-__all__ = ["load_map_file", "maps_from_toml_data", "user_map_files", "user_config_dir"]
+__all__ = [
+    "load_map_file",
+    "maps_from_toml_data",
+    "user_map_files",
+    "user_config_dir",
+    "parsing_digit_limit",
+    "read_limited",
+    "MAX_MAP_FILE_BYTES",
+    "MAX_MAPS_PER_FILE",
+    "PARSE_DIGIT_LIMIT",
+    "digits_problem",
+    "parse_toml",
+]
+
+#: Largest map file read (bytes); a file of 10^5 maps in shorthand form is about 4 MB.
+MAX_MAP_FILE_BYTES = 16 * 2**20
+
+#: Most maps one file may define.
+MAX_MAPS_PER_FILE = 100_000
+
+#: Integers read from files have at most this many digits (Python's default limit).
+PARSE_DIGIT_LIMIT = 4300
+
+
+@contextlib.contextmanager
+def parsing_digit_limit(limit: int = PARSE_DIGIT_LIMIT):
+    """Parse text from a file with Python's limit on integer digits in place.
+
+    Reading a decimal integer of ``n`` digits takes time quadratic in ``n``; the
+    command line lifts the limit for its own output, so every reader of
+    untrusted files (map files, studies, certificates) parses inside this.
+    """
+    get = getattr(sys, "get_int_max_str_digits", None)
+    if get is None:  # pragma: no cover - Python without the limit
+        yield
+        return
+    old = get()
+    sys.set_int_max_str_digits(limit)
+    try:
+        yield
+    finally:
+        sys.set_int_max_str_digits(old)
+
+
+def read_limited(path: str | os.PathLike, max_bytes: int, what: str) -> bytes:
+    """The bytes of ``path``, refused (``ValueError``, one line) beyond ``max_bytes``.
+
+    The size is checked before reading, so a huge file costs nothing.
+    """
+    p = Path(path)
+    try:
+        with open(p, "rb") as fh:
+            size = os.fstat(fh.fileno()).st_size
+            if size > max_bytes:
+                raise ValueError(f"{p}: the {what} has {size} bytes; at most {max_bytes} are read")
+            data = fh.read(max_bytes + 1)
+    except OSError as exc:
+        raise ValueError(f"{p}: cannot read {what} ({exc.strerror or exc})") from None
+    if len(data) > max_bytes:
+        raise ValueError(f"{p}: the {what} is larger than {max_bytes} bytes")
+    return data
+
 
 _MAP_KEYS = {
     "name",
@@ -52,6 +127,7 @@ _MAP_KEYS = {
     "shorthand",
     "undivided",
     "reference",
+    "override",
 }
 
 
@@ -96,23 +172,58 @@ def load_map_file(path: str | os.PathLike) -> list[Map]:
         the file, the map and the key).
     """
     p = Path(path)
+    if p.is_dir():
+        raise MapError(f"{p}: is a directory, not a map file")
     try:
-        raw = p.read_bytes()
-    except OSError as exc:
-        raise MapError(f"{p}: cannot read map file ({exc.strerror or exc})") from None
-    try:
-        data = tomllib.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise MapError(f"{p}: not a UTF-8 text file") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise MapError(f"{p}: not valid TOML: {exc}") from None
+        raw = read_limited(p, MAX_MAP_FILE_BYTES, "map file")
+    except ValueError as exc:
+        raise MapError(str(exc)) from None
+    data = parse_toml(raw, str(p), "map file", MapError)
     return maps_from_toml_data(data, origin=str(p), source=f"file:{p}")
+
+
+def parse_toml(raw: bytes, origin: str, what: str, error: type[Exception]) -> dict:
+    """Parse TOML from an untrusted file; every failure is one ``error(...)`` line."""
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise error(f"{origin}: not a UTF-8 text file") from None
+    try:
+        with parsing_digit_limit():
+            return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise error(f"{origin}: not valid TOML: {exc}") from None
+    except RecursionError:
+        raise error(f"{origin}: the {what} is nested too deeply to read") from None
+    except ValueError as exc:  # an integer beyond the digit limit
+        raise error(f"{origin}: not a usable {what}: {digits_problem(exc)}") from None
+
+
+def digits_problem(exc: ValueError) -> str:
+    """Python's complaint about a too-long integer, said in one short sentence.
+
+    >>> digits_problem(ValueError("Exceeds the limit (4300 digits) for integer string "
+    ...                           "conversion: value has 5000 digits; use sys.set_int_max_str_digits()"))
+    'an integer has 5000 digits; at most 4300 are read'
+    """
+    import re
+
+    m = re.search(r"value has (\d+) digits", str(exc))
+    has = f"has {m.group(1)} digits" if m else "is too long"
+    return f"an integer {has}; at most {PARSE_DIGIT_LIMIT} are read"
 
 
 def maps_from_toml_data(data: Mapping, *, origin: str, source: str) -> list[Map]:
     """Build maps from parsed TOML: ``{map_key: {divisor, branches, ...}, ...}``."""
+    if not isinstance(data, Mapping):
+        raise MapError(f"{origin}: must be a table of maps, got {type(data).__name__}")
     if not data:
         raise MapError(f"{origin}: no map tables found")
+    if len(data) > MAX_MAPS_PER_FILE:
+        raise MapError(
+            f"{origin}: {len(data)} maps; a file defines at most {MAX_MAPS_PER_FILE} "
+            "(split it into several files)"
+        )
     result = []
     for key, table in data.items():
         result.append(map_from_table(key, table, origin=origin, source=source))
@@ -144,6 +255,12 @@ def map_from_table(key: str, table: object, *, origin: str, source: str) -> Map:
     undivided = table.get("undivided", False)
     if not isinstance(undivided, bool):
         raise MapError(f"{where}: key 'undivided': must be true or false")
+    override = table.get("override", False)
+    if not isinstance(override, bool):
+        raise MapError(f"{where}: key 'override': must be true or false")
+    if not isinstance(key, str) or len(key) > 200 or len(name) > 200:
+        raise MapError(f"{where}: names have at most 200 characters")
+    meta = {"override": True} if override else {}
 
     if "shorthand" in table:
         if "divisor" in table or "branches" in table:
@@ -166,6 +283,7 @@ def map_from_table(key: str, table: object, *, origin: str, source: str) -> Map:
             source=source,
             reference=reference,
             undivided=undivided,
+            **meta,
         )
 
     if undivided:
@@ -183,6 +301,15 @@ def map_from_table(key: str, table: object, *, origin: str, source: str) -> Map:
     if not isinstance(branches_t, Mapping):
         raise MapError(
             f"{where}: key 'branches': must be a table keyed by residue 0..{divisor - 1}"
+        )
+    if divisor > len(branches_t):
+        given = {str(k).strip() for k in branches_t}
+        scan_to = min(divisor, len(branches_t) + 10)
+        missing = [str(r) for r in range(scan_to) if str(r) not in given][:10]
+        more = ", ..." if divisor > scan_to or len(missing) == 10 else ""
+        raise MapError(
+            f"{where}: key 'branches': divisor {divisor} needs a branch for every residue; "
+            f"missing: {', '.join(missing)}{more}"
         )
     branches = {}
     for rkey, br in branches_t.items():
@@ -229,6 +356,7 @@ def map_from_table(key: str, table: object, *, origin: str, source: str) -> Map:
             aliases=tuple(aliases),
             source=source,
             reference=reference,
+            **meta,
         )
     except MapError as exc:
         msg = str(exc)

@@ -37,6 +37,10 @@ class MapError(ValueError):
     """An invalid map definition or an unknown map name (one-sentence message)."""
 
 
+def _squash(text: str) -> str:
+    return "".join(text.split()).lower()
+
+
 def _require_int(value: object, what: str) -> int:
     # bool is an int subclass; True as a multiplier is certainly a typo.
     if isinstance(value, bool) or not isinstance(value, int):
@@ -103,6 +107,9 @@ class Map:
     undivided : bool
         Marks the undivided form of an ``ax+b`` map (branch 1 is ``(2a, 2b)``),
         whose step counts are the classic ones.
+    override : bool
+        A map file's explicit opt-in to take over a name the catalog (or a
+        shorthand) already gives another meaning.
 
     Examples
     --------
@@ -127,6 +134,7 @@ class Map:
     source: str = field(default="inline", compare=False)
     reference: str = field(default="", compare=False)
     undivided: bool = field(default=False, compare=False)
+    override: bool = field(default=False, compare=False)
 
     def __post_init__(self) -> None:
         d = self.divisor
@@ -136,7 +144,8 @@ class Map:
             raise MapError(f"divisor must be at least 2, got {d}")
         raw = list(self.branches)
         if len(raw) < d:
-            missing = ", ".join(str(r) for r in range(len(raw), d))
+            missing = ", ".join(str(r) for r in range(len(raw), min(d, len(raw) + 10)))
+            missing += ", ..." if d > len(raw) + 10 else ""
             raise MapError(
                 f"divisor {d} needs a branch for every residue 0..{d - 1}; missing: {missing}"
             )
@@ -179,7 +188,13 @@ class Map:
 
     @property
     def label(self) -> str:
-        """The name if there is one, else the formula."""
+        """The name if there is one, else the formula.
+
+        A map that took over a known name (``override``) shows its formula
+        too, so no output hides what was computed.
+        """
+        if self.name and self.override and _squash(self.name) != _squash(self.formula()):
+            return f"{self.name} (overridden: {self.formula()})"
         return self.name or self.formula()
 
     def step(self, n: int) -> int:

@@ -9,9 +9,12 @@ Inside
   catalog included), the user's config directory and explicit map files.
 - :func:`get` -- ``maps.get("5x+1")``: one map from the default catalog.
 
-Precedence: explicit map files override the user's config directory, which
-overrides plugins and the built-in catalog. Two plugins defining the same
-name differently is a conflict reported when that name is asked for.
+Precedence: explicit map files come after the user's config directory,
+which comes after plugins and the built-in catalog. A file's map may take
+over a name already known (or a name that reads as ``ax+b`` shorthand with
+another meaning) only with ``override = true`` in its table; without it the
+file is refused with one line. Two plugins defining the same name
+differently is a conflict reported when that name is asked for.
 """
 
 from __future__ import annotations
@@ -35,9 +38,19 @@ def _norm(name: str) -> str:
     return "".join(name.split()).lower()
 
 
+_ids = iter(range(1 << 62))
+
+
+def _next_id() -> int:
+    return next(_ids)
+
+
 @dataclass
 class Catalog:
     """Maps known by name. ``catalog.get(spec)`` resolves a name, alias or shorthand.
+
+    Adding a map costs constant time (dictionaries keyed by name), so a
+    catalog of ``n`` maps is built in time linear in ``n``.
 
     Examples
     --------
@@ -48,10 +61,16 @@ class Catalog:
     '11x+3'
     """
 
-    maps: list[Map] = field(default_factory=list)
     problems: list[str] = field(default_factory=list)
+    _entries: dict[int, Map] = field(default_factory=dict, repr=False)
+    _by_name: dict[str | None, set[int]] = field(default_factory=dict, repr=False)
     _index: dict[str, Map] = field(default_factory=dict, repr=False)
     _conflicts: dict[str, str] = field(default_factory=dict, repr=False)
+
+    @property
+    def maps(self) -> list[Map]:
+        """The maps, in the order they were added (shadowed ones left out)."""
+        return list(self._entries.values())
 
     def add(self, m: Map, *, override: bool) -> None:
         """Register ``m`` under its name and aliases.
@@ -73,10 +92,46 @@ class Catalog:
             for k in labels:
                 self._conflicts.pop(k, None)
             shadowed = {self._index[k].name for k in labels if k in self._index}
-            self.maps = [x for x in self.maps if x.name not in shadowed]
+            for name in shadowed:
+                for i in self._by_name.pop(name, ()):
+                    self._entries.pop(i, None)
         for k in labels:
             self._index[k] = m
-        self.maps.append(m)
+        i = _next_id()
+        self._entries[i] = m
+        self._by_name.setdefault(m.name, set()).add(i)
+
+    def check_file_map(self, m: Map) -> None:
+        """Refuse a map file's map that gives a known name or a shorthand another meaning.
+
+        A file may take over such a name only with ``override = true`` in the
+        map's table (the explicit, visible opt-in); the same definition again
+        is always fine.
+        """
+        if m.override:
+            return
+        for label in (m.name, *m.aliases):
+            if not label:
+                continue
+            k = _norm(label)
+            old = self._index.get(k)
+            if old is not None and old != m:
+                raise MapError(
+                    f"{m.source[5:] if m.source.startswith('file:') else m.source}: map "
+                    f"{label!r} would replace {old.label} ({old.formula()}, from {old.source}) "
+                    f"with {m.formula()}; add override = true to its table to do that on purpose"
+                )
+            if old is None and looks_like_shorthand(label):
+                try:
+                    meant = parse_shorthand(label)
+                except MapError:
+                    continue
+                if meant != m:
+                    raise MapError(
+                        f"{m.source[5:] if m.source.startswith('file:') else m.source}: map "
+                        f"{label!r} reads as the shorthand {meant.formula()} but is defined as "
+                        f"{m.formula()}; rename it, or add override = true to its table"
+                    )
 
     def names(self) -> list[str]:
         """Primary names, in catalog order."""
@@ -176,12 +231,10 @@ def load_catalog(
             ] + list(plugin_maps)
     for _, m in plugin_maps:
         cat.add(m, override=False)
-    if include_user:
-        for path in user_map_files():
-            for m in load_map_file(path):
-                cat.add(m, override=True)
-    for path in map_files or ():
+    files = [*(user_map_files() if include_user else ()), *(map_files or ())]
+    for path in files:
         for m in load_map_file(path):
+            cat.check_file_map(m)
             cat.add(m, override=True)
     return cat
 

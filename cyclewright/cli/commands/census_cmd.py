@@ -8,6 +8,7 @@ from cyclewright.cycles.census import MAX_SCAN, census, census_family, parse_fam
 from cyclewright.cycles.certificate import write_certificate
 
 from ..errors import BadInput
+from ..numbers import MAX_CENSUS_LENGTH
 from ..options import (
     IntExpr,
     all_offsets_option,
@@ -17,6 +18,7 @@ from ..options import (
     maps_option,
     max_length_option,
     offsets_option,
+    parse_int,
     resolve_map,
     resolve_store,
     side_option,
@@ -88,7 +90,13 @@ def census_cmd(
     as_json,
 ):
     """All integer cycles of MAP with length at most K, certified complete."""
-    K = max_length
+    K = parse_int(
+        max_length,
+        "--max-length",
+        minimum=1,
+        maximum=MAX_CENSUS_LENGTH,
+        why="planning alone grows with K; the scans it needs are far beyond any --max-scan",
+    )
     kw = {
         "store": resolve_store(store, no_store),
         "workers": workers,

@@ -14,6 +14,7 @@ from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
 from ..files import check_figure_path, check_output
+from ..numbers import MAX_CENSUS_LENGTH
 from ..options import (
     all_offsets_option,
     csv_option,
@@ -24,6 +25,7 @@ from ..options import (
     max_steps_option,
     odd_option,
     offsets_option,
+    parse_int,
     plot_option,
     resolve_map,
     resolve_store,
@@ -63,6 +65,13 @@ def resolve_maps(specs, offsets, map_files, all_k=False):
             out.append(resolve_map(spec, map_files))
     if not out:
         raise BadInput("compare needs at least one map")
+    seen: dict = {}
+    for m in out:
+        if m in seen:
+            raise BadInput(
+                f"{m.label} is given twice (the same map as {seen[m].label}); name each map once"
+            )
+        seen[m] = m
     return out
 
 
@@ -113,6 +122,10 @@ def compare_cmd(
     """
     if odd is not None and odd < 1:
         raise BadInput("--odd must be at least 1")
+    if max_length is not None:
+        parse_int(max_length, "--max-length", minimum=1, maximum=MAX_CENSUS_LENGTH)
+    if to is not None:
+        parse_int(to, "--to", minimum=1, maximum=2**62)
     given = {"max_length": max_length, "to": to, "odd": odd}
     check_output(csv_path, "--csv")
     check_figure_path(plot_path, "--plot")

@@ -17,7 +17,7 @@ from ..options import (
     resolve_map,
     side_option,
 )
-from ..render import emit_json, show_table, stdout_console
+from ..render import emit_json, int_digits, show_table, stdout_console
 
 # The floor's work grows with the digits of N (continued fraction terms, precision).
 _MAX_FLOOR_DIGITS = 1000
@@ -39,7 +39,7 @@ _MAX_FLOOR_DIGITS = 1000
     "--verified-to",
     "verified_to",
     required=True,
-    type=IntExpr(minimum=0),
+    type=IntExpr(minimum=1),
     metavar="N",
     help="Verified range: no unknown cycle has |minimum| <= N (2^68, 1e20 and 3*2^40 forms work).",
 )
@@ -69,9 +69,9 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
     """
     m = resolve_map(map_spec, map_files)
     n = verified_to
-    if len(str(n)) > _MAX_FLOOR_DIGITS:
+    if int_digits(n) > _MAX_FLOOR_DIGITS:
         raise BadInput(
-            f"--verified-to has {len(str(n))} digits; the floor accepts at most "
+            f"--verified-to has {int_digits(n)} digits; the floor accepts at most "
             f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
         )
     got = floor(m, n, side, next_types=next_types)

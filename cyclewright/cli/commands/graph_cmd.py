@@ -2,12 +2,15 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import click
 
 from cyclewright.cycles.graph import PLOT_NODE_LIMIT, functional_graph
 
 from ..errors import BadInput
 from ..files import check_output
+from ..numbers import MAX_START_DIGITS, quote
 from ..options import (
     ceiling_option,
     force_option,
@@ -24,6 +27,15 @@ from ..options import (
 )
 from ..progress import progress_display
 from ..render import emit_json, short, show_table, stdout_console
+
+#: File name endings --plot understands (the format follows the ending).
+PLOT_SUFFIXES = (".png", ".svg", ".pdf")
+
+#: Ranges with more starts are refused before the graph is built (memory).
+MAX_GRAPH_STARTS = 500_000
+
+#: Rough size of one node with its attributes and edge in memory (networkx).
+GRAPH_BYTES_PER_NODE = 2200
 
 
 @click.command(
@@ -75,9 +87,28 @@ def graph_cmd(
     m = resolve_map(map_spec, map_files)
     n_to, n_from, steps, ceil = to, start, max_steps, ceiling
     if n_to < n_from:
-        raise BadInput(f"empty range: --from {n_from} is above --to {n_to}")
+        raise BadInput(f"empty range: --from {short(n_from, 20)} is above --to {short(n_to, 20)}")
+    total = (n_to - n_from + 1) * (2 if side == "both" else 1)
+    # every start is a node: refuse what cannot be held or drawn before building anything
+    if total > MAX_GRAPH_STARTS:
+        raise BadInput(
+            f"{short(total, 20)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
+            f"(about {GRAPH_BYTES_PER_NODE} bytes a node in memory); use a smaller range"
+        )
+    if ceil is not None and ceil > 10**MAX_START_DIGITS:
+        raise BadInput(f"--ceiling must be at most 10^{MAX_START_DIGITS}, got {short(ceil, 20)}")
     if ceil is not None and ceil < n_to:
-        raise BadInput(f"--ceiling {ceil} is below --to {n_to}")
+        raise BadInput(f"--ceiling {short(ceil, 20)} is below --to {short(n_to, 20)}")
+    if plot_path is not None and total > PLOT_NODE_LIMIT:
+        raise BadInput(
+            f"{total} starts give at least {total} nodes; --plot draws at most "
+            f"{PLOT_NODE_LIMIT} (use a smaller range, or --graphml/--gexf); nothing was done"
+        )
+    if plot_path is not None and Path(plot_path).suffix.lower() not in PLOT_SUFFIXES:
+        raise BadInput(
+            f"--plot: cannot tell the format of {quote(plot_path)}; "
+            f"name the file with one of {', '.join(PLOT_SUFFIXES)}"
+        )
     outputs = {
         "graphml": check_output(graphml, "--graphml", force),
         "gexf": check_output(gexf, "--gexf", force),

@@ -4,10 +4,16 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.orbit import orbit
+from cyclewright.cycles.orbit import (
+    DEFAULT_GROWTH_DIGITS,
+    default_ceiling,
+    orbit,
+    orbit_memory_estimate,
+)
 
 from ..errors import BadInput
 from ..files import check_figure_path
+from ..numbers import MAX_START_DIGITS, check_memory
 from ..options import (
     ceiling_option,
     force_option,
@@ -43,15 +49,30 @@ def orbit_cmd(
 
     For ax+b maps the classic undivided step count and peak are shown too.
     Negative N is allowed (its stopping time compares absolute values).
+    With --ceiling none the orbit still stops as "escaped" once it has grown
+    by 1000 digits over N (a value cap, like the step cap; not a proof of
+    divergence). Limits: |N| <= 10^1000; --max-steps times the size of the
+    values within the memory budget (2 GiB).
     """
     m = resolve_map(map_spec, map_files)
-    n = parse_int(start, "N")
+    limit = 10**MAX_START_DIGITS
+    n = parse_int(start, "N", minimum=-limit, maximum=limit)
     ceil = ceiling
     if ceil is not None and ceil < abs(n):
         raise BadInput(
-            f"--ceiling {ceil} is below |N| = {abs(n)}: give a larger --ceiling, or 'none'"
+            f"--ceiling {short(ceil, 20)} is below |N| = {short(abs(n), 20)}: "
+            "give a larger --ceiling, or 'none'"
         )
     check_figure_path(plot_path, "--plot", force)
+    try:
+        check_memory(
+            orbit_memory_estimate(max_steps, ceil if ceil is not None else default_ceiling(n)),
+            f"an orbit of {max_steps} steps with values up to "
+            + (short(ceil, 20) if ceil is not None else f"|N| * 10^{DEFAULT_GROWTH_DIGITS}"),
+            hint="lower --max-steps or --ceiling",
+        )
+    except ValueError as exc:
+        raise BadInput(str(exc)) from None
     o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
     if plot_path:
         from ..plots import plot_orbit
@@ -61,12 +82,24 @@ def orbit_cmd(
         emit_json(o.to_dict(max_values=None))
         return
     con = stdout_console()
-    con.print(f"[bold]{m.label}[/bold], start {n}: {o.status} after {o.steps} steps (exact)")
+    why = ""
+    if o.status == "escaped":
+        cap = (
+            f"the value cap |N| * 10^{DEFAULT_GROWTH_DIGITS}"
+            if ceil is None
+            else f"the ceiling {short(ceil, 20)}"
+        )
+        why = f" (passed {cap}; not a proof of divergence)"
+    elif o.status == "capped":
+        why = " (the step cap; raise --max-steps to go on)"
+    con.print(
+        f"[bold]{m.label}[/bold], start {short(n)}: {o.status} after {o.steps} steps (exact){why}"
+    )
     con.print(f"stopping time: {short(o.stopping_time)}")
     if o.cycle:
         cyc = ", ".join(short(v) for v in o.cycle[:12]) + (", ..." if len(o.cycle) > 12 else "")
         con.print(
-            f"enters the cycle {{{cyc}}} (length {len(o.cycle)}, minimum {o.cycle[0]}) after {o.tail} steps"
+            f"enters the cycle {{{cyc}}} (length {len(o.cycle)}, minimum {short(o.cycle[0])}) after {o.tail} steps"
         )
         con.print(f"total steps to the cycle minimum: {o.total_steps}")
     con.print(f"peak: {short(o.peak)}")

@@ -7,7 +7,7 @@ import click
 from cyclewright.cycles.solver import solve
 
 from ..options import json_option, latex_tables, map_argument, maps_option, resolve_map
-from ..render import emit_json, short, stdout_console
+from ..render import elide_digits, emit_json, short, stdout_console
 
 
 @click.command(
@@ -34,7 +34,7 @@ def solve_cmd(map_spec, itinerary, map_files, as_json) -> None:
     con = stdout_console()
     info = c.to_dict()
     con.print(
-        f"[bold]{m.label}[/bold], itinerary {info['itinerary']} (length {c.length}, content {list(c.content)})"
+        f"[bold]{m.label}[/bold], itinerary {_word(info['itinerary'])} (length {c.length}, content {list(c.content)})"
     )
     sign = "-" if c.B < 0 else "+"
     con.print(
@@ -42,7 +42,7 @@ def solve_cmd(map_spec, itinerary, map_files, as_json) -> None:
     )
     con.print(f"denominator D = d^k - A = {short(c.denominator)}")
     if not c.has_fixed_point:
-        con.print(c.note)
+        con.print(elide_digits(c.note))
         return
     con.print(f"fixed point: {short(c.fixed_point)}")
     kind = "integral" if c.integral else "rational (not integral)"
@@ -54,13 +54,21 @@ def solve_cmd(map_spec, itinerary, map_files, as_json) -> None:
     )
     con.print(f"minimum: {short(c.minimum)}")
     if not c.primitive_itinerary:
-        con.print(f"the itinerary is the power {c.repetitions} of {info['primitive_root']}")
+        con.print(f"the itinerary is the power {c.repetitions} of {_word(info['primitive_root'])}")
     if not c.realized:
-        con.print(f"not realized: {c.note}")
+        con.print(f"not realized: {elide_digits(c.note)}")
     if c.integral:
         con.print(
             f"primitive (Lagarias): {'yes' if c.lagarias_primitive else 'no (a multiple of a cycle of a map with smaller offsets)'}"
         )
+
+
+def _word(text: str, width: int = 80) -> str:
+    """An itinerary for a sentence: whole up to ``width`` letters, else its ends."""
+    if len(text) <= width:
+        return text
+    keep = width // 2 - 4
+    return f"{text[:keep]}…{text[-keep:]}"
 
 
 COMMANDS = [solve_cmd]

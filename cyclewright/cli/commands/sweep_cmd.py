@@ -57,7 +57,7 @@ __all__ = ["COMMANDS"]
     "extra",
     default=0,
     show_default=True,
-    type=IntExpr(minimum=0),
+    type=IntExpr(minimum=0, maximum=1000),
     help="Further lengths per x beyond the critical one.",
 )
 @side_option
