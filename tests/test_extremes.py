@@ -192,4 +192,4 @@ def test_a_large_map_file_loads_whole(tmp_path):
 def test_itinerary_work_estimate_stops_at_its_cap():
     from cyclewright.cycles.census import itinerary_work
 
-    assert itinerary_work(maps.get("3x+1"), 10**12, cap=10**6) > 10**6
+    assert itinerary_work(maps.get("3x+1"), 10**12, stop_above=10**6) > 10**6

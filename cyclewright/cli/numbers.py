@@ -36,7 +36,6 @@ __all__ = [
     "MAX_WORKERS",
     "MAX_STEP_CAP",
     "MAX_CHUNKS",
-    "MAX_ENUMERATION",
     "MAX_TYPE_LENGTH",
     "check_members",
 ]
@@ -68,10 +67,6 @@ MAX_STEP_CAP = 10**9
 #: Most chunks one scan is cut into (--chunk-size): each chunk costs about a
 #: millisecond of bookkeeping and one store row.
 MAX_CHUNKS = 10_000
-
-#: Largest --limit on enumerating necklaces (count, sweep); beyond it enumeration
-#: never finishes in a session.
-MAX_ENUMERATION = 10**8
 
 #: Largest type length k (count) and odd-step range end (sweep, compare --odd).
 MAX_TYPE_LENGTH = 100_000

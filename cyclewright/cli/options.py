@@ -46,7 +46,6 @@ from cyclewright.maps import Map, MapError, load_catalog
 
 from .errors import BadInput
 from .numbers import (
-    MAX_ENUMERATION,
     MAX_FAMILY_MEMBERS,
     MAX_STEP_CAP,
     MAX_TYPE_LENGTH,
@@ -372,7 +371,7 @@ ceiling_option = _shared(
 limit_option = _shared(
     "--limit",
     "limit",
-    type=IntExpr(minimum=0, maximum=MAX_ENUMERATION),
+    type=IntExpr(minimum=0),
     default=None,
     metavar="L",
     help=(

@@ -279,19 +279,19 @@ def _crossing(m: Map) -> int | None:
     return math.floor(best)
 
 
-def itinerary_work(m: Map | str, max_length: int, cap: int | None = None) -> int:
+def itinerary_work(m: Map | str, max_length: int, stop_above: int | None = None) -> int:
     """Half-words the itinerary method joins up to ``max_length`` (for feasibility checks).
 
     For each length ``k`` the join pairs every product class of the prefixes
     (length ``floor(k/2)``) with every class of the suffixes, so the work is
-    ``sum_k (classes_j * d^i + classes_i * d^j)``. With ``cap`` the sum stops
-    as soon as it exceeds ``cap`` (the answer is then some value above ``cap``),
+    ``sum_k (classes_j * d^i + classes_i * d^j)``. With ``stop_above`` the sum stops
+    as soon as it exceeds ``stop_above`` (the answer is then some value above it),
     so the estimate itself costs little for any length.
 
     >>> from cyclewright import maps
     >>> itinerary_work(maps.get("3x+1"), 4)
     50
-    >>> itinerary_work(maps.get("3x+1"), 10**9, cap=10**8) > 10**8
+    >>> itinerary_work(maps.get("3x+1"), 10**9, stop_above=10**8) > 10**8
     True
     """
     m = as_map(m)
@@ -305,7 +305,7 @@ def itinerary_work(m: Map | str, max_length: int, cap: int | None = None) -> int
             products = {p * a for p in products for a in m.multipliers}
             classes.append(len(products))
         total += classes[j] * d**i + classes[i] * d**j
-        if cap is not None and total > cap:
+        if stop_above is not None and total > stop_above:
             break
     return total
 
@@ -437,7 +437,7 @@ def census(
     words_sides = [s for s, p in plans.items() if p.method == "itineraries"]
     need_words = bool(words_sides) or method == "both" or (method == "auto" and K <= 16)
     if need_words:
-        work = itinerary_work(m, K, cap=MAX_ITINERARY_WORK)
+        work = itinerary_work(m, K, stop_above=MAX_ITINERARY_WORK)
         if work > MAX_ITINERARY_WORK:
             if words_sides:
                 raise InputError(

@@ -556,11 +556,22 @@ def _memory_budget() -> int:
     return min(total // 2, 8 * 2**30)
 
 
+def _sci(n: int | float) -> str:
+    """``1.43e+42`` for a count, and ``10^5000`` (its order) past the range of floats."""
+    if n < 1e300:
+        return f"{n:.3g}"
+    n = int(n)
+    d = int((n.bit_length() - 1) * 0.30102999566398120)
+    return f"about 10^{d + 1 if n >= 10 ** (d + 1) else d}"
+
+
 def _fmt_count(n: int) -> str:
-    return str(n) if n < 10**9 else f"{n:.3g}"
+    return str(n) if n < 10**9 else _sci(n)
 
 
 def _fmt_bytes(n: float) -> str:
+    if n >= 1e300:
+        return f"{_sci(n)} B"
     for unit in ("B", "KiB", "MiB", "GiB", "TiB", "PiB", "EiB"):
         if n < 1024:
             return f"{n:.3g} {unit}"
@@ -569,6 +580,8 @@ def _fmt_bytes(n: float) -> str:
 
 
 def _fmt_seconds(s: float) -> str:
+    if s == float("inf"):
+        return "over 10^290 years"
     if s < 120:
         return f"{s:.3g} s"
     if s < 7200:
@@ -596,7 +609,9 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
     """
     per = _BYTES_PER_LISTED + 2 * k + k * (36 + k // 8)
     # numerators have about k bits: big-integer steps slow down for long words
-    return necklaces * per, necklaces * k * _SECONDS_PER_LETTER * (1 + k / 2000)
+    work = float(min(necklaces * k, 10**300))  # beyond floats the estimate is "forever" anyway
+    secs = work * _SECONDS_PER_LETTER * (1 + k / 2000)
+    return necklaces * per, (secs if necklaces * k < 10**300 else float("inf"))
 
 
 def _check_limit(limit) -> int:
@@ -711,13 +726,13 @@ def _count_content(
         budget = _memory_budget()
         if mem > budget:
             raise InputError(
-                f"enumerating {neck:.3g} necklaces (allowed by the limit {_fmt_count(limit)}) could need up to "
+                f"enumerating {_sci(neck)} necklaces (allowed by the limit {_fmt_count(limit)}) could need up to "
                 f"{_fmt_bytes(mem)} to list integer cycles (budget {_fmt_bytes(budget)}) and about "
                 f"{_fmt_seconds(secs)}; lower the limit"
             )
         if secs > _MAX_SECONDS:
             raise InputError(
-                f"enumerating {neck:.3g} necklaces of length {kk} (allowed by the limit "
+                f"enumerating {_sci(neck)} necklaces of length {kk} (allowed by the limit "
                 f"{_fmt_count(limit)}) would take about {_fmt_seconds(secs)}; lower the limit"
             )
         smallest, largest, cycles, unrealized = _enumerate(m, c, D, neck, progress)
