@@ -155,6 +155,7 @@ def test_study_with_huge_figures(tmp_path, capsys):
     study.write_text(
         "[study]\ntitle = 'big'\n[maps]\nuse = ['3x+1']\n"
         "[[analysis]]\nkind = 'count'\nlength = 20000\nodd = 12619\n"
+        "[[analysis]]\nkind = 'sweep'\nodd = '9998..10000'\n"
         "[[analysis]]\nkind = 'floor'\nverified_to = '10^999'\n"
     )
     code, _, err = run(["study", str(study), "--out", str(tmp_path / "out")], capsys)

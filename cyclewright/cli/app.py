@@ -105,6 +105,7 @@ def _accept_leading_minus(cmd: click.Command) -> None:
         params = cmd.get_params(ctx)
         known = {o for p in params for o in (*p.opts, *p.secondary_opts)}
         old = {h: p for p in params for h in getattr(p, "hidden_names", ())}
+        notes = []
         for token in args:
             if token == "--":
                 break
@@ -113,9 +114,17 @@ def _accept_leading_minus(cmd: click.Command) -> None:
                 if name not in known:
                     raise click.NoSuchOption(name, ctx=ctx)
                 if name in old:
-                    new = old[name].visible_opts[0]
-                    click.echo(f"note: {name} is an old spelling of {new}", err=True)
-        return original(ctx, args)
+                    notes.append(f"{name} is an old spelling of {old[name].visible_opts[0]}")
+        try:
+            rest = original(ctx, args)
+        except click.ClickException as exc:
+            # bad input stays one line: the note joins the error instead of preceding it
+            if notes:
+                exc.message = f"{exc.message} (note: {'; '.join(notes)})"
+            raise
+        for note in notes:
+            click.echo(f"note: {note}", err=True)
+        return rest
 
     cmd.parse_args = parse_args
     cmd._minus_ok = True
