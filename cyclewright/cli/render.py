@@ -203,6 +203,8 @@ def short(value, digits: int = 40) -> str:
         return "-"
     if isinstance(value, float):
         return f"{value:.6g}"
+    if isinstance(value, int) and type(value).__name__ == "Magnitude":
+        return magnitude(value)  # a bound: its digits carry no information
     keep = max(digits // 2, 5)
     if isinstance(value, int) and int_digits(value) > 2 * digits + 8:
         return _elided(value, keep)

@@ -72,7 +72,7 @@ from .necklaces import (
     type_content,
     word_count,
 )
-from .presentation import Presentable, Table
+from .presentation import Magnitude, Presentable, Table
 from .progress import ProgressCallback, report
 from .solver import cycle_representative
 
@@ -313,7 +313,9 @@ class TypeCount(Presentable):
             *self._best_approximation_rows(),
             (
                 "|min| bound from |Λ| bound",
-                self.candidates_linear_forms if self.candidates_linear_forms is not None else "-",
+                Magnitude(self.candidates_linear_forms)
+                if self.candidates_linear_forms is not None
+                else "-",
                 PROVED.value if self.candidates_linear_forms is not None else "-",
             ),
         ]

@@ -9,6 +9,9 @@ Inside
   (``to_pandas``, when pandas is installed: never a dependency).
 - :class:`Presentable` -- the same two for a result type, from its own
   tables (``tables()``, ``figures_table()`` or ``table()``).
+- :class:`Magnitude` -- an exact integer whose digits carry no information
+  (a bound of thousands of digits): tables show it as ``~10^x``, JSON and
+  CSV give every digit.
 
 Every result type builds its own tables (``table()``, and ``tables()`` where
 a result has several); the CLI commands print them and the study report
@@ -21,7 +24,18 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field, replace
 
-__all__ = ["Table", "Presentable"]
+__all__ = ["Table", "Presentable", "Magnitude"]
+
+
+class Magnitude(int):
+    """An exact integer best read by its size: a table shows ``~10^x``, JSON all its digits.
+
+    >>> b = Magnitude(3**10000)
+    >>> b == 3**10000 and isinstance(b, int)
+    True
+    """
+
+    __slots__ = ()
 
 
 @dataclass(frozen=True)
