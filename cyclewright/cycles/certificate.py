@@ -285,17 +285,17 @@ def _check_shape(doc: dict, p: Path) -> None:
         if key not in doc:
             raise InputError(f"{p}: not a census certificate (key {key!r} missing)")
         value = doc[key]
-        if not isinstance(value, kind) or isinstance(value, bool):
+        if not isinstance(value, kind):  # finer type checks (bool for int...) are verify's
             raise bad(key, names[kind], value)
     definition = doc["map"].get("definition")
     if not isinstance(definition, dict):
         raise bad("map.definition", "an object", definition)
     branches = definition.get("branches")
     if not isinstance(branches, list) or not all(
-        isinstance(b, list) and len(b) == 2 and all(type(x) is int for x in b) for b in branches
+        isinstance(b, list) and len(b) == 2 and all(isinstance(x, int) for x in b) for b in branches
     ):
         raise bad("map.definition.branches", "a list of [multiplier, offset] pairs", branches)
-    if type(definition.get("divisor")) is not int:
+    if not isinstance(definition.get("divisor"), int):
         raise bad("map.definition.divisor", "an integer", definition.get("divisor"))
     for side, plan in doc["plans"].items():
         if not isinstance(plan, dict):
@@ -304,7 +304,7 @@ def _check_shape(doc: dict, p: Path) -> None:
         if not isinstance(rec, dict):
             raise bad(f"cycles[{i}]", "an object", rec)
         elems = rec.get("elements")
-        if not isinstance(elems, list) or not all(type(e) is int for e in elems):
+        if not isinstance(elems, list) or not all(isinstance(e, int) for e in elems):
             raise bad(f"cycles[{i}].elements", "a list of integers", elems)
     scanned = doc.get("scanned", [])
     if not isinstance(scanned, list) or not all(isinstance(r, dict) for r in scanned):
