@@ -130,6 +130,13 @@ def test_count_181x1_linear_form_bound_is_shown_as_a_magnitude(capsys):
     assert code == 0 and magnitude(bound) in out and "proved" in out
 
 
+def test_latex_tables_follow_the_same_rule(capsys):
+    code, out, _ = run(["count", "181x+1", "--length", "15", "--odd", "2", "--latex"], capsys)
+    assert code == 0 and "\\sim 10^{5687.39}" in out  # the bound by its size
+    code, out, _ = run(["count", "3x+1", "--length", "20000", "--odd", "12619", "--latex"], capsys)
+    assert code == 0 and "(5713 digits)" in out and len(out) < 20_000
+
+
 def test_solve_an_itinerary_of_ten_thousand_letters(capsys):
     doc = run_json(["solve", "3x+1", "1^10000"], capsys)
     # all odd steps: the fixed point of n -> (3n+1)/2 is -1 (common practice, no source)

@@ -367,6 +367,14 @@ def tex_number(value) -> str:
         return f"${value:.6g}$" if math.isfinite(value) else "--"
     if hasattr(value, "item") and not isinstance(value, int):  # numpy scalars
         return tex_number(value.item())
+    if type(value).__name__ == "Magnitude":  # a bound: its size, not its digits
+        return f"$\\sim 10^{{{_log10(value):.2f}}}$"
+    if isinstance(value, int) and int_digits(value) > 48:  # first and last digits, as in tables
+        a, keep = abs(int(value)), 10
+        d = int_digits(a)
+        head, tail = a // 10 ** (d - keep), a % 10**keep
+        sign = "-" if value < 0 else ""
+        return f"${sign}{head}\\ldots{tail:0{keep}d}$ ({d} digits)"
     if isinstance(value, int) or type(value).__name__ == "mpz":
         text = str(int(value))
         sign, digits = ("-", text[1:]) if text.startswith("-") else ("", text)
