@@ -281,3 +281,14 @@ def test_bad_side_and_lengths():
         largest_bound_up_to(M31, 0)
     with pytest.raises(InputError):
         minimum_bound(M31, (5, 7))
+
+
+def test_linear_form_candidates_dominate_the_exact_bound_for_every_small_type():
+    # the same invariant as above, on every type with k <= 24 (includes (2, 1), the
+    # type of the cycle {1, 2}: common practice, no source)
+    for k in range(1, 25):
+        for x in range(1, k + 1):
+            for side in ("positive", "negative"):
+                b = minimum_bound(M31, (k, x), side)
+                M_lf, _lf = candidates_from_linear_form(M31, (k, x), side)
+                assert M_lf is not None and M_lf >= b.integer, (k, x, side)

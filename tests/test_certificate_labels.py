@@ -203,3 +203,25 @@ def test_best_approximation_bound_matches_direct_minimum():
     assert (k, x) == (best[1], best[2]) == (301994, 190537)
     assert mpmath.mpf(lo.numerator) / lo.denominator <= best[0]
     assert best[0] - mpmath.mpf(lo.numerator) / lo.denominator < best[0] * mpmath.mpf(10) ** -15
+
+
+@pytest.mark.parametrize("a, d", [(3, 2), (5, 2), (7, 3), (181, 2)])
+def test_best_approximation_bound_against_brute_force_for_small_ranges(a, d):
+    # definition checked directly (common practice, no source): for every X the bound is
+    # at most |k ln d - x ln a| for every x <= X and the two integers k nearest x log_d a,
+    # and it is attained; X = 1 with a_1 = 1 (log_2 3 = [1; 1, 1, 2, ...]) is the edge case
+    import mpmath
+
+    from cyclewright.cycles.continued_fractions import best_approximation_bound
+
+    mpmath.mp.dps = 50
+    ld, la = mpmath.log(d), mpmath.log(a)
+    for X in range(1, 41):
+        direct = min(
+            abs(k * ld - x * la)
+            for x in range(1, X + 1)
+            for k in (int(mpmath.floor(x * la / ld)), int(mpmath.floor(x * la / ld)) + 1)
+        )
+        lo, k, x = best_approximation_bound(a, d, X)
+        assert mpmath.mpf(lo.numerator) / lo.denominator <= direct
+        assert abs(abs(k * ld - x * la) - direct) < mpmath.mpf(10) ** -30

@@ -377,6 +377,8 @@ def best_approximation_bound(a: int, d: int, max_x: int) -> tuple[Fraction, int,
     ((301994, 190537), 6.451)
     >>> best_approximation_bound(3, 2, 5)[1:]   # 8/5 is a convergent of log_2 3
     (8, 5)
+    >>> best_approximation_bound(3, 2, 1)[1:]   # |2 - log_2 3| < |1 - log_2 3|
+    (2, 1)
 
     References
     ----------
@@ -398,7 +400,9 @@ def best_approximation_bound(a: int, d: int, max_x: int) -> tuple[Fraction, int,
         if conv[-1][1] > max_x:
             break
         terms *= 2
-    k, x = max((pq for pq in conv if pq[1] <= max_x), key=lambda pq: pq[1])
+    # The last convergent with q <= X: when a_1 = 1, q_0 = q_1 = 1 and the
+    # second one (p_1/q_1) is the better approximation, so ties go to the later.
+    k, x = [pq for pq in conv if pq[1] <= max_x][-1]
     prec = 64 + 2 * (k.bit_length() + x.bit_length())
     while True:
         old = iv.prec
