@@ -54,9 +54,10 @@ References
 from __future__ import annotations
 
 import math
+import os
 import re
 import time
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from fractions import Fraction
 
@@ -64,7 +65,7 @@ from cyclewright.maps import Map, as_map, parse_shorthand
 
 from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element, cycles_table
-from .labels import CERTIFIED, EXACT, PROVED
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .largest_bound import largest_bound_up_to
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
@@ -76,6 +77,9 @@ __all__ = [
     "census",
     "Census",
     "SidePlan",
+    "CensusPlan",
+    "plan_census",
+    "measure_scan_rate",
     "census_family",
     "FamilyCensus",
     "parse_family",
@@ -129,6 +133,12 @@ class SidePlan:
         The scanned range ``1 .. scan_to`` of absolute values (method 1).
     reason : str
         Why this method (e.g. the bound does not apply).
+    bound_method : str
+        How the largest bound was found (``"continued fraction"`` or
+        ``"prefilter"``, see :mod:`cyclewright.cycles.largest_bound`).
+    approximant : str
+        Continued-fraction method: which approximant of ``log2 a`` the
+        winning type is.
     """
 
     side: str
@@ -139,6 +149,8 @@ class SidePlan:
     crossing: int
     scan_to: int | None
     reason: str = ""
+    bound_method: str = ""
+    approximant: str = ""
 
     def to_dict(self) -> dict:
         return {
@@ -150,6 +162,8 @@ class SidePlan:
             "crossing": self.crossing,
             "scan_to": self.scan_to,
             "reason": self.reason,
+            "bound_method": self.bound_method,
+            "approximant": self.approximant,
             "labels": {"bound": PROVED.value, "scan_to": EXACT.value},
         }
 
@@ -319,6 +333,248 @@ def _zero_cycle(m: Map, K: int) -> IntegerCycle | None:
     return None
 
 
+@dataclass(frozen=True)
+class CensusPlan:
+    """What a census will do, known before any scan starts.
+
+    Attributes
+    ----------
+    map : Map
+    max_length : int
+    sides : tuple of str
+    plans : dict of str to SidePlan
+        Per side: the method, the proved bound, the range to scan.
+    starts : int
+        Starts to scan over all sides (exact).
+    rate : float
+        Starts per second assumed for the estimate (heuristic: measured on
+        this machine on one chunk near the top of the range, or nominal).
+    rate_source : str
+        How the rate was obtained.
+    workers : int
+        Parallel workers assumed.
+    seconds : float
+        Estimated wall time of the scans (heuristic).
+    """
+
+    map: Map
+    max_length: int
+    sides: tuple[str, ...]
+    plans: dict[str, SidePlan]
+    starts: int
+    rate: float
+    rate_source: str
+    workers: int
+    seconds: float
+
+    def lines(self) -> list[str]:
+        """The plan as short lines of text (shown before a census starts)."""
+        out = []
+        for s, p in self.plans.items():
+            if p.method == "bound-scan":
+                at = f" at type {_type_text(p.bound_content)}" if p.bound_content else ""
+                out.append(
+                    f"{s} side: proved bound |min| <= {p.bound:,}{at} ({p.bound_method}); "
+                    f"scan 1..{(p.scan_to or 0):,}"
+                )
+            else:
+                out.append(f"{s} side: {p.method} ({p.reason})")
+        if self.starts:
+            out.append(
+                f"{self.starts:,} starts in all: about {_human_seconds(self.seconds)} at "
+                f"{self.rate:.2g} starts/s per worker x {self.workers} workers "
+                f"({self.rate_source}; estimate, heuristic)"
+            )
+        return out
+
+    def seconds_on(self, workers: int) -> float:
+        """Estimated wall time on ``workers`` workers at the same per-worker rate (heuristic)."""
+        return self.starts / (self.rate * max(workers, 1)) if self.rate > 0 else math.inf
+
+    def to_dict(self) -> dict:
+        return {
+            "map": self.map.label,
+            "max_length": self.max_length,
+            "sides": list(self.sides),
+            "plans": {s: p.to_dict() for s, p in self.plans.items()},
+            "starts": self.starts,
+            "rate_per_worker": self.rate,
+            "rate_source": self.rate_source,
+            "workers": self.workers,
+            "seconds": round(self.seconds, 3),
+            "labels": {
+                "starts": EXACT.value,
+                "rate_per_worker": HEURISTIC.value,
+                "seconds": HEURISTIC.value,
+            },
+        }
+
+
+def _type_text(content) -> str:
+    if len(content) == 2:
+        return f"(k, x) = ({sum(content):,}, {content[1]:,})"
+    return f"content {list(content)}"
+
+
+#: Scans of fewer starts than this use the nominal rate instead of a measurement.
+MEASURE_ABOVE = 10**9
+
+
+def measure_scan_rate(m: Map, max_length: int, near: int, side: str = "positive") -> float:
+    """Starts per second of one worker on one chunk ending near ``near`` (a measurement, heuristic).
+
+    The compiled kernels are warmed up on a few starts first, then one chunk
+    of the map's default size on the chunk grid just below ``near`` is
+    scanned in this process with ``max_cycle_length = max_length`` and no
+    store; its rate stands for the whole range.
+
+    Parameters
+    ----------
+    m : Map
+    max_length : int
+    near : int
+        The top of the range to be scanned.
+    side : str
+
+    Returns
+    -------
+    float
+        Starts per second (heuristic).
+    """
+    from .scan.chunks import default_chunk_size
+    from .scan.run import MAX_START
+
+    cs = default_chunk_size(m)
+    top = min(max(near, 2 * cs), MAX_START // 2)
+    lo = (top // cs - 1) * cs + 1
+    scan(m, lo + 999, start=lo, side=side, max_cycle_length=max_length, store=False, workers=1)
+    t = time.perf_counter()
+    scan(m, lo + cs - 1, start=lo, side=side, max_cycle_length=max_length, store=False, workers=1)
+    return cs / max(time.perf_counter() - t, 1e-9)
+
+
+def plan_census(
+    m: Map | str,
+    max_length: int,
+    *,
+    side: Side = DEFAULT_SIDE,
+    method: str = "auto",
+    workers: int | None = None,
+    rate: float | None = None,
+    progress: ProgressCallback | None = None,
+) -> CensusPlan:
+    """The plan of a census before it runs: per side the bound, the range to scan, the time.
+
+    Parameters
+    ----------
+    m : Map or str
+    max_length : int
+    side : {"positive", "negative", "both"}
+    method : {"auto", "bound-scan", "itineraries", "both"}
+    workers : int, optional
+        Workers the scan will use (default: all cores).
+    rate : float, optional
+        Starts per second per worker; measured on this machine (one chunk
+        near the top of the range) when not given and the scan has at
+        least :data:`MEASURE_ABOVE` starts, else nominal.
+    progress : callable, optional
+        Receives :class:`~cyclewright.cycles.progress.ProgressEvent` values
+        (phase ``"plan"``).
+
+    Returns
+    -------
+    CensusPlan
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> p = plan_census(maps.get("3x+1"), 8_000_000, side="both", rate=7e8, workers=2)
+    >>> p.plans["positive"].scan_to, p.plans["negative"].scan_to
+    (984572810980, 817536973660)
+    >>> p.starts, round(p.seconds / 60)      # minutes at 7e8 starts/s on 2 workers
+    (1802109784640, 21)
+    """
+    m = as_map(m)
+    if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
+        raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
+    sides = sides_of(side)
+    K = max_length
+    crossing = _crossing(m)
+    plans: dict[str, SidePlan] = {}
+    for i, s in enumerate(sides):
+        report(progress, "plan", i, len(sides), "sides", f"largest bound, {s} side")
+        lb = largest_bound_up_to(m, K, s)
+        applies = bool(lb.applies) and crossing is not None
+        formula = lb.formula or (lb.bound.formula if lb.bound is not None else "")
+        bmethod = lb.method.split(":")[0]
+        if method in ("bound-scan", "both") or (method == "auto" and applies):
+            if not applies:
+                why = (
+                    "the offsets have mixed signs"
+                    if crossing is not None
+                    else "a multiplier is negative"
+                )
+                raise InputError(
+                    f"{m.label}: method 1 (bound and scan) does not apply on the {s} side: {why}; "
+                    "use the itinerary method"
+                )
+            bound = int(lb.integer or 0)
+            scan_to = max(bound, crossing)
+            plans[s] = SidePlan(
+                s,
+                "bound-scan",
+                bound,
+                tuple(lb.content) if lb.content else None,
+                formula,
+                crossing,
+                scan_to or None,
+                bound_method=bmethod,
+                approximant=lb.approximant,
+            )
+        else:
+            why = "the bound on cycle minima does not apply" + (
+                " (offsets of mixed sign)" if crossing is not None else " (a negative multiplier)"
+            )
+            plans[s] = SidePlan(s, "itineraries", None, None, "", crossing or 0, None, why)
+    report(progress, "plan", len(sides), len(sides), "sides")
+    starts = sum(p.scan_to or 0 for p in plans.values())
+    n_workers = workers or os.cpu_count() or 1
+    if rate is not None:
+        source = "rate given"
+    elif starts >= MEASURE_ABOVE:
+        top = max(plans.values(), key=lambda p: p.scan_to or 0)
+        report(progress, "plan", 0, None, "", "measuring the scan rate on one chunk")
+        try:
+            rate = measure_scan_rate(m, K, top.scan_to or 1, top.side)
+            source = "measured on this machine, one worker, one chunk near the top of the range"
+        except (InputError, MemoryError, OverflowError, ValueError) as exc:
+            rate = _nominal_rate(m)
+            source = f"nominal rate (no measurement: {str(exc).splitlines()[0][:80]})"
+    else:
+        rate = _nominal_rate(m)
+        source = "nominal rate"
+    seconds = starts / (rate * n_workers) if starts else 0.0
+    return CensusPlan(m, K, sides, plans, starts, float(rate), source, n_workers, seconds)
+
+
+def _refusal(plan: CensusPlan, max_scan: int) -> str:
+    parts = [
+        f"1..{p.scan_to:,} on the {s} side"
+        for s, p in plan.plans.items()
+        if p.method == "bound-scan" and p.scan_to
+    ]
+    over = [s for s, p in plan.plans.items() if (p.scan_to or 0) > max_scan]
+    return (
+        f"{plan.map.label}: a census up to length {plan.max_length:,} needs a scan of "
+        f"{' and '.join(parts)} ({plan.starts:.3g} starts, about "
+        f"{_human_seconds(plan.seconds)} here at {plan.rate:.2g} starts/s per worker x "
+        f"{plan.workers} workers, heuristic); the {'/'.join(over)} side is beyond the limit of "
+        f"{max_scan:,} starts. Raise --max-scan to run it here, or spread it over a cluster "
+        f"with --executor dask --scheduler ADDRESS (about {_human_seconds(plan.seconds_on(64))} "
+        f"on 64 such workers)"
+    )
+
+
 def census(
     m: Map | str,
     max_length: int,
@@ -329,6 +585,11 @@ def census(
     workers: int | None = None,
     max_scan: int = MAX_SCAN,
     progress: ProgressCallback | None = None,
+    executor: str = "local",
+    scheduler: str | None = None,
+    chunk_size: int | None = None,
+    rate: float | None = None,
+    on_plan: Callable[[CensusPlan], None] | None = None,
 ) -> Census:
     """Every integer cycle of ``m`` with length at most ``max_length``, certified.
 
@@ -345,15 +606,27 @@ def census(
         ``K <= 16`` method 2 also runs as a cross-check. ``both`` always
         cross-checks.
     store : path, None or False
-        The scan's results store (see :func:`cyclewright.cycles.scan.scan`).
+        The scan's results store (see :func:`cyclewright.cycles.scan.scan`);
+        a census killed during its scan resumes from it.
     workers : int, optional
         Scan worker processes.
     max_scan : int
         Refuse when a side would need a scan beyond this many starts.
     progress : ProgressCallback, optional
         Called with :class:`~cyclewright.cycles.progress.ProgressEvent`
-        values: the scan's (phase ``"scan"``) and one per side certified
-        (phase ``"census"``, unit ``"sides"``).
+        values: phase ``"plan"`` (largest bound per side, rate measurement),
+        the scan's (phase ``"scan"``, per side), ``"itineraries"`` (the
+        cross-check) and one per side certified (phase ``"census"``, unit
+        ``"sides"``).
+    executor, scheduler : str
+        Passed to the scan (``"dask"`` with a scheduler address).
+    chunk_size : int, optional
+        Passed to the scan.
+    rate : float, optional
+        Starts per second per worker for the estimate (see :func:`plan_census`).
+    on_plan : callable, optional
+        Called with the :class:`CensusPlan` once every refusal check has
+        passed, before any scan starts (the CLI prints it).
 
     Returns
     -------
@@ -390,49 +663,12 @@ def census(
     K = max_length
     if method == "necklaces":
         return _census_by_necklaces(m, K, sides, t0)
-    crossing = _crossing(m)
-
-    plans: dict[str, SidePlan] = {}
-    for s in sides:
-        lb = largest_bound_up_to(m, K, s)
-        applies = bool(lb.applies) and crossing is not None
-        formula = lb.formula or (lb.bound.formula if lb.bound is not None else "")
-        if method in ("bound-scan", "both") or (method == "auto" and applies):
-            if not applies:
-                why = (
-                    "the offsets have mixed signs"
-                    if crossing is not None
-                    else "a multiplier is negative"
-                )
-                if method in ("bound-scan", "both"):
-                    raise InputError(
-                        f"{m.label}: method 1 (bound and scan) does not apply on the {s} side: {why}; "
-                        "use the itinerary method"
-                    )
-            bound = int(lb.integer or 0)
-            scan_to = max(bound, crossing)
-            if scan_to > max_scan:
-                rate = _nominal_rate(m)
-                est = scan_to / rate
-                raise InputError(
-                    f"{m.label}: a census up to length {K} needs a scan of 1..{scan_to} on the {s} side "
-                    f"(about {_human_seconds(est)} at {rate:.0e} starts/s); this is beyond the "
-                    f"limit of {max_scan} starts (raise max_scan / --max-scan to go ahead)"
-                )
-            plans[s] = SidePlan(
-                s,
-                "bound-scan",
-                bound,
-                tuple(lb.content) if lb.content else None,
-                formula,
-                crossing,
-                scan_to or None,
-            )
-        else:
-            why = "the bound on cycle minima does not apply" + (
-                " (offsets of mixed sign)" if crossing is not None else " (a negative multiplier)"
-            )
-            plans[s] = SidePlan(s, "itineraries", None, None, "", crossing or 0, None, why)
+    plan = plan_census(
+        m, K, side=side, method=method, workers=workers, rate=rate, progress=progress
+    )
+    if any((p.scan_to or 0) > max_scan for p in plan.plans.values()):
+        raise InputError(_refusal(plan, max_scan))
+    plans = plan.plans
 
     words_sides = [s for s, p in plans.items() if p.method == "itineraries"]
     need_words = bool(words_sides) or method == "both" or (method == "auto" and K <= 16)
@@ -451,6 +687,8 @@ def census(
                     f"{MAX_ITINERARY_WORK:.0e} half-words; use method bound-scan"
                 )
             need_words = False  # the automatic cross-check is skipped when too costly
+    if on_plan is not None:
+        on_plan(plan)
 
     found: dict[int, IntegerCycle] = {}
     store_path = None
@@ -466,6 +704,9 @@ def census(
             store=store,
             workers=workers,
             progress=progress,
+            executor=executor,
+            scheduler=scheduler,
+            chunk_size=chunk_size,
         )
         store_path = r.store_path
         for c in r.cycles:
@@ -474,6 +715,7 @@ def census(
 
     cross_checked = False
     if need_words:
+        report(progress, "itineraries", 0, 1, "runs", f"all words of length <= {K}")
         try:
             words = integral_cycles_by_itinerary(m, K)
         except DegenerateMap as exc:
@@ -499,6 +741,7 @@ def census(
                 cross_checked = True
         if cross_checked and any(p.method == "itineraries" for p in plans.values()):
             cross_checked = False  # a side certified by words alone is not cross-checked
+        report(progress, "itineraries", 1, 1, "runs")
 
     report(progress, "census", len(plans), len(plans), "sides")
     zero = _zero_cycle(m, K)
@@ -577,6 +820,8 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
 
 
 def _human_seconds(s: float) -> str:
+    if s < 1:
+        return "< 1 s"
     if s < 120:
         return f"{s:.0f} s"
     if s < 7200:

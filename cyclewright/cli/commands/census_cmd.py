@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.census import MAX_SCAN, census, census_family, parse_family
+from cyclewright.cycles.census import MAX_SCAN, census, census_family, parse_family, plan_census
 from cyclewright.cycles.certificate import write_certificate
 
 from ..errors import BadInput
@@ -12,6 +12,7 @@ from ..numbers import MAX_CENSUS_LENGTH
 from ..options import (
     IntExpr,
     all_offsets_option,
+    executor_options,
     json_option,
     latex_tables,
     map_argument,
@@ -26,7 +27,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, show_table, stdout_console
+from ..render import emit_json, show_table, stderr_console, stdout_console
 
 __all__ = ["COMMANDS"]
 
@@ -35,7 +36,8 @@ __all__ = ["COMMANDS"]
     "census",
     epilog=(
         "\b\nExamples:\n"
-        "  cyclewright census 3x+1 --max-length 10000\n"
+        "  cyclewright census 3x+1 --max-length 10000 --side both\n"
+        "  cyclewright census 3x+1 --max-length 8000000 --side both --plan\n"
         "  cyclewright census 3x+5 --max-length 30 --side both --certificate c.json\n"
         "  cyclewright census mod3-4x --max-length 16 --method itineraries\n"
         '  cyclewright census "3x+k" --offsets 1..200 --max-length 30\n'
@@ -71,6 +73,13 @@ __all__ = ["COMMANDS"]
     show_default=True,
     help="Refuse scans longer than this.",
 )
+@executor_options
+@click.option(
+    "--plan",
+    "plan_only",
+    is_flag=True,
+    help="Only print the plan: per side the bound, the range to scan and the time estimate.",
+)
 @maps_option
 @json_option
 @latex_tables
@@ -86,6 +95,9 @@ def census_cmd(
     no_store,
     workers,
     max_scan,
+    executor,
+    scheduler,
+    plan_only,
     map_files,
     as_json,
 ):
@@ -109,8 +121,25 @@ def census_cmd(
     if offsets is not None:
         raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
+    if plan_only:
+        _plan(m, K, side, method, workers, max_scan, as_json)
+        return
+
+    def show_plan(plan) -> None:
+        for line in plan.lines():
+            stderr_console().print(f"plan: {line}", highlight=False)
+
     with progress_display() as show:
-        c = census(m, K, side=side, progress=show, **kw)
+        c = census(
+            m,
+            K,
+            side=side,
+            progress=show,
+            executor=executor,
+            scheduler=scheduler,
+            on_plan=show_plan,
+            **kw,
+        )
     if cert_path:
         write_certificate(c, cert_path)
     if as_json:
@@ -135,6 +164,27 @@ def census_cmd(
     con.print(c.statement())
     if cert_path:
         con.print(f"certificate written to {cert_path}")
+
+
+def _plan(m, K, side, method, workers, max_scan, as_json) -> None:
+    with progress_display() as show:
+        plan = plan_census(m, K, side=side, method=method, workers=workers, progress=show)
+    refused = any((p.scan_to or 0) > max_scan for p in plan.plans.values())
+    if as_json:
+        doc = plan.to_dict()
+        doc["max_scan"] = max_scan
+        doc["refused"] = refused
+        emit_json(doc)
+        return
+    con = stdout_console()
+    for line in plan.lines():
+        con.print(line, highlight=False)
+    if refused:
+        con.print(
+            f"beyond --max-scan {max_scan:,}: the census would be refused here; raise --max-scan "
+            "or use --executor dask --scheduler ADDRESS",
+            highlight=False,
+        )
 
 
 def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
