@@ -1,26 +1,30 @@
-"""How long a certified census can be in 60 seconds, against plain enumeration of itineraries.
+"""Census length per minute, peak memory, and the family census, against plain enumeration.
 
 Run (from the repository root, after ``make test`` created .venv)::
 
-    .venv/bin/python benchmarks/bench_census.py           # budget 60 s per run
-    .venv/bin/python benchmarks/bench_census.py --budget 20
+    .venv/bin/python benchmarks/bench_census.py --lengths 10^5            # about 10 s
+    .venv/bin/python benchmarks/bench_census.py                           # 10^5, 10^6, 8*10^6
+    .venv/bin/python benchmarks/bench_census.py --lengths 10^5 --family   # + 3x+k, k = 1..1000
 
-Measured in one run on this machine, for 3x+1 on both sides:
+The default lengths need the machine alone for about half an hour
+(8*10^6 scans about 1.8e12 starts, 10^6 about 1.0e12). Measured in one run:
 
-1. ``cyclewright census 3x+1 --max-length K --side both`` (method 1: proved
-   bound + compiled scan in cycle-length mode, default workers), as a user
-   runs it: a fresh process, wall-clock time, a fresh store. The scan range is
-   the largest proved bound over all types of length <= K, which only jumps at
-   the lengths of good approximations of log2 3; the candidate K are those
-   jump points and round numbers. The largest K that finishes within the
-   budget is reported.
-2. Plain enumeration (method 2 without pruning): every itinerary of length
-   <= K solved exactly (``cycles.solve``), K increased one by one until the
-   total time passes the budget (the last complete K is reported; the time of
-   the next K is extrapolated from the doubling, never waited for).
-3. For reference, the pruned itinerary method (meet in the middle) within the budget.
+1. ``cyclewright census 3x+1 --max-length K --side both`` for each K, as a
+   user runs it: a fresh process, a fresh store, default workers. Reported:
+   K, the range scanned per side (the proved bound, from the continued
+   fraction of log2 3), wall time, the census length reached per minute
+   (``K * 60 / wall``), starts per second, and the peak memory of the whole
+   process tree (the census and its scan workers, RSS sampled every 0.2 s).
+   The kernels are compiled and the sieve table built by a warm-up census
+   before anything is timed.
+2. With ``--family``: ``census "3x+k" --k 1..1000 --max-length 100`` (333
+   maps), wall time and peak memory.
+3. Plain enumeration of itineraries (method 2 without pruning, every word
+   solved exactly) and the pruned itinerary method, each within a budget
+   (default 20 s): the largest K they certify, for the ratio of lengths.
 
-Results go to ``benchmarks/_build/bench_census.json``.
+Results go to ``benchmarks/_build/bench_census.json``. Figures are
+measurements (floats, heuristic as speeds), the ranges are exact.
 """
 
 from __future__ import annotations
@@ -31,6 +35,7 @@ import json
 import subprocess
 import sys
 import tempfile
+import threading
 import time
 from pathlib import Path
 
@@ -39,58 +44,119 @@ BUILD = HERE / "_build"
 ROOT = HERE.parent
 sys.path.insert(0, str(ROOT))
 
-CANDIDATES = [
-    1_000,
-    10_000,
-    100_000,
-    125_742,
-    125_743,
-    176_250,
-    176_251,
-    301_993,
-    301_994,
-    1_000_000,
-]
+DEFAULT_LENGTHS = "10^5,10^6,8*10^6"
 
 
-def method1(budget: float) -> list[dict]:
-    out = []
-    for K in CANDIDATES:
-        with tempfile.TemporaryDirectory() as tmp:
-            cmd = [
-                sys.executable,
-                "-m",
-                "cyclewright",
-                "census",
-                "3x+1",
-                "--max-length",
-                str(K),
-                "--side",
-                "both",
-                "--store",
-                str(Path(tmp) / "s.sqlite"),
-                "--json",
-            ]
-            t0 = time.perf_counter()
-            try:
-                p = subprocess.run(cmd, capture_output=True, text=True, timeout=budget, cwd=ROOT)
-                dt = time.perf_counter() - t0
-                doc = json.loads(p.stdout) if p.returncode == 0 else {}
-                plans = doc.get("plans", {})
-                rec = {
-                    "K": K,
-                    "seconds": round(dt, 2),
-                    "finished": p.returncode == 0,
-                    "minima": [c["minimum"] for c in doc.get("cycles", [])],
-                    "scan_to": {s: v["scan_to"] for s, v in plans.items()},
-                }
-            except subprocess.TimeoutExpired:
-                rec = {"K": K, "seconds": None, "finished": False, "timeout": budget}
-        print(f"method 1, K = {K}: {rec}", flush=True)
-        out.append(rec)
-        if not rec["finished"]:
-            break
-    return out
+def parse_n(text: str) -> int:
+    t = text.strip().replace("_", "").replace(",", "")
+    if "*" in t:
+        x, y = t.split("*", 1)
+        return parse_n(x) * parse_n(y)
+    if "^" in t:
+        b, e = t.split("^")
+        return int(b) ** int(e)
+    return int(float(t)) if "e" in t.lower() else int(t)
+
+
+def _tree_rss(pid: int) -> int:
+    """Resident bytes of a process and all its descendants (0 when it has ended)."""
+    try:
+        import psutil
+    except ImportError:  # pragma: no cover - psutil is a test dependency
+        return 0
+    try:
+        p = psutil.Process(pid)
+        procs = [p, *p.children(recursive=True)]
+    except psutil.Error:
+        return 0
+    total = 0
+    for q in procs:
+        try:
+            total += q.memory_info().rss
+        except psutil.Error:
+            pass
+    return total
+
+
+def measured(cmd: list[str], timeout: float | None = None) -> dict:
+    """Run ``cmd``: wall time, exit status, output, and the peak RSS of its process tree."""
+    t0 = time.perf_counter()
+    p = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
+    peak = [0]
+    stop = threading.Event()
+
+    def poll() -> None:
+        while not stop.is_set():
+            peak[0] = max(peak[0], _tree_rss(p.pid))
+            stop.wait(0.2)
+
+    th = threading.Thread(target=poll, daemon=True)
+    th.start()
+    try:
+        out, err = p.communicate(timeout=timeout)
+    finally:
+        stop.set()
+        th.join()
+        if p.poll() is None:
+            p.kill()
+            p.communicate()
+    return {
+        "seconds": time.perf_counter() - t0,
+        "rc": p.returncode,
+        "out": out,
+        "err": err,
+        "peak_mib": peak[0] / 2**20,
+    }
+
+
+def cyclewright_cmd() -> list[str]:
+    exe = Path(sys.executable).parent / "cyclewright"
+    return [str(exe)] if exe.exists() else [sys.executable, "-m", "cyclewright"]
+
+
+def census_run(K: int, tmp: Path) -> dict:
+    cmd = [*cyclewright_cmd(), "census", "3x+1", "--max-length", str(K), "--side", "both"]
+    cmd += ["--store", str(tmp / f"census-{K}.sqlite"), "--json"]
+    r = measured(cmd)
+    if r["rc"] != 0:
+        raise SystemExit(f"census failed (K = {K}): {r['err']}")
+    doc = json.loads(r["out"])
+    plans = doc["plans"]
+    starts = sum(v["scan_to"] or 0 for v in plans.values())
+    rec = {
+        "K": K,
+        "scan_to": {s: v["scan_to"] for s, v in plans.items()},
+        "bound_type": {s: v["bound_content"] for s, v in plans.items()},
+        "starts": starts,
+        "seconds": round(r["seconds"], 2),
+        "length_per_minute": round(K * 60 / r["seconds"]),
+        "starts_per_second": starts / r["seconds"],
+        "peak_mib": round(r["peak_mib"], 1),
+        "minima": [c["minimum"] for c in doc["cycles"]],
+    }
+    print(
+        f"census 3x+1 K = {K:,}: {starts:.3g} starts, {r['seconds']:.1f} s, "
+        f"{rec['length_per_minute']:,} lengths/min, {rec['starts_per_second']:.3g} starts/s, "
+        f"peak {rec['peak_mib']:.0f} MiB, minima {rec['minima']}",
+        flush=True,
+    )
+    return rec
+
+
+def family_run(tmp: Path) -> dict:
+    cmd = [*cyclewright_cmd(), "census", "3x+k", "--k", "1..1000", "--max-length", "100"]
+    cmd += ["--store", str(tmp / "family.sqlite"), "--json"]
+    r = measured(cmd)
+    if r["rc"] != 0:
+        raise SystemExit(f"family census failed: {r['err']}")
+    rows = json.loads(r["out"])["rows"]
+    rec = {
+        "maps": len(rows),
+        "seconds": round(r["seconds"], 2),
+        "peak_mib": round(r["peak_mib"], 1),
+    }
+    print(f"census 3x+k, k = 1..1000, K = 100: {rec}", flush=True)
+    return rec
 
 
 def plain_enumeration(budget: float) -> dict:
@@ -142,28 +208,49 @@ def pruned_itineraries(budget: float) -> dict:
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("--budget", type=float, default=60.0, help="seconds per run (default 60)")
+    ap.add_argument(
+        "--lengths", default=DEFAULT_LENGTHS, help=f"K values (default {DEFAULT_LENGTHS})"
+    )
+    ap.add_argument("--family", action="store_true", help="also the 3x+k family census")
+    ap.add_argument("--budget", type=float, default=20.0, help="seconds for the plain methods")
     args = ap.parse_args()
     BUILD.mkdir(exist_ok=True)
-    m1 = method1(args.budget)
-    best1 = max((r["K"] for r in m1 if r["finished"] and r["seconds"] <= args.budget), default=None)
+    lengths = [parse_n(x) for x in args.lengths.split(",") if x.strip()]
+    with tempfile.TemporaryDirectory() as tmp:
+        census_run(1000, Path(tmp))  # warm-up: numba cache, sieve table
+        runs = [census_run(K, Path(tmp)) for K in lengths]
+        family = family_run(Path(tmp)) if args.family else None
     plain = plain_enumeration(args.budget)
     mitm = pruned_itineraries(args.budget)
     result = {
-        "budget_seconds": args.budget,
-        "method1_runs": m1,
-        "method1_largest_K": best1,
+        "census_3x1_both_sides": runs,
+        "family_3x_k": family,
         "plain_enumeration": plain,
         "itinerary_method": mitm,
+        "budget_seconds": args.budget,
     }
     (BUILD / "bench_census.json").write_text(json.dumps(result, indent=2) + "\n")
     print()
-    print(f"census 3x+1 --side both within {args.budget:.0f} s:")
-    print(f"  method 1 (bound + scan):           largest K = {best1}")
-    print(f"  plain enumeration of itineraries:  largest K = {plain['K']}")
-    print(f"  itinerary method (meet in middle): largest K = {mitm.get('K')}")
-    if best1 and plain["K"]:
-        print(f"  ratio of lengths: {best1 / plain['K']:.0f}x")
+    print("| K | range scanned (positive / negative) | wall | lengths per minute | peak memory |")
+    print("|---|---|---|---|---|")
+    for r in runs:
+        rng = " / ".join(f"{v:.3g}" for v in r["scan_to"].values())
+        print(
+            f"| {r['K']:,} | {rng} | {r['seconds']:.1f} s | {r['length_per_minute']:,} | "
+            f"{r['peak_mib']:.0f} MiB |"
+        )
+    if family:
+        print(
+            f"family 3x+k (k = 1..1000, K = 100): {family['seconds']:.1f} s, {family['peak_mib']:.0f} MiB"
+        )
+    print(f"plain enumeration of itineraries in {args.budget:.0f} s: largest K = {plain['K']}")
+    print(
+        f"itinerary method (meet in the middle) in {args.budget:.0f} s: largest K = {mitm.get('K')}"
+    )
+    if runs and plain["K"]:
+        print(
+            f"ratio of lengths (largest census K here / plain enumeration): {runs[-1]['K'] / plain['K']:,.0f}x"
+        )
 
 
 if __name__ == "__main__":
