@@ -14,7 +14,8 @@ The default lengths need the machine alone for about half an hour
    K, the range scanned per side (the proved bound, from the continued
    fraction of log2 3), wall time, the census length reached per minute
    (``K * 60 / wall``), starts per second, and the peak memory of the whole
-   process tree (the census and its scan workers, RSS sampled every 0.2 s).
+   process tree (the census and its scan workers; proportional set size,
+   shared library pages split between processes, sampled every 0.2 s).
    The kernels are compiled and the sieve table built by a warm-up census
    before anything is timed.
 2. With ``--family``: ``census "3x+k" --k 1..1000 --max-length 100`` (333
@@ -32,6 +33,7 @@ from __future__ import annotations
 import argparse
 import itertools
 import json
+import os
 import subprocess
 import sys
 import tempfile
@@ -59,7 +61,12 @@ def parse_n(text: str) -> int:
 
 
 def _tree_rss(pid: int) -> int:
-    """Resident bytes of a process and all its descendants (0 when it has ended)."""
+    """Memory of a process and all its descendants (0 when it has ended).
+
+    The proportional set size (PSS: shared pages split between the processes
+    that share them) where the system reports it, else the resident set size
+    (which counts the libraries shared by the workers once per process).
+    """
     try:
         import psutil
     except ImportError:  # pragma: no cover - psutil is a test dependency
@@ -72,16 +79,27 @@ def _tree_rss(pid: int) -> int:
     total = 0
     for q in procs:
         try:
-            total += q.memory_info().rss
+            info = q.memory_full_info()
+            total += getattr(info, "pss", info.rss)
         except psutil.Error:
-            pass
+            try:
+                total += q.memory_info().rss
+            except psutil.Error:
+                pass
     return total
 
 
-def measured(cmd: list[str], timeout: float | None = None) -> dict:
-    """Run ``cmd``: wall time, exit status, output, and the peak RSS of its process tree."""
+def measured(cmd: list[str], env: dict | None = None, timeout: float | None = None) -> dict:
+    """Run ``cmd``: wall time, exit status, output, and the peak memory of its process tree."""
     t0 = time.perf_counter()
-    p = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
+    p = subprocess.Popen(
+        cmd,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        cwd=ROOT,
+        env={**os.environ, **(env or {})},
+    )
     peak = [0]
     stop = threading.Event()
 
@@ -145,8 +163,8 @@ def census_run(K: int, tmp: Path) -> dict:
 
 def family_run(tmp: Path) -> dict:
     cmd = [*cyclewright_cmd(), "census", "3x+k", "--k", "1..1000", "--max-length", "100"]
-    cmd += ["--store", str(tmp / "family.sqlite"), "--json"]
-    r = measured(cmd)
+    cmd += ["--json"]
+    r = measured(cmd, env={"CYCLEWRIGHT_DATA_DIR": str(tmp / "data")})
     if r["rc"] != 0:
         raise SystemExit(f"family census failed: {r['err']}")
     rows = json.loads(r["out"])["rows"]
