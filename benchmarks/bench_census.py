@@ -18,7 +18,7 @@ The default lengths need the machine alone for about half an hour
    shared library pages split between processes, sampled every 0.2 s).
    The kernels are compiled and the sieve table built by a warm-up census
    before anything is timed.
-2. With ``--family``: ``census "3x+k" --k 1..1000 --max-length 100`` (333
+2. With ``--family``: ``census "3x+k" --offsets 1..1000 --max-length 100`` (333
    maps), wall time and peak memory.
 3. Plain enumeration of itineraries (method 2 without pruning, every word
    solved exactly) and the pruned itinerary method, each within a budget
@@ -162,7 +162,7 @@ def census_run(K: int, tmp: Path) -> dict:
 
 
 def family_run(tmp: Path) -> dict:
-    cmd = [*cyclewright_cmd(), "census", "3x+k", "--k", "1..1000", "--max-length", "100"]
+    cmd = [*cyclewright_cmd(), "census", "3x+k", "--offsets", "1..1000", "--max-length", "100"]
     cmd += ["--json"]
     r = measured(cmd, env={"CYCLEWRIGHT_DATA_DIR": str(tmp / "data")})
     if r["rc"] != 0:
