@@ -26,7 +26,7 @@ def _data_dir(tmp_path, monkeypatch):
 def test_plan_3x1_to_8_million():
     # the ranges follow from the continued fraction of log2 3 (OEIS A028507): the convergent
     # (301994, 190537) above, the semiconvergent 176251 + 25 * 301994 = 7726101 below
-    p = plan_census(M31, 8_000_000, rate=1e9, workers=2)
+    p = plan_census(M31, 8_000_000, side="both", rate=1e9, workers=2)
     pos, neg = p.plans["positive"], p.plans["negative"]
     assert pos.scan_to == 984_572_810_980 and sum(pos.bound_content) == 301_994
     assert neg.scan_to == 817_536_973_660 and sum(neg.bound_content) == 7_726_101
@@ -45,7 +45,7 @@ def test_plan_memory_does_not_grow_with_K():
     peaks = []
     for K in (10**5, 10**8, 10**12):
         tracemalloc.start()
-        plan_census(M31, K, rate=1e9, workers=2)
+        plan_census(M31, K, side="both", rate=1e9, workers=2)
         peaks.append(tracemalloc.get_traced_memory()[1])
         tracemalloc.stop()
     assert max(peaks) < 8 * 2**20
@@ -54,7 +54,7 @@ def test_plan_memory_does_not_grow_with_K():
 def test_refusal_gives_ranges_time_and_cluster():
     # K = 16,785,920: about 3e13 starts on the negative side (the semiconvergent with j = 54)
     with pytest.raises(InputError) as exc:
-        census(M31, 16_785_920, store=False, rate=1e9, workers=2)
+        census(M31, 16_785_920, side="both", store=False, rate=1e9, workers=2, max_scan=10**12)
     msg = str(exc.value)
     assert "1..984,572,810,980 on the positive side" in msg
     assert "1..29,678,897,487,861 on the negative side" in msg
@@ -68,7 +68,7 @@ def _events():
 
 def test_progress_events_for_every_phase():
     seen, cb = _events()
-    c = census(M31, 3000, store=False, workers=1, progress=cb)
+    c = census(M31, 3000, side="both", store=False, workers=1, progress=cb)
     assert c.minima == (0, 1, -1, -5, -17)  # Lagarias 1985 survey; Steiner 1977
     assert all(isinstance(e, ProgressEvent) for e in seen)
     phases = {e.phase for e in seen}
