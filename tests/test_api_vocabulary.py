@@ -50,6 +50,7 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "integral_cycles_by_itinerary": ((10,), {}),
     "words_table": ((3,), {}),
     "census": ((12,), {"store": False, "workers": 1, "side": "both"}),
+    "plan_census": ((12,), {"side": "both", "rate": 1e9, "workers": 2}),
     "itinerary_work": ((20,), {}),
     "excursions": ((50,), {"side": "both"}),
     "critical_ratio": ((), {}),

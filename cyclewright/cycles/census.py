@@ -79,7 +79,6 @@ __all__ = [
     "SidePlan",
     "CensusPlan",
     "plan_census",
-    "measure_scan_rate",
     "census_family",
     "FamilyCensus",
     "parse_family",
@@ -420,7 +419,7 @@ def _type_text(content) -> str:
 MEASURE_ABOVE = 10**9
 
 
-def measure_scan_rate(m: Map, max_length: int, near: int, side: str = "positive") -> float:
+def _measure_scan_rate(m: Map, max_length: int, near: int, side: str = "positive") -> float:
     """Starts per second of one worker on one chunk ending near ``near`` (a measurement, heuristic).
 
     The compiled kernels are warmed up on a few starts first, then one chunk
@@ -545,7 +544,7 @@ def plan_census(
         top = max(plans.values(), key=lambda p: p.scan_to or 0)
         report(progress, "plan", 0, None, "", "measuring the scan rate on one chunk")
         try:
-            rate = measure_scan_rate(m, K, top.scan_to or 1, top.side)
+            rate = _measure_scan_rate(m, K, top.scan_to or 1, top.side)
             source = "measured on this machine, one worker, one chunk near the top of the range"
         except (InputError, MemoryError, OverflowError, ValueError) as exc:
             rate = _nominal_rate(m)
