@@ -161,8 +161,6 @@ class SidePlan:
             "crossing": self.crossing,
             "scan_to": self.scan_to,
             "reason": self.reason,
-            "bound_method": self.bound_method,
-            "approximant": self.approximant,
             "labels": {"bound": PROVED.value, "scan_to": EXACT.value},
         }
 
@@ -395,7 +393,10 @@ class CensusPlan:
             "map": self.map.label,
             "max_length": self.max_length,
             "sides": list(self.sides),
-            "plans": {s: p.to_dict() for s, p in self.plans.items()},
+            "plans": {
+                s: {**p.to_dict(), "bound_method": p.bound_method, "approximant": p.approximant}
+                for s, p in self.plans.items()
+            },
             "starts": self.starts,
             "rate_per_worker": self.rate,
             "rate_source": self.rate_source,
