@@ -126,6 +126,8 @@ def census_cmd(
         return
 
     def show_plan(plan) -> None:
+        if plan.seconds < 1.0:
+            return  # a short census starts at once; `--plan` shows it anyway
         for line in plan.lines():
             stderr_console().print(f"plan: {line}", highlight=False)
 
