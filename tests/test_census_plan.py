@@ -133,3 +133,24 @@ def test_census_through_dask_local_cluster(tmp_path):
     # OEIS A226607 (k = 5): 1, 19, 23, 187, 347 primitive; 5 is 5 * {1}
     assert remote.minima == local.minima == (0, 1, 5, 19, 23, 187, 347)
     assert remote.plans["positive"].scan_to == local.plans["positive"].scan_to
+
+
+def test_cli_accepts_long_lengths_where_the_continued_fraction_plans(cli_run):
+    # the K = 8,000,000 plan of the issue (continued fraction: planning does not grow
+    # with K); maps, methods and families whose planning grows with K keep the 10^6 limit
+    import json
+
+    r = cli_run("census", "3x+1", "--max-length", "8*10^6", "--side", "both", "--plan", "--json")
+    assert r.returncode == 0, r.stderr
+    doc = json.loads(r.stdout)
+    # the same figures as test_plan_3x1_to_8_million, through the CLI
+    assert doc["plans"]["positive"]["scan_to"] == 984_572_810_980
+    assert doc["plans"]["negative"]["scan_to"] == 817_536_973_660
+    for args in (
+        ("mod3-4x", "--max-length", "2*10^6"),
+        ("3x+1", "--max-length", "2*10^6", "--method", "itineraries"),
+        ("3x+k", "--offsets", "1..3", "--max-length", "2*10^6"),
+    ):
+        r = cli_run("census", *args)
+        assert r.returncode == 2, args
+        assert r.stderr.count("error:") == 1 and "at most 10^6" in r.stderr

@@ -32,6 +32,7 @@ __all__ = [
     "MEMORY_BUDGET",
     "MAX_START_DIGITS",
     "MAX_CENSUS_LENGTH",
+    "MAX_CF_CENSUS_LENGTH",
     "MAX_FAMILY_MEMBERS",
     "MAX_WORKERS",
     "MAX_STEP_CAP",
@@ -53,6 +54,11 @@ MEMORY_BUDGET = 2 * 2**30
 #: alone takes seconds at this size, and the scan it asks for is refused
 #: by --max-scan long before.
 MAX_CENSUS_LENGTH = 10**6
+
+#: Largest K for a census whose largest bound comes from the continued
+#: fraction of log_2 a (planning in constant time); the plan then refuses
+#: any scan beyond --max-scan with its estimate.
+MAX_CF_CENSUS_LENGTH = 10**9
 
 #: Most members of a family (``3x+k --k A..B``) one run takes.
 MAX_FAMILY_MEMBERS = 10_000
