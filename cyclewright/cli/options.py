@@ -497,7 +497,7 @@ latex_option = _shared(
     "--latex",
     "as_latex",
     is_flag=True,
-    help="Print the tables as LaTeX (booktabs tabular; numbers in math mode, labels as a column).",
+    help="Print the tables as LaTeX (booktabs tabular; numbers in math mode, labels as footnote marks or a column).",
 )
 
 

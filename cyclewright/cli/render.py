@@ -30,6 +30,7 @@ import io
 import json
 import math
 import os
+import re
 import sys
 from collections.abc import Iterable, Mapping, Sequence
 from fractions import Fraction
@@ -50,8 +51,11 @@ __all__ = [
     "csv_text",
     "tex_escape",
     "tex_number",
+    "label_marks",
+    "split_header_label",
     "latex_table",
     "latex_output",
+    "latex_mode",
     "LatexBlock",
 ]
 
@@ -252,19 +256,20 @@ def make_table(
     if _LATEX_MODE[0]:
         return LatexBlock(
             latex_table(
-                [_plain(c) for c in columns],
+                [str(c) for c in columns],
                 [[_plain(v) if isinstance(v, str) else v for v in r] for r in rows],
                 caption=_plain(title) if title else None,
                 notes=[_plain(caption)] if caption else (),
             )
         )
+    from rich.markup import escape
     from rich.table import Table
 
     t = Table(
         title=title, caption=caption, show_lines=False, title_justify="left", caption_justify="left"
     )
-    for c in columns:
-        t.add_column(c, overflow="fold")
+    for c in columns:  # a header is text: its "[label]" is not markup
+        t.add_column(escape(c), overflow="fold")
     for row in rows:
         t.add_row(*[v if isinstance(v, str) else short(v) for v in row])
     return t
@@ -281,11 +286,9 @@ def show_table(t, show: int | None = None, caption: str | None = None):
     notes = [x for x in (caption, t.note) if x]
     if more > 0:
         notes.append(f"{more} more rows with --json")
-    from rich.markup import escape
-
     return make_table(
         f"{t.title} ({len(t.rows)})" if show is not None else t.title,
-        [escape(h) for h in t.header()],
+        t.header(),
         rows,
         caption="; ".join(notes) or None,
     )
@@ -332,6 +335,24 @@ _TEX_SPECIAL = {
     "}": r"\}",
     "~": r"\textasciitilde{}",
     "^": r"\textasciicircum{}",
+    # characters that the default (OT1) text fonts lack or set as other glyphs
+    "|": r"\textbar{}",
+    "<": r"\textless{}",
+    ">": r"\textgreater{}",
+    "…": r"\ldots{}",
+    "−": "-",
+    "–": "--",
+    "—": "---",
+    "Λ": r"$\Lambda$",
+    "λ": r"$\lambda$",
+    "ρ": r"$\rho$",
+    "±": r"$\pm$",
+    "≤": r"$\le$",
+    "≥": r"$\ge$",
+    "≈": r"$\approx$",
+    "→": r"$\to$",
+    "·": r"$\cdot$",
+    "×": r"$\times$",
 }
 
 
@@ -344,15 +365,34 @@ def tex_escape(text: str) -> str:
     return "".join(_TEX_SPECIAL.get(c, c) for c in str(text))
 
 
+def _grouped(digits: str) -> str:
+    """A run of digits in groups of three by thin spaces, when it has five or more."""
+    if len(digits) < 5:
+        return digits
+    groups = []
+    while digits:
+        groups.append(digits[-3:])
+        digits = digits[:-3]
+    return r"\,".join(reversed(groups))
+
+
+_NUMBER_TEXT = re.compile(
+    r"^([+-]?)(\d+)(?:/(\d+))?$|^[+-]?\d*\.\d+(?:e[+-]?\d+)?$|^[+-]?\d+e[+-]?\d+$"
+)
+
+
 def tex_number(value) -> str:
     """A number in math mode; integers of five or more digits grouped by thin spaces.
+
+    Text that spells a plain number (``"12345"``, ``"-5/3"``, ``"0.0607"``)
+    is set in math mode too; any other text is escaped.
 
     >>> tex_number(56991483520)
     '$56\\\\,991\\\\,483\\\\,520$'
     >>> tex_number(-1234), tex_number(Fraction(39889, 1000)), tex_number(None)
-    ('$-1234$', '$\\\\frac{39889}{1000}$', '--')
-    >>> tex_number(0.5)
-    '$0.5$'
+    ('$-1234$', '$\\\\frac{39\\\\,889}{1000}$', '--')
+    >>> tex_number(0.5), tex_number("0.060699"), tex_number("-89759/2000"), tex_number("3x+1")
+    ('$0.5$', '$0.060699$', '$-\\\\frac{89\\\\,759}{2000}$', '3x+1')
     """
     if value is None:
         return "--"
@@ -362,9 +402,22 @@ def tex_number(value) -> str:
         if value.denominator == 1:
             return tex_number(value.numerator)
         sign = "-" if value < 0 else ""
-        return f"${sign}\\frac{{{abs(value.numerator)}}}{{{value.denominator}}}$"
+        num, den = _grouped(str(abs(value.numerator))), _grouped(str(value.denominator))
+        if int_digits(value.numerator) + int_digits(value.denominator) > 96:
+            return tex_escape(short(value))
+        return f"${sign}\\frac{{{num}}}{{{den}}}$"
     if isinstance(value, float):
         return f"${value:.6g}$" if math.isfinite(value) else "--"
+    if isinstance(value, str):
+        m = _NUMBER_TEXT.match(value.strip())
+        if m is None:
+            return tex_escape(value)
+        if m.group(2) is not None:  # an integer or a fraction p/q
+            if m.group(3) is not None:
+                sign = -1 if m.group(1) == "-" else 1
+                return tex_number(sign * Fraction(int(m.group(2)), int(m.group(3))))
+            return tex_number(int(m.group(1) + m.group(2)))
+        return f"${value.strip()}$"
     if hasattr(value, "item") and not isinstance(value, int):  # numpy scalars
         return tex_number(value.item())
     if type(value).__name__ == "Magnitude":  # a bound: its size, not its digits
@@ -374,18 +427,42 @@ def tex_number(value) -> str:
         d = int_digits(a)
         head, tail = a // 10 ** (d - keep), a % 10**keep
         sign = "-" if value < 0 else ""
-        return f"${sign}{head}\\ldots{tail:0{keep}d}$ ({d} digits)"
+        return f"${sign}{_grouped(str(head))}\\ldots{_grouped(f'{tail:0{keep}d}')}$ ({d} digits)"
     if isinstance(value, int) or type(value).__name__ == "mpz":
         text = str(int(value))
         sign, digits = ("-", text[1:]) if text.startswith("-") else ("", text)
-        if len(digits) >= 5:
-            groups = []
-            while digits:
-                groups.append(digits[-3:])
-                digits = digits[:-3]
-            digits = r"\,".join(reversed(groups))
-        return f"${sign}{digits}$"
+        return f"${sign}{_grouped(digits)}$"
     return tex_escape(str(value))
+
+
+#: Marks for the labels of a LaTeX table's columns, in order of first use.
+_MARKS = "abcdefghijklmnopqrstuvwxyz"
+
+
+def label_marks(labels: Sequence[str | None]) -> dict[str, str]:
+    """One footnote mark per distinct label, in order of first appearance.
+
+    >>> label_marks(["exact", None, "heuristic", "exact"])
+    {'exact': 'a', 'heuristic': 'b'}
+    """
+    marks: dict[str, str] = {}
+    for lab in labels:
+        if lab and lab not in marks:
+            marks[lab] = _MARKS[len(marks) % len(_MARKS)] * (len(marks) // len(_MARKS) + 1)
+    return marks
+
+
+_HEADER_LABEL = re.compile(r"^(.*\S)\s*\[([^\[\]]+)\]$")
+
+
+def split_header_label(header: str) -> tuple[str, str | None]:
+    """``"minimum [certified]"`` -> ``("minimum", "certified")``; a header without a label -> ``(header, None)``.
+
+    >>> split_header_label("minimum [certified]"), split_header_label("map")
+    (('minimum', 'certified'), ('map', None))
+    """
+    m = _HEADER_LABEL.match(str(header))
+    return (m.group(1), m.group(2)) if m else (str(header), None)
 
 
 def latex_table(
@@ -395,13 +472,17 @@ def latex_table(
     caption: str | None = None,
     label: str | None = None,
     notes: Sequence[str] = (),
+    labels: Mapping[str, str] | None = None,
 ) -> str:
     """A booktabs ``tabular`` (in a ``table`` float when a caption or label is given).
 
     Numbers are set in math mode (:func:`tex_number`), text is escaped, numeric
-    columns are right-aligned. Each figure's kind (exact, certified, proved,
-    heuristic) belongs in a column of its own; ``notes`` are printed under the
-    rule (e.g. a caution for heuristic figures). Needs ``\\usepackage{booktabs}``.
+    columns are right-aligned. The kind of each column's figures (exact,
+    certified, proved, heuristic, rounded), given in ``labels`` or as a
+    header ``"name [label]"``, becomes a footnote mark on the header
+    (``name$^{a}$``) explained under the rule; a label that varies by row
+    belongs in a column of its own. ``notes`` are printed under the rule too
+    (e.g. a caution for heuristic figures). Needs ``\\usepackage{booktabs}``.
 
     Examples
     --------
@@ -413,10 +494,29 @@ def latex_table(
     $27$ & $111$ & exact \\\\
     \\bottomrule
     \\end{tabular}
+    >>> print(latex_table(["start", "steps [exact]"], [[27, 111]]))
+    \\begin{tabular}{rr}
+    \\toprule
+    start & steps$^{a}$ \\\\
+    \\midrule
+    $27$ & $111$ \\\\
+    \\bottomrule
+    \\multicolumn{2}{p{0.9\\linewidth}}{\\footnotesize $^{a}$\\,exact} \\\\
+    \\end{tabular}
     """
     rows = [list(r) for r in rows]
+    names, kinds = [], []
+    for c in columns:
+        name, kind = split_header_label(c)
+        if labels and c in labels:
+            name, kind = str(c), labels[c]
+        names.append(name)
+        kinds.append(kind)
+    marks = label_marks(kinds)
 
     def numeric(v) -> bool:
+        if isinstance(v, str):
+            return _NUMBER_TEXT.match(v.strip()) is not None
         return (isinstance(v, (int, float, Fraction)) and not isinstance(v, bool)) or (
             type(v).__name__ == "mpz"
         )
@@ -425,15 +525,25 @@ def latex_table(
     for j in range(len(columns)):
         vals = [r[j] for r in rows if j < len(r) and r[j] is not None]
         align.append("r" if vals and all(numeric(v) for v in vals) else "l")
+    # text columns with long cells wrap in a paragraph column, so the table fits the page
+    wide = [
+        j
+        for j, a in enumerate(align)
+        if a == "l" and any(len(str(r[j])) > 40 for r in rows if j < len(r) and r[j] is not None)
+    ]
+    for j in wide:
+        align[j] = f"p{{{0.6 / len(wide):.2g}\\linewidth}}"
     lines = [f"\\begin{{tabular}}{{{''.join(align)}}}", r"\toprule"]
-    lines.append(" & ".join(tex_escape(c) for c in columns) + r" \\")
+    heads = [tex_escape(n) + (f"$^{{{marks[k]}}}$" if k else "") for n, k in zip(names, kinds)]
+    lines.append(" & ".join(heads) + r" \\")
     lines.append(r"\midrule")
     for r in rows:
         lines.append(" & ".join(tex_number(v) for v in r) + r" \\")
     lines.append(r"\bottomrule")
-    for n in notes:
+    key = "; ".join(f"$^{{{m}}}$\\,{tex_escape(k)}" for k, m in marks.items())
+    for n in ([key] if key else []) + [tex_escape(n) for n in notes]:
         lines.append(
-            f"\\multicolumn{{{len(columns)}}}{{p{{0.9\\linewidth}}}}{{\\footnotesize {tex_escape(n)}}} \\\\"
+            f"\\multicolumn{{{len(columns)}}}{{p{{0.9\\linewidth}}}}{{\\footnotesize {n}}} \\\\"
         )
     lines.append(r"\end{tabular}")
     body = "\n".join(lines)
@@ -484,6 +594,11 @@ class _LatexConsole:
             else:
                 for line in _plain(obj).splitlines() or [""]:
                     self.stream.write(f"% {line}\n")
+
+
+def latex_mode() -> bool:
+    """Whether tables print as LaTeX now (inside :func:`latex_output`, i.e. under ``--latex``)."""
+    return _LATEX_MODE[0]
 
 
 class latex_output:

@@ -77,16 +77,17 @@ class Table:
         return csv_text(self.header_cells(), self.rows)
 
     def latex(self) -> str:
-        """The table as a booktabs ``tabular`` in a ``table`` float (labels in the header)."""
+        """The table as a booktabs ``tabular`` in a ``table`` float (labels as footnote marks)."""
         from .render import latex_table
 
         return (
             latex_table(
-                self.header_cells(),
+                self.columns,
                 self.rows,
                 caption=self.title,
                 label=f"tab:{self.name}",
                 notes=[self.note] if self.note else (),
+                labels=self.labels,
             )
             + "\n"
         )

@@ -36,6 +36,7 @@ from cyclewright.maps import Map, as_map
 from .errors import InputError
 from .labels import EXACT, PROVED
 from .limits import DEFAULT_MAX_STEPS
+from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = ["excursions", "Excursions", "peak_text"]
@@ -111,8 +112,12 @@ def peak_text(value: int, cut: bool) -> str | int:
 
 
 @dataclass(frozen=True)
-class Excursions:
-    """Walks from every start of a range until each drops below its start (exact counts)."""
+class Excursions(Presentable):
+    """Walks from every start of a range until each drops below its start (exact counts).
+
+    In a notebook it shows as an HTML table (:meth:`table`); ``to_pandas()``
+    gives the same table as a DataFrame.
+    """
 
     map: Map
     side: str
@@ -148,6 +153,36 @@ class Excursions:
     def peak_text(self) -> str:
         """The peak as shown: the number, or a lower bound such as ``> 2^60`` when a walk was cut."""
         return peak_text(self.peak, self.peak_overflowed)
+
+    def table(self) -> Table:
+        """Every figure of the walks with its label, one a row."""
+        peak_label = PROVED.value if self.peak_overflowed else EXACT.value
+        rows = (
+            ("starts", self.starts, EXACT.value),
+            ("drop below their start", self.stopped, EXACT.value),
+            ("return to their start", self.returned, EXACT.value),
+            ("pass the step cap", self.capped, EXACT.value),
+            ("would pass 2^62 (walk cut)", self.overflowed, EXACT.value),
+            ("share that drops", self.drop_share, EXACT.value),
+            ("share neither dropping nor returning", self.open_share, EXACT.value),
+            ("mean stopping time of those that drop", self.mean_stopping_time, EXACT.value),
+            (
+                "largest value reached"
+                + (" (a lower bound on |peak|)" if self.peak_overflowed else ""),
+                self.peak_text(),
+                peak_label,
+            ),
+            ("its start", self.peak_start, EXACT.value),
+        )
+        return Table(
+            f"Excursions of {self.map.label}, {self.side} side, starts {self.start}..{self.to} "
+            f"(step cap {self.max_steps})",
+            ("figure", "value", "label"),
+            rows,
+            {},
+            "each walk ends when the orbit drops below its start, returns to it, passes the "
+            "step cap or would pass 2^62",
+        )
 
     def to_dict(self) -> dict:
         return {

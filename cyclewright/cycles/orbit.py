@@ -39,7 +39,7 @@ References
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import TypeVar
 
 from cyclewright.maps import Map, as_map
@@ -47,6 +47,7 @@ from cyclewright.maps import Map, as_map
 from .itinerary import format_itinerary
 from .labels import EXACT
 from .limits import DEFAULT_MAX_STEPS
+from .presentation import Presentable, Table
 
 __all__ = [
     "brent",
@@ -134,8 +135,12 @@ def brent(f: Callable[[T], T], x0: T, max_steps: int) -> tuple[int, int] | None:
 
 
 @dataclass(frozen=True)
-class Orbit:
+class Orbit(Presentable):
     """The orbit of one integer (all figures exact).
+
+    In a notebook it shows as two HTML tables (:meth:`figures_table` and
+    the first :data:`SHOWN_VALUES` rows of :meth:`table`); ``to_pandas()``
+    gives every step as a DataFrame.
 
     Attributes
     ----------
@@ -205,6 +210,60 @@ class Orbit:
             if r == 1 and abs(a * v + b) > abs(best):
                 best = a * v + b
         return best
+
+    #: Steps listed by the notebook display (``table()`` holds them all).
+    SHOWN_VALUES = 20
+
+    def figures_table(self) -> Table:
+        """The orbit's figures, one a row (all exact), as ``orbit`` prints them."""
+        rows: list[tuple] = [
+            ("status", self.status),
+            ("steps taken", self.steps),
+            ("stopping time", self.stopping_time),
+            ("steps before the cycle", self.tail),
+            ("cycle length", len(self.cycle) if self.cycle else None),
+            ("cycle minimum", self.cycle_minimum),
+            ("steps to the cycle minimum", self.total_steps),
+            ("largest value (peak)", self.peak),
+        ]
+        if self.map.ax_b is not None:
+            rows += [
+                ("steps to the cycle minimum, undivided count", self.undivided_total_steps),
+                ("largest value, undivided path", self.undivided_peak),
+            ]
+        note = {
+            "capped": "the step cap stopped the orbit before it closed a cycle",
+            "escaped": "the orbit passed its value cap: not a proof of divergence",
+        }.get(self.status, "")
+        return Table(
+            f"Orbit of {self.start} under {self.map.label}",
+            ("figure", "value"),
+            tuple(rows),
+            {"value": EXACT.value},
+            note,
+        )
+
+    def table(self) -> Table:
+        """One row per step: the step, the value and its residue mod d (all exact)."""
+        d = self.map.divisor
+        return Table(
+            f"Orbit of {self.start} under {self.map.label}, step by step",
+            ("step", "value", "residue"),
+            tuple((i, v, v % d) for i, v in enumerate(self.values)),
+            {"value": EXACT.value, "residue": EXACT.value},
+        )
+
+    def _display_tables(self) -> list[Table]:
+        steps = self.table()
+        shown = steps.head(self.SHOWN_VALUES)
+        if len(steps.rows) > len(shown.rows):
+            more = len(steps.rows) - len(shown.rows)
+            shown = replace(shown, note=f"{more} more steps in .table() and .to_pandas()")
+        return [self.figures_table(), shown]
+
+    def to_pandas(self):
+        """Every step (:meth:`table`) as a pandas DataFrame (pandas is optional)."""
+        return self.table().to_pandas()
 
     def to_dict(self, max_values: int | None = 1000) -> dict:
         vals = list(self.values if max_values is None else self.values[:max_values])

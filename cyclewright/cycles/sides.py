@@ -111,6 +111,17 @@ class PerSide(Generic[T]):
     def __len__(self) -> int:
         return len(self.results)
 
+    def _repr_html_(self) -> str:
+        """Each side's result as HTML (Jupyter shows it), under the side's name; then the problems."""
+        from html import escape
+
+        out = []
+        for side, r in self.results.items():
+            body = r._repr_html_() if hasattr(r, "_repr_html_") else f"<pre>{escape(repr(r))}</pre>"
+            out.append(f"<h4>{escape(side)} side</h4>{body}")
+        out += [f"<p>{escape(s)} side: {escape(why)}</p>" for s, why in self.problems.items()]
+        return "".join(out)
+
     def to_dict(self) -> dict:
         """Plain data: each result's ``to_dict()`` by side, and the problems."""
         return {

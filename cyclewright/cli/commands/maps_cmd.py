@@ -4,22 +4,38 @@ from __future__ import annotations
 
 import click
 
-from ..options import catalog_for, json_option, map_argument, maps_option, resolve_map
-from ..render import emit_json, make_table, stderr_console, stdout_console
+from ..options import (
+    catalog_for,
+    json_option,
+    latex_tables,
+    map_argument,
+    maps_option,
+    resolve_map,
+)
+from ..render import (
+    emit_json,
+    latex_mode,
+    latex_output,
+    make_table,
+    stderr_console,
+    stdout_console,
+)
 
 
 @click.group(
     "maps",
     invoke_without_command=True,
-    epilog="\b\nExamples:\n  cyclewright maps\n  cyclewright maps --maps mine.toml --json\n  cyclewright maps show mod3-4x",
+    epilog="\b\nExamples:\n  cyclewright maps\n  cyclewright maps --maps mine.toml --json\n  cyclewright maps --latex\n  cyclewright maps show mod3-4x",
 )
 @maps_option
 @json_option
 @click.pass_context
+@latex_tables
 def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
     """The catalog: one row a map (name, definition, divisor, drift, source)."""
     ctx.ensure_object(dict)
     ctx.obj["map_files"] = map_files
+    ctx.obj["latex"] = latex_mode()  # `maps --latex show MAP` prints LaTeX too
     if ctx.invoked_subcommand is not None:
         return
     cat = catalog_for(map_files)
@@ -43,13 +59,14 @@ def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
         return
     table = make_table(
         "Maps in the catalog",
-        ["name", "definition", "d", "drift/step [exact = rounded]", "source"],
+        ["name", "definition", "d", "drift per step [exact]", "drift, rounded [rounded]", "source"],
         [
             [
                 r["name"],
                 r["formula"],
                 r["divisor"],
-                f"{r['drift_exact']} = {r['drift']:+.4f}",
+                r["drift_exact"],
+                f"{r['drift']:+.4f}",
                 r["source"],
             ]
             for r in rows
@@ -65,12 +82,13 @@ def maps_group(ctx: click.Context, map_files, as_json: bool) -> None:
 
 @maps_group.command(
     "show",
-    epilog="\b\nExamples:\n  cyclewright maps show 3x+1\n  cyclewright maps show 7x+3 --json",
+    epilog="\b\nExamples:\n  cyclewright maps show 3x+1\n  cyclewright maps show 7x+3 --json\n  cyclewright maps show 3x+1 --latex",
 )
 @map_argument
 @maps_option
 @json_option
 @click.pass_context
+@latex_tables
 def show(ctx: click.Context, map_spec: str, map_files, as_json: bool) -> None:
     """One map in full: branches, canonical hash, drift, source."""
     files = tuple(map_files) + tuple((ctx.obj or {}).get("map_files", ()))
@@ -79,6 +97,11 @@ def show(ctx: click.Context, map_spec: str, map_files, as_json: bool) -> None:
     if as_json:
         emit_json(info)
         return
+    with latex_output(latex_mode() or bool((ctx.obj or {}).get("latex"))):
+        _show(m)
+
+
+def _show(m) -> None:
     con = stdout_console()
     con.print(f"[bold]{m.label}[/bold]  {m.formula()}")
     if m.description:

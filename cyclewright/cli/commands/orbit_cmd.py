@@ -18,6 +18,7 @@ from ..options import (
     ceiling_option,
     force_option,
     json_option,
+    latex_tables,
     map_argument,
     maps_option,
     max_steps_option,
@@ -26,12 +27,12 @@ from ..options import (
     resolve_map,
     show_option,
 )
-from ..render import emit_json, short, stdout_console
+from ..render import emit_json, latex_mode, short, show_table, stdout_console
 
 
 @click.command(
     "orbit",
-    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 10^30\n  cyclewright orbit 3x+1 27 --plot orbit27.pdf",
+    epilog="\b\nExamples:\n  cyclewright orbit 3x+1 27\n  cyclewright orbit 3x+1 -17\n  cyclewright orbit 5x+1 7 --max-steps 500 --ceiling 10^30\n  cyclewright orbit 3x+1 27 --plot orbit27.pdf\n  cyclewright orbit 3x+1 27 --latex",
 )
 @map_argument
 @click.argument("start", metavar="N")
@@ -42,6 +43,7 @@ from ..render import emit_json, short, stdout_console
 @force_option
 @maps_option
 @json_option
+@latex_tables
 def orbit_cmd(
     map_spec, start, max_steps, ceiling, show, plot_path, force, map_files, as_json
 ) -> None:
@@ -82,6 +84,10 @@ def orbit_cmd(
         emit_json(o.to_dict(max_values=None))
         return
     con = stdout_console()
+    if latex_mode():  # the figures and the first values as tables, the rest as comments
+        con.print(show_table(o.figures_table()))
+        con.print(show_table(o.table(), show=show))
+        return
     why = ""
     if o.status == "escaped":
         cap = (

@@ -13,9 +13,9 @@ from cyclewright.cycles.certificate import (
 )
 
 from ..errors import BadInput
-from ..options import json_option, workers_option
+from ..options import json_option, latex_tables, workers_option
 from ..progress import progress_display
-from ..render import emit_json, stdout_console
+from ..render import emit_json, latex_mode, make_table, stdout_console
 
 __all__ = ["COMMANDS"]
 
@@ -26,6 +26,7 @@ __all__ = ["COMMANDS"]
         "\b\nExamples:\n  cyclewright verify census-3x5.json\n"
         "  cyclewright verify big.json --rescan --json\n"
         "  cyclewright verify big.json --minutes 30\n"
+        "  cyclewright verify census-3x5.json --latex\n"
         f"\b\nExit status:\n  {EXIT_HOLDS}  every claim re-derived and equal (the certificate holds)\n"
         f"  {EXIT_FAILS}  some claim differs from its recomputation (each field is named)\n"
         "  2  the file is not a certificate, or bad options\n"
@@ -48,6 +49,7 @@ __all__ = ["COMMANDS"]
 )
 @workers_option
 @json_option
+@latex_tables
 def verify_cmd(path, rescan, minutes, workers, as_json):
     """Re-derive every claim of a census certificate; name each field that differs."""
     try:
@@ -60,6 +62,18 @@ def verify_cmd(path, rescan, minutes, workers, as_json):
         v = verify_certificate(path, rescan=rescan, workers=workers, minutes=limit, progress=show)
     if as_json:
         emit_json(v.to_dict())
+    elif latex_mode():  # one table of the checks, the verdict as its note
+        rows = [[c, "holds"] for c in v.checks]
+        rows += [[c, "not checked"] for c in v.not_run]
+        rows += [[p, "FAILED"] for p in v.problems]
+        stdout_console().print(
+            make_table(
+                f"Checks of the certificate {path}",
+                ["claim re-derived", "outcome"],
+                rows,
+                caption=_verdict(v),
+            )
+        )
     else:
         con = stdout_console()
         for c in v.checks:
@@ -68,17 +82,17 @@ def verify_cmd(path, rescan, minutes, workers, as_json):
             con.print(f"NOT CHECKED: {c}", highlight=False, markup=False)
         for p in v.problems:
             con.print(f"FAILED: {p}", highlight=False, markup=False)
-        if v.status == "holds":
-            con.print("certificate holds: every claim re-derived", highlight=False)
-        elif v.status == "fails":
-            con.print(f"certificate does NOT hold ({len(v.problems)} problem(s))", highlight=False)
-        else:
-            con.print(
-                "certificate holds for every check that ran; the checks marked NOT CHECKED did not run",
-                highlight=False,
-            )
+        con.print(_verdict(v), highlight=False)
     if v.exit_status:
         raise SystemExit(v.exit_status)
+
+
+def _verdict(v) -> str:
+    if v.status == "holds":
+        return "certificate holds: every claim re-derived"
+    if v.status == "fails":
+        return f"certificate does NOT hold ({len(v.problems)} problem(s))"
+    return "certificate holds for every check that ran; the checks marked NOT CHECKED did not run"
 
 
 COMMANDS = [verify_cmd]
