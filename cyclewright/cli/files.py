@@ -73,6 +73,7 @@ def check_figure_path(path: str | None, option: str, force: bool = False) -> Pat
 def save_figure(fig, path: str | os.PathLike) -> Path:
     """Save a matplotlib figure atomically, in the format its extension names (PNG, SVG or PDF),
     without run-dependent metadata, and close it."""
+    import matplotlib
     import matplotlib.pyplot as plt
 
     fmt = figure_format(path)
@@ -81,9 +82,18 @@ def save_figure(fig, path: str | os.PathLike) -> Path:
         "svg": {"Creator": None, "Date": None},
         "pdf": {"Creator": None, "Producer": None, "CreationDate": None},
     }[fmt]
+    # text stays text: SVG labels are searchable and editable, PDF fonts are embedded
+    # as TrueType (Type 42) rather than Type 3, which journals refuse; the bounding box
+    # takes in legends placed outside the axes
+    rc = {"svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42}
     try:
-        return atomic_write(
-            path, lambda fh: fig.savefig(fh, format=fmt, metadata=meta), binary=True
-        )
+        with matplotlib.rc_context(rc):
+            return atomic_write(
+                path,
+                lambda fh: fig.savefig(
+                    fh, format=fmt, metadata=meta, bbox_inches="tight", pad_inches=0.03
+                ),
+                binary=True,
+            )
     finally:
         plt.close(fig)

@@ -38,6 +38,13 @@ def _integer_ticks(axis) -> None:
     axis.set_major_locator(MaxNLocator(integer=True))
 
 
+def _legend_above_data(ax) -> None:
+    """On a log-scale count axis: head room above the tallest bar, and the legend in it."""
+    lo, hi = ax.get_ylim()
+    ax.set_ylim(lo, hi * (hi / lo) ** 0.45 if lo > 0 else hi * 30)
+    ax.legend(fontsize=6, loc="upper right", frameon=False)
+
+
 def log10(n) -> float:
     """log10 of a positive integer or float, exact-enough for plotting big integers; nan for <= 0."""
     if n is None:
@@ -86,7 +93,10 @@ def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
     n = len(profiles) + 1
     cols = min(3, n)
     rows = math.ceil(n / cols)
-    fig, axes = plt.subplots(rows, cols, figsize=(4.2 * cols, 3.3 * rows), dpi=100, squeeze=False)
+    # panels of 2.4 inches: three to a row fill a page's text width (about 7 inches)
+    fig, axes = plt.subplots(
+        rows, cols, figsize=(2.4 * cols, 2.3 * rows + 0.4), dpi=150, squeeze=False
+    )
     flat = [ax for row in axes for ax in row]
     shared = None
     for ax, p in zip(flat, profiles):
@@ -123,17 +133,21 @@ def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
             ax.scatter(
                 *zip(*cyc), marker="*", s=40, color="k", zorder=3, label="integer cycles (exact)"
             )
-        ax.set_title(p.map.label, fontsize=9)
+        ax.set_title(p.map.label, fontsize=8)
+        ax.set_xlabel(
+            "x (odd steps)" if p.map.divisor == 2 else "x (steps off residue 0)", fontsize=7
+        )
+        _integer_ticks(ax.xaxis)
         ax.grid(alpha=0.3)
-        ax.tick_params(labelsize=7)
+        ax.tick_params(labelsize=6)
         if shared is None:
             shared = ax
         else:
             ax.sharey(shared)
             ax.sharex(shared)
     if shared is not None:
-        shared.legend(fontsize=6, loc="upper left")
-        shared.set_ylabel("log10 count", fontsize=8)
+        shared.legend(fontsize=5, loc="best", frameon=False)
+        shared.set_ylabel("log10 of the count", fontsize=7)
     last = flat[len(profiles)]
     labels = [p.map.label for p in profiles]
     esc = [p.row()["unresolved_share"] or 0.0 for p in profiles]
@@ -144,22 +158,21 @@ def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
     last.axhline(0, color="k", lw=0.6)
     last.set_xticks(list(pos))
     last.set_xticklabels(labels, rotation=60, fontsize=6)
-    last.set_title("escape and drift", fontsize=9)
-    last.legend(fontsize=6)
+    last.set_ylabel("share of starts; drift (ln per step)", fontsize=6)
+    last.set_title("escape and drift", fontsize=8)
+    last.tick_params(labelsize=6)
+    # under the panel, below its tick labels: bars of any height stay visible
+    last.legend(fontsize=5, loc="upper center", bbox_to_anchor=(0.5, -0.4), frameon=False)
     for ax in flat[len(profiles) + 1 :]:
         ax.axis("off")
-    fig.suptitle("Along the critical line: x (odd steps / steps off residue 0)", fontsize=10)
+    fig.suptitle("Counts along the critical line, per map", fontsize=9)
     fig.tight_layout()
     return save_figure(fig, path)
 
 
 def plot_sweep(s, path: str) -> None:
     """Log-scale plot of a sweep (matplotlib, Agg backend); written atomically to ``path``."""
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
+    plt = _pyplot()
     seen = set()
     rows = []
     for r in s.rows:  # first length of each x and content
@@ -168,28 +181,31 @@ def plot_sweep(s, path: str) -> None:
             seen.add(key)
             rows.append(r)
     xs = [r.off_zero for r in rows]
-    fig, ax = plt.subplots(figsize=(9, 5.5), dpi=110)
-    ax.plot(xs, [log10(r.necklaces) for r in rows], label="necklaces (exact)", lw=1.4)
-    ax.plot(xs, [r.heuristic_log10 for r in rows], label="necklaces/|D| (heuristic)", lw=1.0)
+    fig, ax = plt.subplots(figsize=(COLUMN_WIDTH, 3.1), dpi=150)
+    ax.plot(xs, [log10(r.necklaces) for r in rows], label="necklaces (exact)", lw=1.2)
+    ax.plot(xs, [r.heuristic_log10 for r in rows], label="necklaces/|D| (heuristic)", lw=0.9)
     bound = [log10(r.candidates_bound) if r.candidates_bound else float("nan") for r in rows]
-    ax.plot(xs, bound, label="proved bound on |min| (= candidates bound)", lw=1.2, ls="--")
+    ax.plot(xs, bound, label="proved bound on |min| (= candidates bound)", lw=1.0, ls="--")
     lf = [
         log10(r.candidates_linear_forms) if r.candidates_linear_forms else float("nan")
         for r in rows
     ]
-    ax.plot(xs, lf, label="bound from the linear-forms |Λ| bound (proved)", lw=1.0, ls=":")
+    ax.plot(xs, lf, label="bound from the |Λ| bound (linear forms, proved)", lw=1.0, ls=":")
     enum = [(r.off_zero, log10(r.candidates)) for r in rows if r.enumerated and r.candidates]
     if enum:
         ax.scatter(*zip(*enum), s=12, marker="o", label="candidates, enumerated (exact)")
     ints = [(r.off_zero, log10(len(r.integer_cycles))) for r in rows if r.integer_cycles]
     if ints:
         ax.scatter(*zip(*ints), s=36, marker="*", color="k", label="integer cycles (exact)")
-    ax.set_xlabel("x (odd steps)" if s.map.divisor == 2 else "x (steps off residue 0)")
-    ax.set_ylabel("log10 of the count")
-    ax.set_title(f"{s.map.label}, {s.side} side: necklaces vs candidates along the critical line")
+    ax.set_xlabel("x (odd steps)" if s.map.divisor == 2 else "x (steps off residue 0)", fontsize=8)
+    ax.set_ylabel("log10 of the count", fontsize=8)
+    ax.set_title(f"{s.map.label}, {s.side} side: the critical line", fontsize=8)
+    _integer_ticks(ax.xaxis)
+    ax.tick_params(labelsize=7)
     ax.grid(alpha=0.3)
-    ax.legend(fontsize=8)
-    fig.tight_layout()
+    # six series: the legend goes under the axes, where it covers nothing
+    fig.legend(*ax.get_legend_handles_labels(), fontsize=5, loc="lower center", frameon=False)
+    fig.tight_layout(rect=(0, 0.27, 1, 1))
     save_figure(fig, path)
 
 
@@ -217,12 +233,12 @@ def plot_records(result, path: str | os.PathLike) -> Path:
             ax.axvline(mu, color="C3", lw=1.2, label="drift model mean (heuristic)")
             ax.axvspan(mu - sig, mu + sig, color="C3", alpha=0.12, label="model mean ± sd")
         ax.set_yscale("log")
-        ax.set_xlabel("steps to the cycle minimum (divided count)", fontsize=8)
-        ax.set_ylabel("starts", fontsize=8)
+        ax.set_xlabel("steps to the cycle minimum (divided)", fontsize=8)
+        ax.set_ylabel("starts (count)", fontsize=8)
         ax.set_title(f"{result.map.label}, {sd.side} side: delay", fontsize=8)
         _integer_ticks(ax.xaxis)
         ax.tick_params(labelsize=7)
-        ax.legend(fontsize=6, loc="best", frameon=False)
+        _legend_above_data(ax)
         ax = row[1]
         if sd.glides:
             xs = sorted(sd.glides)
@@ -233,12 +249,12 @@ def plot_records(result, path: str | os.PathLike) -> Path:
             ks = [k for k in sorted(gp) if k <= max(sd.glides, default=1)]
             ax.plot(ks, [n * gp[k] for k in ks], "k.", ms=3, label="random-walk model (heuristic)")
         ax.set_yscale("log")
-        ax.set_xlabel("stopping time (first step below the start)", fontsize=8)
-        ax.set_ylabel("starts", fontsize=8)
+        ax.set_xlabel("stopping time (steps)", fontsize=8)
+        ax.set_ylabel("starts (count)", fontsize=8)
         ax.set_title(f"{result.map.label}, {sd.side} side: glide", fontsize=8)
         _integer_ticks(ax.xaxis)
         ax.tick_params(labelsize=7)
-        ax.legend(fontsize=6, loc="best", frameon=False)
+        _legend_above_data(ax)
     fig.tight_layout()
     return save_figure(fig, path)
 
@@ -262,8 +278,8 @@ def plot_orbit(o, path: str | os.PathLike) -> Path:
     if o.cycle and o.tail is not None:
         ax.axvspan(o.tail, len(vals) - 1, color="0.85", label="on the cycle")
     ax.set_yscale("log")
-    ax.set_xlabel("step", fontsize=8)
-    ax.set_ylabel("|value|", fontsize=8)
+    ax.set_xlabel("step (divided map)", fontsize=8)
+    ax.set_ylabel("|value| (log scale)", fontsize=8)
     ax.set_title(f"{o.map.label}: orbit of {o.start} ({o.status})", fontsize=8)
     _integer_ticks(ax.xaxis)
     ax.tick_params(labelsize=7)

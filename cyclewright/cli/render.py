@@ -362,7 +362,8 @@ def tex_escape(text: str) -> str:
     >>> tex_escape("3x+1 & 50% of n_1")
     '3x+1 \\\\& 50\\\\% of n\\\\_1'
     """
-    return "".join(_TEX_SPECIAL.get(c, c) for c in str(text))
+    text = str(text).replace("<=", "≤").replace(">=", "≥")
+    return "".join(_TEX_SPECIAL.get(c, c) for c in text)
 
 
 def _grouped(digits: str) -> str:
@@ -376,23 +377,22 @@ def _grouped(digits: str) -> str:
     return r"\,".join(reversed(groups))
 
 
-_NUMBER_TEXT = re.compile(
-    r"^([+-]?)(\d+)(?:/(\d+))?$|^[+-]?\d*\.\d+(?:e[+-]?\d+)?$|^[+-]?\d+e[+-]?\d+$"
-)
+#: Text that spells a plain number: an integer or a decimal (not ``p/q``: "4/4" may be a count of a count).
+_NUMBER_TEXT = re.compile(r"^([+-]?)(\d+)$|^[+-]?\d*\.\d+(?:e[+-]?\d+)?$|^[+-]?\d+e[+-]?\d+$")
 
 
 def tex_number(value) -> str:
     """A number in math mode; integers of five or more digits grouped by thin spaces.
 
-    Text that spells a plain number (``"12345"``, ``"-5/3"``, ``"0.0607"``)
-    is set in math mode too; any other text is escaped.
+    Text that spells a plain number (``"12345"``, ``"-0.0607"``) is set in
+    math mode too; any other text is escaped.
 
     >>> tex_number(56991483520)
     '$56\\\\,991\\\\,483\\\\,520$'
     >>> tex_number(-1234), tex_number(Fraction(39889, 1000)), tex_number(None)
     ('$-1234$', '$\\\\frac{39\\\\,889}{1000}$', '--')
-    >>> tex_number(0.5), tex_number("0.060699"), tex_number("-89759/2000"), tex_number("3x+1")
-    ('$0.5$', '$0.060699$', '$-\\\\frac{89\\\\,759}{2000}$', '3x+1')
+    >>> tex_number(0.5), tex_number("0.060699"), tex_number("-89759"), tex_number("3/4")
+    ('$0.5$', '$0.060699$', '$-89\\\\,759$', '3/4')
     """
     if value is None:
         return "--"
@@ -412,10 +412,7 @@ def tex_number(value) -> str:
         m = _NUMBER_TEXT.match(value.strip())
         if m is None:
             return tex_escape(value)
-        if m.group(2) is not None:  # an integer or a fraction p/q
-            if m.group(3) is not None:
-                sign = -1 if m.group(1) == "-" else 1
-                return tex_number(sign * Fraction(int(m.group(2)), int(m.group(3))))
+        if m.group(2) is not None:  # an integer
             return tex_number(int(m.group(1) + m.group(2)))
         return f"${value.strip()}$"
     if hasattr(value, "item") and not isinstance(value, int):  # numpy scalars

@@ -370,6 +370,74 @@ def _catalogue_section(ctx: StudyContext, study: Study) -> Section:
     return sec
 
 
+def _span(lo, hi) -> str:
+    return f"{short(lo)}..{short(hi)}"
+
+
+def _parameters(spec: AnalysisSpec) -> list:
+    """``[cycle length, starts, odd steps, step cap]`` of one analysis, as text ("-": not used)."""
+    p = spec.params
+    if spec.kind == "count":
+        return [f"k = {p['length']}", "-", str(p["odd"]), "-"]
+    if spec.kind == "sweep":
+        odd = p["odd"]
+        extra = f" and {p['extra_lengths']} more" if p["extra_lengths"] else ""
+        return [f"the critical length of each x{extra}", "-", _span(odd.start, odd.stop - 1), "-"]
+    if spec.kind == "census":
+        return [f"K = {p['max_length']}", "up to each side's proved bound", "-", "-"]
+    if spec.kind == "scan":
+        return ["-", _span(p["from"], p["to"]), "-", str(p["max_steps"])]
+    if spec.kind == "floor":
+        return ["-", f"N = {short(p['verified_to'])}, assumed verified", "-", "-"]
+    if spec.kind == "compare":
+        return [
+            f"K = {p['max_length']}",
+            f"1..N, N = {short(p['to'])} (also the floors' N)",
+            str(p["odd"]),
+            str(p["max_steps"]),
+        ]
+    if spec.kind == "graph":
+        return ["-", _span(1, p["to"]), "-", "-"]
+    if spec.kind == "records":
+        return ["-", _span(p["from"], p["to"]), "-", str(p["max_steps"])]
+    return ["-", "-", "-", "-"]  # pragma: no cover - every kind is listed above
+
+
+def _parameters_section(ctx: StudyContext, study: Study, titles: list[str]) -> Section:
+    """Which K, N and x (and step cap) each section's figures use, in one table."""
+    sec = Section("What the figures assume")
+    rows = [
+        [
+            title,
+            ", ".join(m.label for m in spec.maps),
+            spec.params.get("side", "both" if spec.kind == "compare" else "-"),
+            *_parameters(spec),
+        ]
+        for spec, title in zip(study.analyses, titles)
+    ]
+    sec.tables.append(
+        Table(
+            ctx.name("parameters"),
+            "Cycle length K, starts 1..N and odd steps x behind each section",
+            [
+                "section",
+                "maps",
+                "side",
+                "cycle length (K: at most; k: exactly)",
+                "starts (N: the largest)",
+                "odd steps x",
+                "step cap per start",
+            ],
+            rows,
+            note="K bounds the length of the cycles a census lists; N is the largest start "
+            "scanned, or for a floor the bound up to which no further cycle is assumed to have "
+            "its minimum; x counts the odd steps of a type (the steps off residue 0 for "
+            "divisors above 2). Sections with different N or K are not comparable figure by figure.",
+        )
+    )
+    return sec
+
+
 def _sha256(path: Path) -> str:
     h = hashlib.sha256()
     with open(path, "rb") as fh:
@@ -483,6 +551,8 @@ def run_study(
     report.sections.append(_catalogue_section(ctx, study))
     for spec in study.analyses:
         report.sections.append(ANALYSES[spec.kind](ctx, spec))
+    titles = [s.title for s in report.sections[1:]]
+    report.sections.insert(1, _parameters_section(ctx, study, titles))
     written = report.write(out_dir)
     if study.path is not None and Path(study.path).resolve() != (out_dir / "study.toml").resolve():
         shutil.copyfile(study.path, out_dir / "study.toml")  # the exact input, beside its results

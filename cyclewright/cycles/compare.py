@@ -61,6 +61,7 @@ __all__ = [
     "Predictions",
     "critical_ratio",
     "ROW_COLUMNS",
+    "ROW_HEADINGS",
 ]
 
 #: The columns of :meth:`Comparison.table` (and of the CLI's CSV).
@@ -102,6 +103,47 @@ ROW_COLUMNS = (
     "heuristic_at_x",
     "integer_cycles_at_x",
 )
+
+#: The words each column of :data:`ROW_COLUMNS` is shown under in tables
+#: (:meth:`Comparison.table`, the study report); ``rows()`` keeps the short keys.
+ROW_HEADINGS = {
+    "map": "map",
+    "definition": "definition",
+    "divisor": "divisor d",
+    "drift": "drift per step",
+    "drift_exact": "drift per step, exact form",
+    "critical_ratio": "critical ratio k/x",
+    "critical_ratio_exact": "critical ratio, exact form",
+    "rho": "necklace growth rate rho",
+    "rho_exact": "growth rate, exact form",
+    "census_length": "census length K",
+    "census_cycles": "cycles of length <= K other than 0",
+    "census_primitive_cycles": "of which primitive (Lagarias)",
+    "census_minima": "cycle minima",
+    "census_lengths": "cycle lengths",
+    "census_primitive": "minima of the primitive cycles",
+    "census_method": "census method",
+    "scan_to": "starts scanned, 1..N",
+    "drop_share": "share of starts dropping below themselves",
+    "drop_share_exact": "share dropping, exact",
+    "unresolved_share": "share of starts unresolved",
+    "unresolved_share_exact": "share unresolved, exact",
+    "cycles_met": "cycles met from 1..N",
+    "largest_peak": "largest value reached",
+    "largest_peak_start": "start reaching it",
+    "peak_walk_cut": "a walk was cut (peak a lower bound)",
+    "delay_record_start": "delay record holder",
+    "delay_record": "delay record (steps to the cycle)",
+    "delay_record_unresolved": "starts left unresolved by the delay walk",
+    "floor_positive_length": "least length of a further positive cycle",
+    "floor_negative_length": "least length of a further negative cycle",
+    "x": "odd steps x",
+    "k": "length k at x",
+    "necklaces_at_x": "necklaces at x",
+    "candidates_at_x": "candidates at x",
+    "heuristic_at_x": "necklaces/|D| at x",
+    "integer_cycles_at_x": "integer cycles at x",
+}
 
 
 def critical_ratio(m: Map | str) -> tuple[float, str] | None:
@@ -517,24 +559,30 @@ class Comparison(Presentable):
         return [p.row() for p in self.profiles]
 
     def table(self) -> Table:
-        """One row per map (the columns of :data:`ROW_COLUMNS`, labelled)."""
+        """One row per map: the columns of :data:`ROW_COLUMNS` under their words
+        (:data:`ROW_HEADINGS`), labelled; the title gives K, N and x."""
         note = (
             "Floors are conditional on the scan having verified 1..N with no unresolved "
             "start; where starts stayed unresolved no floor is given. A peak whose walk was cut is a "
-            "lower bound (peak_walk_cut)."
+            "lower bound."
         )
+        title = (
+            f"One row per map (census length K = {self.max_length}, "
+            f"starts 1..N with N = {self.to}, counting at x = {self.odd})"
+        )
+        heads = tuple(ROW_HEADINGS[c] for c in ROW_COLUMNS)
         per_map = [
             Table(
-                "One row per map",
-                tuple(ROW_COLUMNS),
+                title,
+                heads,
                 (tuple(r.get(c) for c in ROW_COLUMNS),),
-                {c: v for c, v in r["labels"].items() if c in ROW_COLUMNS},
+                {ROW_HEADINGS[c]: v for c, v in r["labels"].items() if c in ROW_COLUMNS},
                 note,
             )
             for r in self.rows()
         ]
         if not per_map:
-            return Table("One row per map", tuple(ROW_COLUMNS), (), {}, note)
+            return Table(title, heads, (), {}, note)
         return Table.stack(per_map)  # a label that differs between maps goes per row
 
     def sweeps(self, limit: int = 2000) -> dict:

@@ -8,13 +8,14 @@ from pathlib import Path
 import click
 
 from ..errors import BadInput
-from ..options import json_option, maps_option, resolve_map, store_option
+from ..options import json_option, latex_tables, maps_option, resolve_map, store_option
 from ..render import emit_json, make_table, stdout_console
 
 _EPILOG = """\b
 Examples:
   cyclewright stores list
   cyclewright stores list --json
+  cyclewright stores list --latex
   cyclewright stores remove 3x+7
   cyclewright stores remove --store five.sqlite
   cyclewright stores list --store out/stores
@@ -70,6 +71,7 @@ def stores_group() -> None:
 @stores_group.command("list", epilog=_EPILOG)
 @store_option
 @json_option
+@latex_tables
 def list_cmd(store, as_json: bool) -> None:
     """Every store (map, ranges scanned, size, age) and the sieve table cache."""
     from cyclewright.cycles.scan.sieve import cache_usage
