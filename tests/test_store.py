@@ -114,36 +114,40 @@ def test_refuses_corrupt_files(tmp_path):
         assert _fingerprint(p) == before
 
 
+def _edit(path, *statements):
+    conn = sqlite3.connect(path)
+    for sql in statements:
+        conn.execute(sql)
+    conn.commit()
+    conn.close()
+
+
+def _refused_untouched(path, match, opener):
+    before = _fingerprint(path)
+    with pytest.raises(StoreError, match=match):
+        opener(path)
+    assert _fingerprint(path) == before
+
+
 def test_refuses_foreign_database_and_other_versions(tmp_path):
     foreign = tmp_path / "foreign.sqlite"
-    conn = sqlite3.connect(foreign)
-    conn.execute("CREATE TABLE t (x)")
-    conn.commit()
-    conn.close()
-    before = _fingerprint(foreign)
-    with pytest.raises(StoreError, match="not a cyclewright scan store"):
-        ScanStore(foreign, maps.get("3x+1"))
-    assert _fingerprint(foreign) == before
+    _edit(foreign, "CREATE TABLE t (x)")
+    _refused_untouched(
+        foreign, "not a cyclewright scan store", lambda p: ScanStore(p, maps.get("3x+1"))
+    )
 
     newer = _made_store(tmp_path)
-    conn = sqlite3.connect(newer)
-    conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION + 1}")
-    conn.commit()
-    conn.close()
-    before = _fingerprint(newer)
-    with pytest.raises(StoreError, match="incompatible version"):
-        scan(maps.get("3x+1"), 100, store=newer, workers=1)
-    assert _fingerprint(newer) == before
+    _edit(newer, f"PRAGMA user_version = {SCHEMA_VERSION + 1}")
+    _refused_untouched(
+        newer, "incompatible version", lambda p: scan(maps.get("3x+1"), 100, store=p, workers=1)
+    )
 
-    conn = sqlite3.connect(newer)
-    conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
-    conn.execute("UPDATE meta SET value = '999' WHERE key = 'semantics'")
-    conn.commit()
-    conn.close()
-    before = _fingerprint(newer)
-    with pytest.raises(StoreError, match="semantics"):
-        ScanStore(newer, maps.get("3x+1"))
-    assert _fingerprint(newer) == before
+    _edit(
+        newer,
+        f"PRAGMA user_version = {SCHEMA_VERSION}",
+        "UPDATE meta SET value = '999' WHERE key = 'semantics'",
+    )
+    _refused_untouched(newer, "semantics", lambda p: ScanStore(p, maps.get("3x+1")))
 
 
 def test_refuses_unwritable_paths(tmp_path):

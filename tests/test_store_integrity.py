@@ -130,6 +130,18 @@ def _store(tmp_path, name, to, **kw):
     return path, r
 
 
+def _rescan(path, lines):
+    return scan(
+        maps.get("3x+1"),
+        300,
+        store=path,
+        workers=1,
+        chunk_size=100,
+        side="both",
+        notice=lines.append,
+    )
+
+
 def test_negative_count_is_recomputed_with_one_line(tmp_path, capsys):
     path, ref = _store(tmp_path, "3x+1", 300, side="both")
     conn = sqlite3.connect(path)
@@ -137,29 +149,13 @@ def test_negative_count_is_recomputed_with_one_line(tmp_path, capsys):
     conn.commit()
     conn.close()
     lines = []
-    again = scan(
-        maps.get("3x+1"),
-        300,
-        store=path,
-        workers=1,
-        chunk_size=100,
-        side="both",
-        notice=lines.append,
-    )
+    again = _rescan(path, lines)
     assert _essentials(again) == _essentials(ref)
     assert again.computed == 2 * 99  # the two damaged chunks [1, 99], one per side
     assert len(lines) == 2 and all("damaged" in x and "recomputing" in x for x in lines)
     # repaired: the next run reuses everything and says nothing
     lines.clear()
-    third = scan(
-        maps.get("3x+1"),
-        300,
-        store=path,
-        workers=1,
-        chunk_size=100,
-        side="both",
-        notice=lines.append,
-    )
+    third = _rescan(path, lines)
     assert third.computed == 0 and lines == [] and _essentials(third) == _essentials(ref)
 
 

@@ -30,7 +30,9 @@ from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from urllib.parse import urlsplit
 
 from ..errors import InputError
+from ..limits import wait_seconds
 from ..stopping import STOP_SIGNALS, check_interrupt
+from .store import _stderr_notice
 
 __all__ = [
     "LocalExecutor",
@@ -111,22 +113,6 @@ _DASK_POLL = 1.0
 
 class ClusterError(InputError):
     """The Dask cluster went away (scheduler lost) or stayed without workers: one line."""
-
-
-def _worker_wait() -> float:
-    text = os.environ.get("CYCLEWRIGHT_WORKER_WAIT")
-    if text:
-        try:
-            return max(0.0, float(text))
-        except ValueError:
-            raise InputError(
-                f"CYCLEWRIGHT_WORKER_WAIT must be a number of seconds, got {text!r}"
-            ) from None
-    return DEFAULT_WORKER_WAIT
-
-
-def _stderr_notice(text: str) -> None:
-    print(text, file=sys.stderr, flush=True)
 
 
 def default_workers() -> int:
@@ -296,7 +282,9 @@ class DaskExecutor:
                 "the dask executor needs a scheduler address (--scheduler tcp://HOST:PORT)"
             )
         self.address = address
-        self.worker_wait = _worker_wait() if worker_wait is None else float(worker_wait)
+        self.worker_wait = wait_seconds(
+            "CYCLEWRIGHT_WORKER_WAIT", DEFAULT_WORKER_WAIT, InputError, worker_wait
+        )
         self.notice = notice or _stderr_notice
         _probe(address, timeout)
         try:

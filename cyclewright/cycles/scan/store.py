@@ -96,6 +96,7 @@ from cyclewright.maps import Map, as_map
 
 from ..errors import StoreError
 from ..files import data_dir
+from ..limits import wait_seconds
 
 __all__ = [
     "ScanStore",
@@ -266,18 +267,6 @@ def default_store_path(m: Map | str) -> Path:
     return data_dir() / "scans" / f"{m.key[:16]}.sqlite"
 
 
-def _busy_wait() -> float:
-    text = os.environ.get("CYCLEWRIGHT_STORE_WAIT")
-    if text:
-        try:
-            return max(0.0, float(text))
-        except ValueError:
-            raise StoreError(
-                f"CYCLEWRIGHT_STORE_WAIT must be a number of seconds, got {text!r}"
-            ) from None
-    return DEFAULT_BUSY_WAIT
-
-
 def _stderr_notice(text: str) -> None:
     print(text, file=sys.stderr, flush=True)
 
@@ -376,7 +365,9 @@ class ScanStore:
         self.memory = str(path) == ":memory:"
         self.path = None if self.memory else Path(path).expanduser()
         self.readonly = False
-        self.busy_wait = _busy_wait() if busy_wait is None else float(busy_wait)
+        self.busy_wait = wait_seconds(
+            "CYCLEWRIGHT_STORE_WAIT", DEFAULT_BUSY_WAIT, StoreError, busy_wait
+        )
         self.notice = notice or _stderr_notice
         self._conn = None
         if self.memory:
@@ -1078,27 +1069,7 @@ class ScanStore:
 
         def work():
             meta = dict(self._conn.execute("SELECT key, value FROM meta").fetchall())
-            scans = []
-            for sid, side, steps, K in self._conn.execute(
-                "SELECT id, side, max_steps, max_cycle_length FROM scans ORDER BY id"
-            ).fetchall():
-                n, starts, lo, hi = self._conn.execute(
-                    "SELECT count(*), coalesce(sum(hi - lo + 1), 0), min(lo), max(hi) FROM chunks"
-                    " WHERE scan_id = ? AND status = 'done'",
-                    (sid,),
-                ).fetchone()
-                scans.append(
-                    {
-                        "side": side,
-                        "max_steps": steps,
-                        "max_cycle_length": K,
-                        "chunks_done": n,
-                        "starts_done": starts,
-                        "lowest": lo,
-                        "highest": hi,
-                    }
-                )
-            return meta, scans
+            return meta, _scan_summaries(self._conn)
 
         meta, scans = self._retry(work, "read")
         return {
@@ -1157,6 +1128,31 @@ def _chunk_problem(lo: int, hi: int, counts, cycle_rows, unres) -> str | None:
     return None
 
 
+def _scan_summaries(conn: sqlite3.Connection) -> list[dict]:
+    """Per scan configuration: side, step cap, length bound, chunks and starts done, extent."""
+    scans = []
+    for sid, side, steps, K in conn.execute(
+        "SELECT id, side, max_steps, max_cycle_length FROM scans ORDER BY id"
+    ).fetchall():
+        n, starts, lo, hi = conn.execute(
+            "SELECT count(*), coalesce(sum(hi - lo + 1), 0), min(lo), max(hi) FROM chunks"
+            " WHERE scan_id = ? AND status = 'done'",
+            (sid,),
+        ).fetchone()
+        scans.append(
+            {
+                "side": side,
+                "max_steps": steps,
+                "max_cycle_length": K,
+                "chunks_done": n,
+                "starts_done": starts,
+                "lowest": lo,
+                "highest": hi,
+            }
+        )
+    return scans
+
+
 # --------------------------------------------------------------------------- stores on disk
 def store_info(path: str | os.PathLike) -> dict:
     """What a store file holds, read without writing and without knowing its map.
@@ -1192,27 +1188,7 @@ def store_info(path: str | os.PathLike) -> dict:
             info["formula"] = Map(d["divisor"], d["branches"]).formula()
         except Exception:
             info["formula"] = None
-        scans = []
-        for sid, side, steps, K in conn.execute(
-            "SELECT id, side, max_steps, max_cycle_length FROM scans ORDER BY id"
-        ).fetchall():
-            n, starts, lo, hi = conn.execute(
-                "SELECT count(*), coalesce(sum(hi - lo + 1), 0), min(lo), max(hi) FROM chunks"
-                " WHERE scan_id = ? AND status = 'done'",
-                (sid,),
-            ).fetchone()
-            scans.append(
-                {
-                    "side": side,
-                    "max_steps": steps,
-                    "max_cycle_length": K,
-                    "chunks_done": n,
-                    "starts_done": starts,
-                    "lowest": lo,
-                    "highest": hi,
-                }
-            )
-        info["scans"] = scans
+        info["scans"] = _scan_summaries(conn)
         running = conn.execute("SELECT count(*) FROM runs WHERE status = 'running'").fetchone()[0]
         info["runs_marked_running"] = running
         if info["schema_version"] != SCHEMA_VERSION:
