@@ -1,6 +1,6 @@
 """``python -m cyclewright.cli`` runs the ``cyclewright`` command."""
 
-from cyclewright.cli.app import run
+from cyclewright.cli.console import run
 
 if __name__ == "__main__":
     run()

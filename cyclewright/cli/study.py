@@ -33,6 +33,7 @@ from pathlib import Path
 from cyclewright.cycles.files import atomic_write
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.cycles.presentation import Table as ResultTable
+from cyclewright.cycles.scan.result import StoreUse
 
 from .render import jsonable, short
 from .report import Figure, Report, Section, Table, slug
@@ -50,6 +51,14 @@ class StudyContext:
         self.workers = workers
         self.say = say
         self.names: set[str] = set()
+        #: per section title, what its scans read back from the stores and computed
+        self.store_use: dict = {}
+
+    def note_store_use(self, sec: Section, use: StoreUse) -> None:
+        """Say in the section (and in ``study.json``) how much came from the stores."""
+        self.store_use[sec.title] = use
+        line = use.line()
+        sec.paragraphs.append(f"{line[0].upper()}{line[1:]}.")
 
     def name(self, *parts: str) -> str:
         """A unique file stem for a table or plot."""
@@ -152,7 +161,7 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
 
     p = spec.params
     sec = Section(f"Integer cycles by scan ({p['from']}..{p['to']}, {p['side']})")
-    counts, cyc = [], []
+    counts, cyc, uses = [], [], []
     for m in spec.maps:
         ctx.say(f"scan {m.label} to {p['to']}")
         r = scan(
@@ -164,11 +173,13 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             store=ctx.stores,
             workers=ctx.workers,
         )
+        uses.append(r.store_use)
         t_counts, t_cycles = r.tables()
         counts.append(t_counts.with_column("map", m.label))
         cyc.append(t_cycles.with_column("map", m.label))
     for name, tables in (("scan-counts", counts), ("scan-cycles", cyc)):
         sec.tables.append(Table.of(ctx.name(name), ResultTable.stack(tables)))
+    ctx.note_store_use(sec, StoreUse.total(uses))
     return sec
 
 
@@ -187,9 +198,10 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             p["family"], ks, K, side=p["side"], store=ctx.stores, workers=ctx.workers
         )
         sec.tables.append(Table.of(ctx.name("census-family", p["family"]), fam.table()))
+        ctx.note_store_use(sec, fam.store_use)
         return sec
     sec = Section(f"Certified census up to length {K} ({p['side']})")
-    plans, cyc = [], []
+    plans, cyc, uses = [], [], []
     for m in spec.maps:
         ctx.say(f"census {m.label} to length {K}")
         try:
@@ -199,6 +211,7 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         except InputError as exc:  # no applicable method, a range beyond reach...: say why, go on
             sec.paragraphs.append(f"{m.label}: {exc}")
             continue
+        uses.append(c.store_use)
         cert = ctx.out / f"{ctx.name('certificate', m.label, str(K))}.json"
         write_certificate(c, cert, overwrite=True)
         t_plans, t_cycles = c.tables()
@@ -208,6 +221,7 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     for name, tables in (("census-methods", plans), ("census-cycles", cyc)):
         if tables:
             sec.tables.append(Table.of(ctx.name(name, str(K)), ResultTable.stack(tables)))
+    ctx.note_store_use(sec, StoreUse.total(uses))
     return sec
 
 
@@ -251,6 +265,7 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         progress=lambda event: ctx.say(str(event)),
     )
     sec.tables.append(Table.of(ctx.name("compare"), cmp.table()))
+    ctx.note_store_use(sec, cmp.store_use)
     for prof in cmp.profiles:
         if prof.predictions is not None:
             t = prof.predictions.table()
@@ -559,6 +574,11 @@ def run_study(
     doc = dict(params)
     doc["versions"] = _versions()
     doc["status"] = "complete"
+    # what came from the stores (DIR/stores) and what this run computed, per section
+    doc["store_use"] = {
+        "sections": {t: u.to_dict() for t, u in ctx.store_use.items()},
+        "total": StoreUse.total(ctx.store_use.values()).to_dict(),
+    }
     # what the study wrote, with hashes: a re-run refuses to overwrite a file changed since
     doc["files"] = {p.relative_to(out_dir).as_posix(): _sha256(p) for p in _result_files(out_dir)}
     _write_json(sj, doc)
@@ -568,4 +588,6 @@ def run_study(
         "html": str(out_dir / "report.html"),
         "files": len(written),
         "sections": len(report.sections),
+        "store_use": StoreUse.total(ctx.store_use.values()).to_dict(),
+        "store_use_line": StoreUse.total(ctx.store_use.values()).line(),
     }

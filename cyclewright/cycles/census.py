@@ -69,6 +69,7 @@ from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .largest_bound import largest_bound_up_to
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
+from .scan.result import StoreUse
 from .scan.run import scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
 from .wordsearch import DegenerateMap, integral_cycles_by_itinerary
@@ -182,6 +183,8 @@ class Census(Presentable):
     cross_checked: bool
     seconds: float = field(compare=False, default=0.0)
     store_path: str | None = field(compare=False, default=None)
+    #: what the scans of this census read back from the store and computed
+    store_use: StoreUse = field(compare=False, default_factory=StoreUse)
 
     @property
     def minima(self) -> tuple[int, ...]:
@@ -271,6 +274,7 @@ class Census(Presentable):
             "statement": self.statement(),
             "labels": {"cycles": CERTIFIED.value, "count": CERTIFIED.value, "bound": PROVED.value},
             "seconds": round(self.seconds, 3),
+            "store_use": self.store_use.to_dict(),
         }
 
     def __repr__(self) -> str:
@@ -692,6 +696,7 @@ def census(
 
     found: dict[int, IntegerCycle] = {}
     store_path = None
+    use = StoreUse()
     for i, (s, p) in enumerate(plans.items()):
         report(progress, "census", i, len(plans), "sides", f"{s} side: {p.method}")
         if p.method != "bound-scan" or not p.scan_to:
@@ -709,6 +714,7 @@ def census(
             chunk_size=chunk_size,
         )
         store_path = r.store_path
+        use = use + r.store_use
         for c in r.cycles:
             if c.length <= K:
                 found[c.minimum] = c
@@ -760,6 +766,7 @@ def census(
         cross_checked,
         time.perf_counter() - t0,
         store_path,
+        use,
     )
 
 
@@ -911,6 +918,11 @@ class FamilyCensus(Presentable):
             )
         return out
 
+    @property
+    def store_use(self) -> StoreUse:
+        """What the members' scans read back from their stores and computed."""
+        return StoreUse.total(c.store_use for c in self.rows)
+
     def to_dict(self) -> dict:
         return {
             "family": self.template,
@@ -918,6 +930,7 @@ class FamilyCensus(Presentable):
             "side": self.side,
             "rows": self.records(),
             "labels": {"primitive_minima": CERTIFIED.value, "primitive_count": CERTIFIED.value},
+            "store_use": self.store_use.to_dict(),
         }
 
 

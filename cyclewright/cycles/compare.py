@@ -51,6 +51,7 @@ from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
+from .scan.result import StoreUse
 from .sweep import critical_lengths, rho, rho_exact, sweep
 
 __all__ = [
@@ -543,7 +544,14 @@ class MapProfile:
             if self.critical_count is not None
             else None,
             "predictions": self.predictions.to_dict() if self.predictions else None,
+            "store_use": self.store_use.to_dict(),
         }
+
+    @property
+    def store_use(self) -> StoreUse:
+        """What the census and the scans of this map read back from the store and computed."""
+        own = self.extras.get("store_use", StoreUse())
+        return own + self.census.store_use if self.census is not None else own
 
 
 @dataclass(frozen=True)
@@ -595,12 +603,18 @@ class Comparison(Presentable):
                 continue
         return out
 
+    @property
+    def store_use(self) -> StoreUse:
+        """What every census and scan of the comparison read back from the stores and computed."""
+        return StoreUse.total(p.store_use for p in self.profiles)
+
     def to_dict(self) -> dict:
         return {
             "max_length": self.max_length,
             "to": self.to,
             "odd": self.odd,
             "maps": [p.to_dict() for p in self.profiles],
+            "store_use": self.store_use.to_dict(),
         }
 
     def __repr__(self) -> str:
@@ -682,6 +696,7 @@ def compare(
         exc_ = {}
         met = {}
         scan_counts = {}
+        use = StoreUse()
         floors, fnotes = {}, {}
         for side in ("positive", "negative"):
             try:
@@ -690,6 +705,7 @@ def compare(
                 fnotes[side] = str(e)
                 continue
             sr = scan(m, to, side=side, max_steps=max_steps, store=store, workers=workers)
+            use = use + sr.store_use
             met[side] = list(sr.minima.get(side, ()))
             scan_counts[side] = {k: int(v) for k, v in sr.counts[side].items()}
             unresolved = sr.unresolved_count.get(side, 0)
@@ -733,7 +749,7 @@ def compare(
                 tc,
                 tnote,
                 preds,
-                {"met": met, "scan_counts": scan_counts, "records": recs},
+                {"met": met, "scan_counts": scan_counts, "records": recs, "store_use": use},
             )
         )
     report(progress, "compare", len(maps_), len(maps_), "maps")

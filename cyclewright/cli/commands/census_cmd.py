@@ -178,6 +178,7 @@ def census_cmd(
             con.print(f"  {s}: itinerary method ({p.reason})")
     con.print(show_table(c.table()))
     con.print(c.statement())
+    con.print(c.store_use.line(), highlight=False)
     if cert_path:
         con.print(f"certificate written to {cert_path}")
 
@@ -227,7 +228,9 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
     if as_json:
         emit_json(fam.to_dict())
         return
-    stdout_console().print(show_table(fam.table()))
+    con = stdout_console()
+    con.print(show_table(fam.table()))
+    con.print(fam.store_use.line(), highlight=False)
 
 
 COMMANDS = [census_cmd]

@@ -207,6 +207,7 @@ def compare_cmd(
             "* rho assumes every itinerary is realized; a multiplier of this map shares a factor "
             "with d, so some itineraries never occur and rho over-counts them."
         )
+    con.print(cmp.store_use.line(), highlight=False)
     con.print(HEURISTIC_CAUTION)
 
 

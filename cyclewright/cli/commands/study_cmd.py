@@ -48,6 +48,7 @@ def study_cmd(path, out, workers, force, as_json):
         f"study '{study.title}': {summary['sections']} sections, {summary['files']} data files"
     )
     con.print(f"report: {summary['report']}  (HTML: {summary['html']})")
+    con.print(summary["store_use_line"], highlight=False)
 
 
 COMMANDS = [study_cmd]

@@ -68,13 +68,14 @@ from .chunks import (
     plan_chunks,
     run_chunk,
 )
-from .result import ScanResult
+from .result import ScanResult, StoreUse
 from .run import scan
 from .store import ScanStore, default_store_path
 
 __all__ = [
     "scan",
     "ScanResult",
+    "StoreUse",
     "IntegerCycle",
     "ScanStore",
     "default_store_path",

@@ -1,4 +1,13 @@
-"""What a scan returns."""
+"""What a scan returns.
+
+Inside
+------
+- :class:`ScanResult` -- the classification of a range, its cycles, the
+  unresolved starts and how the run went.
+- :class:`StoreUse` -- how much of a result was read from a results store
+  and how much was computed by the run; added up over the scans of a census,
+  a family census, a comparison or a study, and said in every output.
+"""
 
 from __future__ import annotations
 
@@ -21,7 +30,84 @@ _COLUMN = {
 
 __all__ = [
     "ScanResult",
+    "StoreUse",
 ]
+
+
+@dataclass(frozen=True)
+class StoreUse:
+    """Chunks and starts read back from a results store versus computed by this run.
+
+    ``stored`` says whether a store was kept at all (``store=False`` keeps
+    none, so nothing can be reused). Instances add up with ``+``.
+
+    Examples
+    --------
+    >>> a = StoreUse(3, 1, 300, 100, stored=True)
+    >>> (a + StoreUse()).line()
+    'stored results: 3 of 4 chunks reused from the store (300 starts), 1 computed in this run (100 starts)'
+    >>> StoreUse().line()
+    'stored results: none used (nothing was scanned)'
+    """
+
+    chunks_reused: int = 0
+    chunks_computed: int = 0
+    starts_reused: int = 0
+    starts_computed: int = 0
+    stored: bool = False
+
+    def __add__(self, other: StoreUse) -> StoreUse:
+        if not isinstance(other, StoreUse):
+            return NotImplemented
+        return StoreUse(
+            self.chunks_reused + other.chunks_reused,
+            self.chunks_computed + other.chunks_computed,
+            self.starts_reused + other.starts_reused,
+            self.starts_computed + other.starts_computed,
+            self.stored or other.stored,
+        )
+
+    @classmethod
+    def total(cls, uses) -> StoreUse:
+        """The sum of several (an empty sum is nothing scanned)."""
+        out = cls()
+        for u in uses:
+            out = out + u
+        return out
+
+    @property
+    def chunks(self) -> int:
+        return self.chunks_reused + self.chunks_computed
+
+    @property
+    def reused(self) -> bool:
+        """Whether any stored result was reused."""
+        return self.chunks_reused > 0
+
+    def line(self) -> str:
+        """One line for a terminal or a report."""
+        if not self.chunks:
+            return "stored results: none used (nothing was scanned)"
+        if not self.stored:
+            return (
+                f"stored results: none (no store kept); {self.chunks:,} chunks "
+                f"({self.starts_computed:,} starts) computed in this run"
+            )
+        return (
+            f"stored results: {self.chunks_reused:,} of {self.chunks:,} chunks reused from the "
+            f"store ({self.starts_reused:,} starts), {self.chunks_computed:,} computed in this "
+            f"run ({self.starts_computed:,} starts)"
+        )
+
+    def to_dict(self) -> dict:
+        return {
+            "stored": self.stored,
+            "reused": self.reused,
+            "chunks_reused": self.chunks_reused,
+            "chunks_computed": self.chunks_computed,
+            "starts_reused": self.starts_reused,
+            "starts_computed": self.starts_computed,
+        }
 
 
 # --------------------------------------------------------------------------- results
@@ -116,6 +202,18 @@ class ScanResult(Presentable):
     def starts_per_side(self) -> int:
         return self.to - self.start + 1
 
+    @property
+    def store_use(self) -> StoreUse:
+        """What this scan read back from its store and what it computed."""
+        starts = self.starts_per_side * len(self.sides)
+        return StoreUse(
+            chunks_reused=self.chunks_reused,
+            chunks_computed=self.chunks_total - self.chunks_reused,
+            starts_reused=starts - self.computed,
+            starts_computed=self.computed,
+            stored=self.store_path is not None,
+        )
+
     def method(self) -> str:
         cap = (
             f"cycle length <= {self.max_cycle_length}"
@@ -204,6 +302,7 @@ class ScanResult(Presentable):
                 "reused": self.chunks_reused,
                 "computed": self.chunks_total - self.chunks_reused,
             },
+            "store_use": self.store_use.to_dict(),
             "run": {
                 "seconds": self.seconds,
                 "computed_starts": self.computed,
