@@ -252,3 +252,56 @@ def test_losing_the_scheduler_is_one_line_and_nothing_finished_is_lost(tmp_path)
     assert kept >= 1
     again = scan("3x+1", 40000, chunk_size=1000, store=store, workers=1)
     assert again.chunks_reused >= kept and again.counts["positive"]["drops"] == 39999
+
+
+@pytest.mark.slow
+def test_an_interrupt_in_the_first_milliseconds_ends_with_one_line(tmp_path):
+    # The entry point (cyclewright.cli.console) handles stop signals from its
+    # first line, before click, numpy or numba are imported: a Ctrl-C at any
+    # moment from then on ends the command with one line, never a traceback.
+    # The signal is sent only once the process catches SIGTERM (its handlers
+    # are in place), so the test does not depend on the machine's speed;
+    # what comes before that is the interpreter's own start-up.
+    env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba"))
+    script = Path(sys.executable).parent / "cyclewright"
+    entries = [[sys.executable, "-m", "cyclewright"]] + ([[str(script)]] if script.exists() else [])
+    for entry in entries:
+        for delay in (0.0, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2):
+            proc = subprocess.Popen(
+                [*entry, "scan", "3x+1", "--to", "10^15", "--no-store", "--workers", "1"],
+                stdout=subprocess.PIPE,
+                stderr=subprocess.PIPE,
+                text=True,
+                env=env,
+                start_new_session=True,
+            )
+            deadline = time.monotonic() + 120
+            while not _handlers_installed(proc.pid) and proc.poll() is None:
+                assert time.monotonic() < deadline
+                time.sleep(0.0005)
+            time.sleep(delay)
+            os.killpg(proc.pid, signal.SIGINT)  # Ctrl-C reaches the whole process group
+            out, err = proc.communicate(timeout=300)
+            assert "Traceback" not in err, (entry, delay, err)
+            assert proc.returncode == 130, (entry, delay, proc.returncode, err)
+            lines = [x for x in err.splitlines() if not x.startswith("progress:")]
+            assert lines == ["error: interrupted"], (entry, delay, err)
+            assert out == ""
+
+
+def test_the_entry_point_handles_signals_before_any_heavy_import():
+    # what importing the entry point loads before its handlers go in: the
+    # package shells and the standard library's signal module, nothing else
+    probe = (
+        "import sys; before = set(sys.modules); import cyclewright.cli.console; "
+        "print(' '.join(sorted(set(sys.modules) - before)))"
+    )
+    got = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, check=True)
+    loaded = set(got.stdout.split())
+    assert loaded <= {"cyclewright", "cyclewright.cli", "cyclewright.cli.console", "signal"}
+    # the console script and python -m both start there
+    assert (
+        "cyclewright.cli.console:run" in (Path(__file__).parents[1] / "pyproject.toml").read_text()
+    )
+    main_py = Path(__file__).parents[1] / "cyclewright" / "__main__.py"
+    assert "from cyclewright.cli.console import run" in main_py.read_text()
