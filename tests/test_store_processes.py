@@ -305,3 +305,40 @@ def test_the_entry_point_handles_signals_before_any_heavy_import():
     )
     main_py = Path(__file__).parents[1] / "cyclewright" / "__main__.py"
     assert "from cyclewright.cli.console import run" in main_py.read_text()
+
+
+def test_the_parent_watch_sees_the_lifeline_close():
+    # the fallback of every platform without PR_SET_PDEATHSIG: end of file
+    # on the lifeline pipe (or getppid changing) is the parent's end
+    from cyclewright.cycles.scan import executors
+
+    r, w = os.pipe()
+    try:
+        assert not executors._parent_gone(os.getppid(), r, 0.01)  # write end still open
+        os.close(w)
+        w = None
+        assert executors._parent_gone(os.getppid(), r, 60.0)  # at once, not after 60 s
+        assert executors._parent_gone(os.getppid() + 1, None, 0.0)  # adopted: gone too
+    finally:
+        os.close(r)
+        if w is not None:
+            os.close(w)
+
+
+@pytest.mark.slow
+def test_without_pdeathsig_the_watch_thread_ends_the_workers(tmp_path):
+    # CYCLEWRIGHT_PDEATHSIG=0 leaves out the Linux kernel's mechanism: the
+    # workers must still end after kill -9 of their command (watch thread)
+    env = dict(os.environ, CYCLEWRIGHT_PDEATHSIG="0")
+    for steps in (3000, 12000, 48000):
+        store = tmp_path / f"s{steps}.sqlite"
+        proc = _scan(store, steps, env=env)
+        workers = _midway(proc, store, 1)
+        if workers is None:
+            proc.communicate(timeout=600)
+            continue  # finished too soon: a heavier scan
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.communicate(timeout=300)  # the pipe the workers shared closes
+        assert _gone(workers), "a worker outlived kill -9 of its command"
+        return
+    pytest.fail("the scan always finished before it could be killed")

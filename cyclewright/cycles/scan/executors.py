@@ -14,12 +14,25 @@ Both expose ``map_unordered(fn, tasks)``: the results as they complete, with
 a bounded number of tasks in flight (memory does not grow with the number of
 tasks), and ``close()``. The functions and tasks must be picklable; the scan
 sends small tuples and gets back plain data.
+
+Workers and their parent
+------------------------
+Local workers ignore stop signals (the parent answers them and ends the
+pool) and never outlive the parent. On Linux the kernel kills a worker the
+moment its parent ends (``PR_SET_PDEATHSIG``). Everywhere, and on Linux as
+a second line, a watch thread in each worker ends it within
+:data:`PARENT_POLL` seconds (0.25 s): it waits on the read end of a pipe
+whose only write end the parent holds, so the parent's end -- kill -9
+included -- shows at once as end of file, and it also checks that
+``getppid`` has not changed. ``CYCLEWRIGHT_PDEATHSIG=0`` leaves the Linux
+kernel mechanism out, so that tests exercise the watch thread alone.
 """
 
 from __future__ import annotations
 
 import multiprocessing
 import os
+import select
 import signal
 import socket
 import sys
@@ -41,6 +54,7 @@ __all__ = [
     "DEFAULT_DASK_TIMEOUT",
     "DEFAULT_WORKER_WAIT",
     "ClusterError",
+    "PARENT_POLL",
 ]
 
 
@@ -55,20 +69,61 @@ def _restore_signals(old) -> None:
         signal.pthread_sigmask(signal.SIG_SETMASK, old)
 
 
-def _parent_watch(parent: int) -> None:
-    while True:
-        time.sleep(0.5)
-        if os.getppid() != parent:
-            os._exit(1)
+#: Seconds between two looks of a worker's watch thread at its parent (the
+#: bound on how long a worker outlives its parent where the kernel does not
+#: end it at once: any platform but Linux, or ``CYCLEWRIGHT_PDEATHSIG=0``).
+PARENT_POLL = 0.25
 
 
-def _worker_setup(parent: int) -> None:
-    """In each worker: leave stop signals to the parent, and end when the parent is gone."""
+def _pdeathsig_wanted() -> bool:
+    """Linux, unless ``CYCLEWRIGHT_PDEATHSIG=0`` (which leaves the watch thread alone, for tests)."""
+    return sys.platform.startswith("linux") and os.environ.get("CYCLEWRIGHT_PDEATHSIG") != "0"
+
+
+def _parent_gone(parent: int, lifeline: int | None, timeout: float) -> bool:
+    """Wait up to ``timeout`` s; True once the parent has ended.
+
+    The parent holds the write end of the ``lifeline`` pipe: when it ends,
+    for whatever reason (kill -9 included), the read end sees end of file at
+    once. ``getppid`` changing (the worker was adopted) is the second sign.
+    """
+    if lifeline is not None:
+        try:
+            ready, _, _ = select.select([lifeline], [], [], timeout)
+            if ready and os.read(lifeline, 1) == b"":
+                return True
+        except (OSError, ValueError):  # no select on pipes here: poll alone
+            lifeline = None
+    if lifeline is None:
+        time.sleep(timeout)
+    return os.getppid() != parent
+
+
+def _parent_watch(parent: int, lifeline: int | None) -> None:
+    """End this worker within :data:`PARENT_POLL` seconds of its parent's end.
+
+    The thread spends its time in ``select``/``sleep`` without the GIL and
+    the scan's kernels run without it too (``nogil``), so it is not held up
+    by the chunk being computed.
+    """
+    while not _parent_gone(parent, lifeline, PARENT_POLL):
+        pass
+    os._exit(1)
+
+
+def _worker_setup(parent: int, lifeline: tuple[int, int] | None = None) -> None:
+    """In each worker: leave stop signals to the parent, and end when the parent is gone.
+
+    On Linux the kernel ends the worker the moment its parent ends
+    (``PR_SET_PDEATHSIG``); everywhere a watch thread also ends it within
+    :data:`PARENT_POLL` seconds, woken by the end of file of the parent's
+    ``lifeline`` pipe (or by ``getppid`` changing).
+    """
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     for name in ("SIGTERM", "SIGHUP"):
         if hasattr(signal, name):
             signal.signal(getattr(signal, name), signal.SIG_DFL)
-    if sys.platform.startswith("linux"):
+    if _pdeathsig_wanted():
         try:  # the kernel ends this worker the moment its parent ends
             import ctypes
 
@@ -76,9 +131,16 @@ def _worker_setup(parent: int) -> None:
             libc.prctl(1, signal.SIGKILL, 0, 0, 0)  # PR_SET_PDEATHSIG
         except Exception:  # pragma: no cover - the watch thread below still works
             pass
+    read_end = None
+    if lifeline is not None:
+        read_end, write_end = lifeline
+        try:
+            os.close(write_end)  # only the parent may hold it open
+        except OSError:  # pragma: no cover - not inherited (spawned worker)
+            read_end = None
     if os.getppid() != parent:  # the parent ended before this worker was set up
         os._exit(1)
-    threading.Thread(target=_parent_watch, args=(parent,), daemon=True).start()
+    threading.Thread(target=_parent_watch, args=(parent, read_end), daemon=True).start()
     _restore_signals(set())  # unblock what the parent blocked while starting the pool
 
 
@@ -172,6 +234,8 @@ class LocalExecutor:
         # parent alone answers an interrupt, and ends the workers).
         pool = None
         finished = False
+        # the lifeline: forked workers inherit both ends and keep the read end
+        lifeline = os.pipe() if ctx.get_start_method() == "fork" else None
         old = _block_stop_signals()
         try:
             try:
@@ -179,7 +243,7 @@ class LocalExecutor:
                     max_workers=n,
                     mp_context=ctx,
                     initializer=_worker_setup,
-                    initargs=(os.getpid(),),
+                    initargs=(os.getpid(), lifeline),
                 )
                 pending = {pool.submit(fn, t) for t in head}
             finally:
@@ -199,6 +263,11 @@ class LocalExecutor:
                     pool.shutdown(wait=True)
                 else:
                     _stop_pool(pool)
+            for fd in lifeline or ():
+                try:
+                    os.close(fd)
+                except OSError:  # pragma: no cover
+                    pass
 
     def close(self) -> None:
         pass
