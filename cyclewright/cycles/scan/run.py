@@ -5,7 +5,6 @@ See :mod:`cyclewright.cycles.scan` for what the classes of starts mean.
 
 from __future__ import annotations
 
-import json
 import time
 from collections.abc import Callable
 from pathlib import Path
@@ -15,7 +14,7 @@ import numpy as np
 from cyclewright.maps import Map, as_map
 
 from ..errors import InputError, StoreError
-from ..integer_cycle import IntegerCycle, verified_cycle
+from ..integer_cycle import IntegerCycle
 from ..limits import DEFAULT_MAX_STEPS
 from ..progress import ProgressCallback, report
 from ..sides import DEFAULT_SIDE, SIDES, Side, sides_of
@@ -30,7 +29,14 @@ from .chunks import (
     run_chunk,
 )
 from .result import ScanResult
-from .store import MAX_START, ScanStore, _stderr_notice, default_store_path
+from .store import (
+    MAX_START,
+    ScanStore,
+    _stderr_notice,
+    adopt_legacy_store,
+    default_store_path,
+    prove_cycle_rows,
+)
 
 _CLAIM_GROUP = 16  # chunks claimed per store transaction
 _CLAIM_POLL = 0.5  # seconds between looks at chunks another run is computing
@@ -62,6 +68,7 @@ def _open_store(store, m: Map, notice=None) -> tuple[ScanStore, bool]:
     if store is False:
         return ScanStore(":memory:", m), True
     if store is None:
+        adopt_legacy_store(m)
         return ScanStore(default_store_path(m), m, create_dirs=True, notice=notice), True
     if isinstance(store, (str, Path)):
         if Path(store).is_dir():  # a directory of stores, one per map definition
@@ -250,30 +257,13 @@ def _detail(side: str, unresolved: int) -> str:
     return f"{side} side, {unresolved:,} unresolved"
 
 
-def _prove_cycles(m: Map, side: str, rows) -> str | None:
-    """Re-prove stored cycle rows exactly; why one is wrong, or None."""
-    for minimum, length, text in rows:
-        try:
-            rec = json.loads(text.decode("utf-8"))
-            if (side == "positive") != (minimum > 0) or rec.get("minimum") != minimum:
-                return f"stored cycle {minimum} is on the wrong side or mislabelled"
-            if rec.get("length") != length or length < 1:
-                return f"stored cycle {minimum} has a wrong length"
-            fresh = verified_cycle(m, side, abs(minimum), length).to_record()
-        except (ValueError, TypeError, AttributeError, RuntimeError, ArithmeticError):
-            return f"stored cycle {minimum} does not re-prove"
-        if json.loads(json.dumps(fresh, sort_keys=True)) != rec:
-            return f"stored cycle {minimum} differs from its exact re-proof"
-    return None
-
-
 def _check_batch(m, led, sid, side, batch, recompute, notice) -> dict:
     """The good finished chunks of ``batch``; damaged ones are marked (or refused)."""
     chk = led.check(sid, batch)
     damaged = list(chk.damaged)
     good = dict(chk.good)
     for key, rows in chk.cycles.items():
-        why = _prove_cycles(m, side, rows)
+        why = prove_cycle_rows(m, side, rows)
         if why is not None:
             damaged.append((key[0], key[1], why))
             good.pop(key, None)

@@ -11,6 +11,8 @@ Inside
 - :func:`default_store_path` -- where a map's store lives by default: keyed
   on the map's canonical definition (``$CYCLEWRIGHT_DATA_DIR``, else the
   platform's user data directory), so every name of the same map shares it.
+- :func:`adopt_legacy_store` -- a version-1 default store takes the
+  version-2 name (and is migrated when opened).
 - :func:`store_info`, :func:`list_stores`, :func:`remove_store` -- the
   stores on this machine (map, ranges, size, age), and removing one that no
   process is using.
@@ -112,6 +114,8 @@ __all__ = [
     "store_info",
     "list_stores",
     "remove_store",
+    "prove_cycle_rows",
+    "adopt_legacy_store",
 ]
 
 #: Layout version of the file; a store of another version is refused.
@@ -215,6 +219,26 @@ def _expected_layout() -> list:
     return _LAYOUT
 
 
+def _layout_v1() -> list:
+    """The ``sqlite_master`` rows of a schema-1 store: schema 2 without the run's process
+    and sign of life, the chunk checksums and the claims."""
+    sql = (
+        _SCHEMA.replace("    pid INTEGER NOT NULL,\n    host TEXT NOT NULL,\n", "")
+        .replace("    heartbeat REAL NOT NULL,\n", "")
+        .replace("    checksum TEXT NOT NULL,\n", "")
+    )
+    sql = sql[: sql.index("CREATE TABLE claims")]
+    conn = sqlite3.connect(":memory:")
+    conn.executescript(sql)
+    rows = sorted(conn.execute("SELECT type, name, tbl_name, sql FROM sqlite_master").fetchall())
+    conn.close()
+    return rows
+
+
+class _SchemaOne(Exception):
+    """The file is a store of schema version 1 (to be migrated)."""
+
+
 class StoreBusy(StoreError):
     """Another process held the store longer than the caller was willing to wait."""
 
@@ -265,6 +289,34 @@ def default_store_path(m: Map | str) -> Path:
     """
     m = as_map(m)
     return data_dir() / "scans" / f"{m.key[:16]}.sqlite"
+
+
+def adopt_legacy_store(m: Map | str) -> Path | None:
+    """Give a version-1 default store of ``m`` the version-2 default name, if there is none yet.
+
+    Version 1 named default stores ``<label>-<key prefix>.sqlite`` (one per
+    name of the map); version 2 names them by the key alone. When the new
+    name is free, the first such file is linked to it (then unlinked), so
+    the next opening migrates it instead of starting afresh. Returns the
+    file adopted, or None.
+    """
+    m = as_map(m)
+    target = default_store_path(m)
+    if target.exists() or not target.parent.is_dir():
+        return None
+    for old in sorted(target.parent.glob(f"*-{m.key[:12]}.sqlite")):
+        try:
+            os.link(old, target)
+        except FileExistsError:
+            return None  # another process adopted one first
+        except OSError:
+            continue
+        try:
+            old.unlink()
+        except OSError:  # pragma: no cover - left beside it, listed by `stores list`
+            pass
+        return old
+    return None
 
 
 def _stderr_notice(text: str) -> None:
@@ -384,7 +436,7 @@ class ScanStore:
             self._tidy()
 
     # ----------------------------------------------------------------- opening
-    def _open_existing(self, p: Path) -> sqlite3.Connection:
+    def _open_existing(self, p: Path, migrated: bool = False) -> sqlite3.Connection:
         if not p.is_file():
             raise StoreError(f"store {p} is not a regular file")
         if not os.access(p, os.R_OK):
@@ -410,6 +462,17 @@ class ScanStore:
         conn.text_factory = lambda b: b.decode("utf-8", "replace")
         try:
             self._retry(lambda: self._validate(conn, p), "open")
+        except _SchemaOne:
+            conn.close()
+            if migrated:  # pragma: no cover - a second version-1 file put in its place
+                raise StoreError(f"store {p} changed while it was migrated; try again") from None
+            if self.readonly:
+                raise StoreError(
+                    f"store {p} has schema version 1 and is not writable, so it cannot be "
+                    f"migrated to version {SCHEMA_VERSION}; nothing was changed"
+                ) from None
+            self._migrate_v1(p)
+            return self._open_existing(p, migrated=True)
         except BaseException:
             conn.close()
             raise
@@ -428,12 +491,18 @@ class ScanStore:
             raise StoreError(
                 f"{p} is an SQLite database but not a cyclewright scan store; nothing was changed"
             )
+        if version == 1:
+            raise _SchemaOne()
         if version != SCHEMA_VERSION:
             raise StoreError(
                 f"store {p} has schema version {version}; this cyclewright reads version "
                 f"{SCHEMA_VERSION} (incompatible version, nothing was changed; remove it with "
                 "`cyclewright stores remove` to start afresh)"
             )
+        self._check_file(conn, p, _expected_layout(), SCHEMA_VERSION)
+
+    def _check_file(self, conn: sqlite3.Connection, p: Path, layout: list, version: int) -> None:
+        """Integrity check, table layout, semantics and map of a store file (any version)."""
         try:
             full = p.stat().st_size <= _FULL_CHECK_BYTES
             check = conn.execute("PRAGMA integrity_check" if full else "PRAGMA quick_check")
@@ -452,20 +521,15 @@ class ScanStore:
             )
         try:
             meta = dict(conn.execute("SELECT key, value FROM meta").fetchall())
-        except (sqlite3.DatabaseError, ValueError) as exc:
+            found = conn.execute("SELECT type, name, tbl_name, sql FROM sqlite_master").fetchall()
+        except (sqlite3.DatabaseError, UnicodeError, ValueError) as exc:
             if isinstance(exc, sqlite3.Error) and _kind(exc) == "busy":
                 raise
             raise StoreError(f"store {p} is corrupt ({exc}); nothing was changed") from None
-        try:
-            layout = conn.execute("SELECT type, name, tbl_name, sql FROM sqlite_master").fetchall()
-        except (sqlite3.DatabaseError, UnicodeError) as exc:
-            if isinstance(exc, sqlite3.Error) and _kind(exc) == "busy":
-                raise
-            raise StoreError(f"store {p} is corrupt ({exc}); nothing was changed") from None
-        if sorted(layout) != _expected_layout():
+        if sorted(found) != layout:
             raise StoreError(
                 f"store {p} is corrupt (its table layout is not the one of schema version "
-                f"{SCHEMA_VERSION}); nothing was changed"
+                f"{version}); nothing was changed"
             )
         if meta.get("semantics") != str(SEMANTICS):
             raise StoreError(
@@ -483,6 +547,107 @@ class ScanStore:
                 f"store {p} holds scans of {theirs}, not of {self.map.label} = "
                 f"{self.map.formula()} (the map definition differs); use another --store"
             )
+
+    # ----------------------------------------------------------------- version 1
+    def _migrate_v1(self, p: Path) -> None:
+        """Rewrite a schema-1 store as schema 2, keeping only the chunks that pass every check.
+
+        Each finished chunk must have counts that are non-negative and add up
+        to its range, as many cycle rows as counted cycles, unresolved starts
+        inside the chunk matching the counts, a sieve count within the range;
+        and every stored cycle must equal its exact re-proof. Such a chunk is
+        written into the new file with its checksum; any other is left out,
+        so the next scan recomputes it. The file is replaced in one rename
+        while the old one is locked against writers, so concurrent processes
+        migrate it once.
+        """
+        ino = p.stat().st_ino
+        old = sqlite3.connect(p.resolve().as_uri() + "?mode=rw", uri=True, timeout=_BUSY_SLICE)
+        old.text_factory = lambda b: b.decode("utf-8", "replace")
+        tmp = p.parent / f".{p.name}.{os.getpid()}.tmp"
+        try:
+            self._retry(lambda: old.execute("BEGIN IMMEDIATE"), "migrate")
+            try:
+                st = p.stat()
+            except FileNotFoundError:  # pragma: no cover - removed meanwhile
+                return
+            if st.st_ino != ino:
+                return  # another process migrated it while we waited
+            self._check_file(old, p, _layout_v1(), 1)
+            tmp.unlink(missing_ok=True)  # a leftover of a process with the same id
+            kept, left = self._copy_v1(old, tmp)
+            os.chmod(tmp, st.st_mode & 0o7777)
+            os.replace(tmp, p)
+        except (OSError, sqlite3.Error) as exc:
+            if isinstance(exc, sqlite3.Error):
+                raise self._as_store_error(exc) from None
+            raise StoreError(
+                f"store {p} has schema version 1 and could not be migrated "
+                f"({exc.strerror or exc}); nothing was changed"
+            ) from None
+        finally:
+            try:
+                old.rollback()
+            finally:
+                old.close()
+            for f in (tmp, tmp.with_name(tmp.name + "-journal")):
+                try:
+                    f.unlink()
+                except OSError:
+                    pass
+        self.notice(
+            f"store {p} had schema version 1: migrated to version {SCHEMA_VERSION}; "
+            f"{kept} chunk{'s' if kept != 1 else ''} passed the checks (counts add up, cycles "
+            f"re-proved exactly) and were kept with checksums"
+            + (f", {left} failed a check and will be recomputed" if left else "")
+            + "; the run history of version 1 was not carried over"
+        )
+
+    def _copy_v1(self, old: sqlite3.Connection, tmp: Path) -> tuple[int, int]:
+        """Copy the checked chunks of a schema-1 connection into a new store at ``tmp``."""
+        new = ScanStore(tmp, self.map, busy_wait=self.busy_wait, notice=self.notice)
+        kept = left = 0
+        try:
+            scans = old.execute(
+                "SELECT id, side, max_steps, max_cycle_length FROM scans ORDER BY id"
+            ).fetchall()
+            for sid, side, steps, K in scans:
+                nsid = new.scan_id(side, int(steps), None if K is None else int(K))
+                rows = old.execute(
+                    "SELECT lo, hi, drops, cycles, other_cycle, unresolved, beyond_length, sieved,"
+                    " sieve_depth, seconds, code_version FROM chunks"
+                    " WHERE scan_id = ? AND status = 'done' ORDER BY lo, hi",
+                    (sid,),
+                ).fetchall()
+                for r in rows:
+                    lo, hi = r[0], r[1]
+                    if not _sane_chunk(r):
+                        left += 1
+                        continue
+                    cyc, unres = _chunk_rows(old, sid, lo, hi)
+                    why = _chunk_problem(lo, hi, r[2:7], cyc, unres)
+                    if why is None:
+                        why = prove_cycle_rows(self.map, side, cyc)
+                    if why is not None:
+                        left += 1
+                        continue
+                    new.record_chunk(
+                        nsid,
+                        lo,
+                        hi,
+                        dict(zip(_COUNT_KEYS, (int(x) for x in r[2:7]))),
+                        [json.loads(bytes(c[2]).decode("utf-8")) for c in cyc],
+                        np.frombuffer(unres[1], dtype="<i8"),
+                        np.frombuffer(unres[2], dtype=np.uint8),
+                        sieved=int(r[7]),
+                        sieve_depth=int(r[8]),
+                        seconds=float(r[9]),
+                        version=f"{r[10]}; migrated from schema 1 by {code_version()}",
+                    )
+                    kept += 1
+        finally:
+            new.close()
+        return kept, left
 
     def _create_new(self, p: Path, create_dirs: bool) -> sqlite3.Connection:
         parent = p.parent
@@ -846,16 +1011,7 @@ class ScanStore:
         return h.hexdigest()
 
     def _chunk_parts(self, scan_id: int, lo: int, hi: int):
-        cyc = self._conn.execute(
-            "SELECT minimum, length, CAST(record AS BLOB) FROM cycles"
-            " WHERE scan_id = ? AND abs(minimum) BETWEEN ? AND ? ORDER BY minimum",
-            (scan_id, lo, hi),
-        ).fetchall()
-        unres = self._conn.execute(
-            "SELECT count, starts, escaped FROM unresolved WHERE scan_id = ? AND lo = ? AND hi = ?",
-            (scan_id, lo, hi),
-        ).fetchone()
-        return cyc, unres
+        return _chunk_rows(self._conn, scan_id, lo, hi)
 
     def check(self, scan_id: int, chunks) -> ChunkCheck:
         """Check the finished chunks among ``chunks`` against their checksums and counts.
@@ -1100,6 +1256,31 @@ class ScanStore:
         return f"ScanStore({where}, {self.map.label})"
 
 
+def _chunk_rows(conn: sqlite3.Connection, scan_id: int, lo: int, hi: int):
+    """A chunk's cycle rows ``(minimum, length, record bytes)`` and its unresolved row."""
+    cyc = conn.execute(
+        "SELECT minimum, length, CAST(record AS BLOB) FROM cycles"
+        " WHERE scan_id = ? AND abs(minimum) BETWEEN ? AND ? ORDER BY minimum",
+        (scan_id, lo, hi),
+    ).fetchall()
+    unres = conn.execute(
+        "SELECT count, starts, escaped FROM unresolved WHERE scan_id = ? AND lo = ? AND hi = ?",
+        (scan_id, lo, hi),
+    ).fetchone()
+    return cyc, unres
+
+
+def _sane_chunk(row) -> bool:
+    """A version-1 chunk row's range, sieve figures and time have sane types and values."""
+    lo, hi, *_, sieved, depth, seconds, version = row
+    ints = (lo, hi, *row[2:7], sieved, depth)
+    if not all(isinstance(x, int) and not isinstance(x, bool) for x in ints):
+        return False
+    if not (1 <= lo <= hi <= MAX_START) or not (0 <= sieved <= hi - lo + 1) or depth < 0:
+        return False
+    return isinstance(seconds, (int, float)) and isinstance(version, str)
+
+
 def _chunk_problem(lo: int, hi: int, counts, cycle_rows, unres) -> str | None:
     """Why a chunk's stored parts cannot be right, or None (checksums aside)."""
     try:
@@ -1125,6 +1306,29 @@ def _chunk_problem(lo: int, hi: int, counts, cycle_rows, unres) -> str | None:
         return "an unresolved start lies outside the chunk"
     if n_open and int(np.frombuffer(esc, dtype=np.uint8).max()) > 1:
         return "an escape flag is not 0 or 1"
+    return None
+
+
+def prove_cycle_rows(m: Map, side: str, rows) -> str | None:
+    """Re-prove stored cycle rows ``(minimum, length, record bytes)`` exactly; why one is wrong, or None.
+
+    Each row must be on its side, and its record must equal the record of
+    the cycle re-built and verified by exact iteration from its minimum.
+    """
+    from ..integer_cycle import verified_cycle
+
+    for minimum, length, text in rows:
+        try:
+            rec = json.loads(text.decode("utf-8") if isinstance(text, bytes) else text)
+            if (side == "positive") != (minimum > 0) or rec.get("minimum") != minimum:
+                return f"stored cycle {minimum} is on the wrong side or mislabelled"
+            if rec.get("length") != length or length < 1:
+                return f"stored cycle {minimum} has a wrong length"
+            fresh = verified_cycle(m, side, abs(minimum), length).to_record()
+        except (ValueError, TypeError, AttributeError, RuntimeError, ArithmeticError):
+            return f"stored cycle {minimum} does not re-prove"
+        if json.loads(json.dumps(fresh, sort_keys=True)) != rec:
+            return f"stored cycle {minimum} differs from its exact re-proof"
     return None
 
 
@@ -1191,7 +1395,12 @@ def store_info(path: str | os.PathLike) -> dict:
         info["scans"] = _scan_summaries(conn)
         running = conn.execute("SELECT count(*) FROM runs WHERE status = 'running'").fetchone()[0]
         info["runs_marked_running"] = running
-        if info["schema_version"] != SCHEMA_VERSION:
+        if info["schema_version"] == 1:
+            info["problem"] = (
+                f"schema version 1: migrated to {SCHEMA_VERSION} (its chunks re-checked) "
+                "when next used"
+            )
+        elif info["schema_version"] != SCHEMA_VERSION:
             info["problem"] = (
                 f"schema version {info['schema_version']}, this cyclewright reads {SCHEMA_VERSION}"
             )
