@@ -57,14 +57,14 @@ number of cycle rows equals the ``cycles`` count and that the unresolved
 starts lie in the range and match the counts. A chunk failing any of these is
 *damaged*: the scan then recomputes it (or refuses), and never reports it.
 The cycles themselves are re-proved by exact iteration when read back
-(:mod:`cyclewright.cycles.scan.run`).
+(:func:`prove_cycle_rows`, called by :mod:`cyclewright.cycles.scan.run`).
 
 Every chunk is written in one transaction together with its cycles and
 unresolved starts, so a process killed at any moment leaves either the whole
 chunk or nothing; a re-run recomputes exactly the missing chunks. Opening
 never writes before the file has been checked: a file that is not an SQLite
 database of this kind, a store of another map definition, a store of another
-schema or semantics version, or a corrupt file raises
+schema (but 1, see below) or semantics version, or a corrupt file raises
 :class:`~cyclewright.cycles.errors.StoreError` and leaves the file as it was.
 A store that cannot be written is opened read-only: finished results can be
 read, nothing can be added.
@@ -72,6 +72,28 @@ read, nothing can be added.
 A new store is built under a temporary name and linked into place only if no
 store exists there yet, so processes creating the same store at once all end
 up using one complete file.
+
+Version 1
+---------
+A store of schema version 1 (no checksums, no claims, runs without process
+ids) is migrated when opened with write access, never trusted unchecked:
+each finished chunk must pass the checks above that need no checksum
+(counts non-negative and adding up to the range, one cycle row per counted
+cycle, unresolved starts inside the chunk and matching the counts, a sieve
+count within the range), and every stored cycle is re-proved exactly. A
+chunk that passes is rewritten with its checksum (its ``code_version`` says
+``migrated from schema 1``); any other is left out, so the next scan
+recomputes it. What no check short of recomputing can confirm -- how a
+chunk's other starts split between dropping below themselves and entering
+another cycle, and how many the sieve decided -- is carried over under the
+adding-up check, as version 1 recorded it. The run history is not carried
+over (version 1 did not record which process ran). The new file replaces
+the old one in one rename while the old one is locked against writers, so
+processes opening it at once migrate it once; one line says what was kept
+and what will be recomputed. A version-1 store that cannot be written is
+refused with one line, untouched. Default stores of version 1 (named
+``<label>-<key prefix>.sqlite``) take the version-2 name first
+(:func:`adopt_legacy_store`).
 
 SQLite integers are signed 64-bit, so starts are limited to ``2^63 - 1``
 (:data:`MAX_START`).
