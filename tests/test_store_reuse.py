@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import json
 
+import pytest
 from conftest import run_cli
 
 from cyclewright import maps
 from cyclewright.cycles.census import census, census_family
 from cyclewright.cycles.compare import compare
+from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.scan import StoreUse, scan
 
 
@@ -147,3 +149,24 @@ def test_study_says_it_reused_in_report_json_and_terminal(tmp_path):
     }
     # the data files stay byte for byte the same
     assert {p.name: p.read_bytes() for p in out.glob("*.csv")} == data
+
+
+def test_one_store_file_for_several_maps_is_refused_before_any_work(tmp_path):
+    # a store holds one map definition: several maps need a directory of stores
+    one = tmp_path / "one.sqlite"
+    with pytest.raises(InputError, match="needs a directory of stores"):
+        compare(["3x+1", "5x+1"], max_length=8, to=200, odd=3, store=one, workers=1)
+    with pytest.raises(InputError, match="needs a directory of stores"):
+        census_family("3x+k", range(1, 8), 20, store=one, workers=1)
+    assert not one.exists()
+    # one map (under two names) may share one file
+    c = compare(["3x+1", "3x+1"], max_length=8, to=200, odd=3, store=one, workers=1)
+    assert c.store_use.chunks_reused > 0  # the second profile reads what the first stored
+    for args in (
+        ("compare", "3x+1", "5x+1", "--max-length", "8", "--to", "200", "--odd", "3"),
+        ("census", "3x+k", "--offsets", "1..7", "--max-length", "20"),
+    ):
+        r = run_cli(*args, "--store", str(tmp_path / "two.sqlite"))
+        assert r.returncode == 2 and r.stderr.count("\n") == 1, r.stderr
+        assert "needs a directory of stores" in r.stderr and not r.stdout
+        assert not (tmp_path / "two.sqlite").exists()

@@ -70,7 +70,7 @@ from .largest_bound import largest_bound_up_to
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .scan.result import StoreUse
-from .scan.run import scan
+from .scan.run import check_store_for_maps, scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
 from .wordsearch import DegenerateMap, integral_cycles_by_itinerary
 
@@ -990,9 +990,10 @@ def census_family(
         raise InputError(
             f"{template}: no member in the range gives a valid map (k must make a + k even)"
         )
+    family = [parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}") for k in members]
+    check_store_for_maps(kw.get("store"), family, "a family census")
     rows = []
-    for i, k in enumerate(members, start=1):
-        m = parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}")
+    for i, m in enumerate(family, start=1):
         rows.append(census(m, max_length, side=side, **kw))
         report(progress, "family", i, len(members), "maps", m.label)
     return FamilyCensus(template, max_length, side, tuple(rows))

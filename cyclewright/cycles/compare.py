@@ -675,11 +675,12 @@ def compare(
     """
     from .floors import floor
     from .records import records
-    from .scan.run import scan
+    from .scan.run import check_store_for_maps, scan
 
     if not maps_:
         raise InputError("compare needs at least one map")
     maps_ = [as_map(x) for x in maps_]
+    check_store_for_maps(store, maps_, "a comparison")
     profiles = []
     for i, m in enumerate(maps_):
 

@@ -43,6 +43,7 @@ _CLAIM_POLL = 0.5  # seconds between looks at chunks another run is computing
 
 __all__ = [
     "scan",
+    "check_store_for_maps",
 ]
 
 
@@ -75,6 +76,23 @@ def _open_store(store, m: Map, notice=None) -> tuple[ScanStore, bool]:
             return ScanStore(Path(store) / default_store_path(m).name, m, notice=notice), True
         return ScanStore(store, m, notice=notice), True
     raise InputError(f"store must be a path, a ScanStore, None (default) or False, got {store!r}")
+
+
+def check_store_for_maps(store, ms, what: str) -> None:
+    """Refuse, before any work, one store file (or ScanStore) for several map definitions.
+
+    A store holds the scans of one map definition; ``what`` (a comparison, a
+    family census) of several maps needs a directory of stores, or none.
+    """
+    keys = {as_map(m).key for m in ms}
+    if len(keys) < 2 or store is None or store is False:
+        return
+    if isinstance(store, ScanStore) or not Path(store).is_dir():
+        where = store.path if isinstance(store, ScanStore) else store
+        raise InputError(
+            f"store {where}: {what} of {len(keys)} maps needs a directory of stores "
+            "(one file per map definition), not one store file"
+        )
 
 
 def _prepare_parent(m: Map, sides, cap: int, to: int) -> Callable[[], None]:
