@@ -67,6 +67,8 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "class_word": ((5, 4), {}),
     "jump_table": ((3,), {}),
     "default_store_path": ((), {}),
+    "adopt_legacy_store": ((), {}),
+    "prove_cycle_rows": (("positive", [(1, 2, b'{"length": 2}')]), {}),
     "records": ((300,), {"side": "both", "workers": 1}),
     "start_figures": ((27,), {}),
     "glide_model": ((), {}),

@@ -160,37 +160,48 @@ def test_no_worker_outlives_sigterm_or_kill_9_and_the_rerun_is_whole(tmp_path):
     pytest.fail("the scan always finished before it could be stopped")
 
 
+def _stopped_at(cmd, env, delay, signum):
+    """Start ``cmd``, wait until it catches SIGTERM (its handlers are in), then
+    signal it after ``delay`` s; (return code, stdout, stderr lines but progress,
+    the children it had)."""
+    proc = subprocess.Popen(
+        cmd,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        env=env,
+        start_new_session=True,
+    )
+    deadline = time.monotonic() + 120
+    while not _handlers_installed(proc.pid) and proc.poll() is None:
+        assert time.monotonic() < deadline
+        time.sleep(0.0005)
+    time.sleep(delay)
+    kids = _children(proc.pid)
+    if signum == signal.SIGINT:  # Ctrl-C reaches the whole process group
+        os.killpg(proc.pid, signum)
+    else:
+        proc.send_signal(signum)
+    out, err = proc.communicate(timeout=300)
+    assert "Traceback" not in err, (cmd, delay, err)
+    lines = [x for x in err.splitlines() if not x.startswith("progress:")]
+    return proc.returncode, out, lines, kids
+
+
+_LONG_SCAN = ["scan", "3x+1", "--to", "10^15", "--no-store"]
+
+
 @pytest.mark.parametrize("sig", ["SIGINT", "SIGTERM", "SIGHUP"])
 def test_a_stop_signal_at_any_moment_ends_the_command(tmp_path, sig):
     # A scan far too long to finish; the signal arrives at growing delays
     # after the command has set up its handlers, from kernel loading on.
     env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba"))
     signum = getattr(signal, sig)
+    cmd = [sys.executable, "-m", "cyclewright", *_LONG_SCAN, "--workers", "2"]
     for delay in (0.0, 0.3, 1.0, 2.5):
-        proc = subprocess.Popen(
-            [sys.executable, "-m", "cyclewright", "scan", "3x+1", "--to", "10^15"]
-            + ["--no-store", "--workers", "2"],
-            stdout=subprocess.PIPE,
-            stderr=subprocess.PIPE,
-            text=True,
-            env=env,
-            start_new_session=True,
-        )
-        deadline = time.monotonic() + 120
-        while not _handlers_installed(proc.pid) and proc.poll() is None:
-            assert time.monotonic() < deadline
-            time.sleep(0.005)
-        time.sleep(delay)
-        kids = _children(proc.pid)
-        if signum == signal.SIGINT:  # Ctrl-C reaches the whole process group
-            os.killpg(proc.pid, signum)
-        else:
-            proc.send_signal(signum)
-        out, err = proc.communicate(timeout=300)
-        assert proc.returncode == 128 + signum, (delay, err)
-        lines = [x for x in err.splitlines() if not x.startswith("progress:")]
-        assert lines == ["error: interrupted"], (delay, err)
-        assert out == ""
+        code, out, lines, kids = _stopped_at(cmd, env, delay, signum)
+        assert code == 128 + signum, (delay, lines)
+        assert lines == ["error: interrupted"] and out == "", (delay, lines)
         assert _gone(kids)
 
 
@@ -267,26 +278,10 @@ def test_an_interrupt_in_the_first_milliseconds_ends_with_one_line(tmp_path):
     entries = [[sys.executable, "-m", "cyclewright"]] + ([[str(script)]] if script.exists() else [])
     for entry in entries:
         for delay in (0.0, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2):
-            proc = subprocess.Popen(
-                [*entry, "scan", "3x+1", "--to", "10^15", "--no-store", "--workers", "1"],
-                stdout=subprocess.PIPE,
-                stderr=subprocess.PIPE,
-                text=True,
-                env=env,
-                start_new_session=True,
-            )
-            deadline = time.monotonic() + 120
-            while not _handlers_installed(proc.pid) and proc.poll() is None:
-                assert time.monotonic() < deadline
-                time.sleep(0.0005)
-            time.sleep(delay)
-            os.killpg(proc.pid, signal.SIGINT)  # Ctrl-C reaches the whole process group
-            out, err = proc.communicate(timeout=300)
-            assert "Traceback" not in err, (entry, delay, err)
-            assert proc.returncode == 130, (entry, delay, proc.returncode, err)
-            lines = [x for x in err.splitlines() if not x.startswith("progress:")]
-            assert lines == ["error: interrupted"], (entry, delay, err)
-            assert out == ""
+            cmd = [*entry, *_LONG_SCAN, "--workers", "1"]
+            code, out, lines, _ = _stopped_at(cmd, env, delay, signal.SIGINT)
+            assert code == 130, (entry, delay, code, lines)
+            assert lines == ["error: interrupted"] and out == "", (entry, delay, lines)
 
 
 def test_the_entry_point_handles_signals_before_any_heavy_import():
