@@ -88,11 +88,18 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--max-maps", type=int, default=20_000)
     ap.add_argument("--repeat", type=int, default=2)
+    ap.add_argument(
+        "--forms",
+        default="shorthand,branches",
+        help="comma-separated map-file forms to measure (shorthand, branches)",
+    )
     args, _ = ap.parse_known_args()
-    sizes = [n for n in (1_000, 3_000, 10_000, 20_000, 30_000, 100_000) if n <= args.max_maps]
+    sizes = [
+        n for n in (1_000, 3_000, 10_000, 20_000, 30_000, 50_000, 100_000) if n <= args.max_maps
+    ]
     results = []
     with tempfile.TemporaryDirectory() as tmp:
-        for form in ("shorthand", "branches"):
+        for form in [f.strip() for f in args.forms.split(",") if f.strip()]:
             rows = []
             for n in sizes:
                 path = Path(tmp) / f"{form}-{n}.toml"

@@ -51,6 +51,7 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "words_table": ((3,), {}),
     "census": ((12,), {"store": False, "workers": 1, "side": "both"}),
     "plan_census": ((12,), {"side": "both", "rate": 1e9, "workers": 2}),
+    "check_census_length": ((12,), {}),
     "itinerary_work": ((20,), {}),
     "excursions": ((50,), {"side": "both"}),
     "critical_ratio": ((), {}),

@@ -88,6 +88,23 @@ class _Stopped(BaseException):
 
 _NEGATIVE = re.compile(r"-\d")
 
+#: Notes on old option spellings of the running command: printed after it
+#: succeeds, or folded into its one error line (bad input stays one line).
+_PENDING_NOTES: list[str] = []
+_DEFER_NOTES = [False]  # true while main() runs a command
+
+
+def _with_notes(message: object) -> object:
+    if not _PENDING_NOTES:
+        return message
+    return f"{one_line(message)} (note: {'; '.join(_PENDING_NOTES)})"
+
+
+def _flush_notes() -> None:
+    for note in _PENDING_NOTES:
+        click.echo(f"note: {note}", err=True)
+    _PENDING_NOTES.clear()
+
 
 def _accept_leading_minus(cmd: click.Command) -> None:
     """Let arguments start with ``-`` and a digit (the map ``-3x+1``, the start ``-17``).
@@ -115,16 +132,19 @@ def _accept_leading_minus(cmd: click.Command) -> None:
                     raise click.NoSuchOption(name, ctx=ctx)
                 if name in old:
                     notes.append(f"{name} is an old spelling of {old[name].visible_opts[0]}")
-        try:
-            rest = original(ctx, args)
-        except click.ClickException as exc:
-            # bad input stays one line: the note joins the error instead of preceding it
-            if notes:
-                exc.message = f"{exc.message} (note: {'; '.join(notes)})"
-            raise
-        for note in notes:
-            click.echo(f"note: {note}", err=True)
-        return rest
+        # bad input stays one line: under main() the notes wait for the command's
+        # outcome and join the error line if it fails (here or in its body)
+        _PENDING_NOTES.extend(notes)
+        if not _DEFER_NOTES[0]:  # the group run on its own (click's test runner)
+            try:
+                rest = original(ctx, args)
+            except click.ClickException as exc:
+                exc.message = _with_notes(exc.message)
+                _PENDING_NOTES.clear()
+                raise
+            _flush_notes()
+            return rest
+        return original(ctx, args)
 
     cmd.parse_args = parse_args
     cmd._minus_ok = True
@@ -152,6 +172,8 @@ def main(argv: list[str] | None = None) -> None:
         except (KeyboardInterrupt, _Stopped):  # one that landed outside the command's handling
             _interrupted(stopping)
     finally:
+        _DEFER_NOTES[0] = False
+        _PENDING_NOTES.clear()
         _restore_handlers(saved)
 
 
@@ -184,11 +206,14 @@ def _interrupted(stopping) -> None:
 
 def _main(args: list[str], stopping) -> None:
     user_errors: tuple = ()
+    _PENDING_NOTES.clear()
+    _DEFER_NOTES[0] = True
     try:
         user_errors = USER_ERRORS()
         with unlimited_digits():
             cli.main(args=args, prog_name="cyclewright", standalone_mode=False)
         stopping.check_interrupt()  # an interrupt some library swallowed still ends the command
+        _flush_notes()
     except click.exceptions.NoArgsIsHelpError as exc:
         click.echo(exc.ctx.get_help() if exc.ctx else str(exc))
         sys.exit(0)
@@ -197,10 +222,10 @@ def _main(args: list[str], stopping) -> None:
     except (click.exceptions.Abort, KeyboardInterrupt, _Stopped):
         _interrupted(stopping)
     except click.ClickException as exc:
-        click.echo(f"error: {one_line(exc.format_message())}", err=True)
+        click.echo(f"error: {one_line(_with_notes(exc.format_message()))}", err=True)
         sys.exit(2)
     except user_errors as exc:
-        click.echo(f"error: {one_line(exc)}", err=True)
+        click.echo(f"error: {one_line(_with_notes(exc))}", err=True)
         sys.exit(2)
     except BrokenPipeError:
         sys.exit(0)
@@ -209,7 +234,10 @@ def _main(args: list[str], stopping) -> None:
             _interrupted(stopping)
         if os.environ.get("CYCLEWRIGHT_DEBUG"):
             raise
-        click.echo(f"error: internal failure: {type(exc).__name__}: {one_line(exc)}", err=True)
+        click.echo(
+            f"error: internal failure: {type(exc).__name__}: {one_line(_with_notes(exc))}",
+            err=True,
+        )
         sys.exit(1)
     sys.exit(0)
 

@@ -53,6 +53,7 @@ References
 
 from __future__ import annotations
 
+import itertools
 import math
 import os
 import re
@@ -66,13 +67,23 @@ from cyclewright.maps import Map, as_map, parse_shorthand
 from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element, cycles_table
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
-from .largest_bound import largest_bound_up_to
+from .largest_bound import continued_fraction_applies, largest_bound_up_to
+from .limits import (
+    MAX_CENSUS_LENGTH,
+    MAX_CF_CENSUS_LENGTH,
+    MAX_FAMILY_MEMBERS,
+    MAX_ITINERARY_WORK,
+    check_members,
+    check_range,
+    check_workers,
+    limits_lifted,
+)
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .scan.result import StoreUse
 from .scan.run import check_store_for_maps, scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
-from .wordsearch import DegenerateMap, integral_cycles_by_itinerary
+from .wordsearch import DegenerateMap, integral_cycles_by_itinerary, itinerary_work
 
 __all__ = [
     "census",
@@ -80,6 +91,7 @@ __all__ = [
     "SidePlan",
     "CensusPlan",
     "plan_census",
+    "check_census_length",
     "census_family",
     "FamilyCensus",
     "parse_family",
@@ -104,8 +116,6 @@ def _nominal_rate(m) -> float:
 
 #: Largest scan range a census accepts by default (``max_scan`` overrides).
 MAX_SCAN = 10**12
-#: Largest estimated work (half-words joined) of the itinerary method accepted by default.
-MAX_ITINERARY_WORK = 3 * 10**8
 
 METHODS = ("auto", "bound-scan", "itineraries", "necklaces", "both")
 #: Largest number of necklaces the necklace method enumerates by default.
@@ -294,37 +304,6 @@ def _crossing(m: Map) -> int | None:
     return math.floor(best)
 
 
-def itinerary_work(m: Map | str, max_length: int, stop_above: int | None = None) -> int:
-    """Half-words the itinerary method joins up to ``max_length`` (for feasibility checks).
-
-    For each length ``k`` the join pairs every product class of the prefixes
-    (length ``floor(k/2)``) with every class of the suffixes, so the work is
-    ``sum_k (classes_j * d^i + classes_i * d^j)``. With ``stop_above`` the sum stops
-    as soon as it exceeds ``stop_above`` (the answer is then some value above it),
-    so the estimate itself costs little for any length.
-
-    >>> from cyclewright import maps
-    >>> itinerary_work(maps.get("3x+1"), 4)
-    50
-    >>> itinerary_work(maps.get("3x+1"), 10**9, stop_above=10**8) > 10**8
-    True
-    """
-    m = as_map(m)
-    d = m.divisor
-    classes = [1]
-    products = {1}
-    total = 0
-    for k in range(1, max_length + 1):
-        i, j = k // 2, k - k // 2
-        while len(classes) <= j:
-            products = {p * a for p in products for a in m.multipliers}
-            classes.append(len(products))
-        total += classes[j] * d**i + classes[i] * d**j
-        if stop_above is not None and total > stop_above:
-            break
-    return total
-
-
 def _zero_cycle(m: Map, K: int) -> IntegerCycle | None:
     x = 0
     for i in range(1, K + 1):
@@ -457,6 +436,50 @@ def _measure_scan_rate(m: Map, max_length: int, near: int, side: str = "positive
     return cs / max(time.perf_counter() - t, 1e-9)
 
 
+def check_census_length(m: Map | str | None, max_length: int, method: str = "auto") -> int:
+    """``max_length`` if a census of ``m`` by ``method`` accepts it, else :class:`InputError`.
+
+    ``K >= 1``, and at most
+    :data:`~cyclewright.cycles.limits.MAX_CF_CENSUS_LENGTH` where the
+    continued fraction of ``log2 a`` gives the largest bound in constant time
+    (two-branch halving maps, bound-scan or auto method; the plan then
+    refuses any scan beyond ``max_scan`` with its estimate), else
+    :data:`~cyclewright.cycles.limits.MAX_CENSUS_LENGTH` (families:
+    ``m = None``). The maximum is lifted inside
+    :func:`~cyclewright.cycles.limits.lift_limits`.
+
+    >>> check_census_length("3x+1", 8_000_000)
+    8000000
+    >>> check_census_length("mod3-4x", 2 * 10**6)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: the length K (max_length, --max-length) must be at most 10^6, got 2000000 (mod3-4x with the auto method: planning alone grows with K; the scans it needs are far beyond any max_scan)
+    """
+    if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
+        raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
+    if m is not None:
+        m = as_map(m)
+    if m is not None and method in ("auto", "bound-scan") and continued_fraction_applies(m):
+        limit, why = (
+            MAX_CF_CENSUS_LENGTH,
+            f"{m.label}: the largest bound comes from the continued fraction of log2 a",
+        )
+    else:
+        what = "a family" if m is None else f"{m.label} with the {method} method"
+        limit, why = (
+            MAX_CENSUS_LENGTH,
+            f"{what}: planning alone grows with K; the scans it needs are far beyond any max_scan",
+        )
+    return check_range(
+        max_length,
+        "the length K (max_length, --max-length)",
+        minimum=1,
+        maximum=limit,
+        why=why,
+        liftable=True,
+    )
+
+
 def plan_census(
     m: Map | str,
     max_length: int,
@@ -499,8 +522,8 @@ def plan_census(
     (1802109784640, 21)
     """
     m = as_map(m)
-    if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
-        raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
+    check_census_length(m, max_length, method)
+    check_workers(workers)
     sides = sides_of(side)
     K = max_length
     crossing = _crossing(m)
@@ -659,11 +682,11 @@ def census(
     """
     m = as_map(m)
     t0 = time.perf_counter()
-    if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
-        raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
     sides = sides_of(side)
     if method not in METHODS:
         raise InputError(f"method must be one of {', '.join(METHODS)}, got {method!r}")
+    check_census_length(m, max_length, method)
+    check_workers(workers)
     K = max_length
     if method == "necklaces":
         return _census_by_necklaces(m, K, sides, t0)
@@ -982,7 +1005,19 @@ def census_family(
     """
     parse_side(side)
     a, sign = parse_family(template)
-    ks = list(ks)
+    check_census_length(None, max_length)
+    if isinstance(ks, range):
+        check_members(ks, "the offsets k")
+        ks = list(ks)
+    elif limits_lifted():
+        ks = list(ks)
+    else:  # any iterable: never more than the limit taken in
+        ks = list(itertools.islice(ks, MAX_FAMILY_MEMBERS + 1))
+        if len(ks) > MAX_FAMILY_MEMBERS:
+            raise InputError(
+                f"the offsets k have more than {MAX_FAMILY_MEMBERS} members; "
+                f"at most {MAX_FAMILY_MEMBERS} are taken in one run"
+            )
     members = (
         [k for k in ks if (a + k) % 2 == 0 and k > 0] if all_k else default_family_members(a, ks)
     )

@@ -46,7 +46,15 @@ from .counting import count
 from .errors import InputError
 from .excursions import Excursions, excursions, peak_text
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
-from .limits import DEFAULT_MAX_STEPS
+from .limits import (
+    DEFAULT_MAX_STEPS,
+    MAX_CENSUS_LENGTH,
+    MAX_EXCURSION_START,
+    MAX_STEP_CAP,
+    MAX_TYPE_LENGTH,
+    check_range,
+    check_workers,
+)
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
 from .presentation import Presentable, Table
@@ -55,6 +63,7 @@ from .scan.result import StoreUse
 from .sweep import critical_lengths, rho, rho_exact, sweep
 
 __all__ = [
+    "check_compare",
     "compare",
     "Comparison",
     "MapProfile",
@@ -621,6 +630,41 @@ class Comparison(Presentable):
         return f"Comparison({', '.join(p.map.label for p in self.profiles)}; K={self.max_length}, N={self.to}, x={self.odd})"
 
 
+def check_compare(
+    *,
+    max_length: int = 20,
+    to: int = 10**5,
+    odd: int = 20,
+    max_steps: int = DEFAULT_MAX_STEPS,
+    workers: int | None = None,
+) -> None:
+    """Refuse :func:`compare` parameters beyond the limits (:class:`InputError`, one line).
+
+    The census length is 1 .. :data:`~cyclewright.cycles.limits.MAX_CENSUS_LENGTH`,
+    the scan end ``to`` 1 .. 2^62, the counting ``odd`` 1 ..
+    :data:`~cyclewright.cycles.limits.MAX_TYPE_LENGTH`, ``max_steps`` 1 ..
+    :data:`~cyclewright.cycles.limits.MAX_STEP_CAP`.
+
+    >>> check_compare(to=10**6)
+    >>> check_compare(odd=10**9)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: odd (--odd) must be at most 100000, got 1000000000
+    """
+    check_range(
+        max_length,
+        "the length K (max_length, --max-length)",
+        minimum=1,
+        maximum=MAX_CENSUS_LENGTH,
+        why="planning alone grows with K; the scans it needs are far beyond any max_scan",
+        liftable=True,
+    )
+    check_range(to, "to (--to)", minimum=1, maximum=MAX_EXCURSION_START)
+    check_range(odd, "odd (--odd)", minimum=1, maximum=MAX_TYPE_LENGTH, liftable=True)
+    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP)
+    check_workers(workers)
+
+
 def compare(
     maps_: Sequence[Map | str],
     *,
@@ -680,6 +724,8 @@ def compare(
     if not maps_:
         raise InputError("compare needs at least one map")
     maps_ = [as_map(x) for x in maps_]
+    # every part's limits up front: a part's refusal later becomes a note in its row
+    check_compare(max_length=max_length, to=to, odd=odd, max_steps=max_steps, workers=workers)
     check_store_for_maps(store, maps_, "a comparison")
     profiles = []
     for i, m in enumerate(maps_):

@@ -62,6 +62,7 @@ from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .intervals import Interval, _log_form
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
+from .limits import MAX_TYPE_LENGTH, check_range
 from .linear_forms import LinearFormBound, _linear_form_bound, candidates_from_linear_form
 from .minimum_bound import MinimumBound, _bound_of_content
 from .necklaces import (
@@ -679,6 +680,13 @@ def count(
     m = as_map(m)
     limit = _check_limit(limit)
     c = _resolve(m, k, x, content)
+    check_range(
+        sum(c),
+        "the length k (--length)",
+        maximum=MAX_TYPE_LENGTH,
+        why="the figures of a type have about k digits each",
+        liftable=True,
+    )
     return _count_content(m, c, limit, progress)
 
 

@@ -35,13 +35,13 @@ from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .labels import EXACT, PROVED
-from .limits import DEFAULT_MAX_STEPS
+from .limits import DEFAULT_MAX_STEPS, MAX_EXCURSION_START, MAX_STEP_CAP, check_range
 from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
 __all__ = ["excursions", "Excursions", "peak_text"]
 
-_LIMIT = 2**62
+_LIMIT = MAX_EXCURSION_START
 
 
 @njit(cache=True)
@@ -261,6 +261,7 @@ def excursions(
         raise InputError(f"to = {to} is beyond 2^62")
     if isinstance(max_steps, bool) or not isinstance(max_steps, int) or max_steps < 1:
         raise InputError(f"max_steps must be an integer >= 1, got {max_steps!r}")
+    check_range(max_steps, "max_steps", maximum=MAX_STEP_CAP)
     if any(abs(a) >= 2**31 or abs(b) >= 2**31 for a, b in m.branches):
         raise InputError(f"{m.label}: coefficients too large for the compiled excursion walk")
     return on_sides(side, lambda s: _excursions(m, to, start, s, max_steps))

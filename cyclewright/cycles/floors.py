@@ -74,6 +74,14 @@ from .continued_fractions import (
 from .errors import InputError
 from .intervals import _log_sign, _Precision
 from .labels import EXACT, PROVED
+from .limits import (
+    MAX_NEXT_TYPES,
+    MAX_START_DIGITS,
+    check_range,
+    int_digits,
+    limits_lifted,
+    short_int,
+)
 from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -531,9 +539,17 @@ def floor(
     if isinstance(verified_to, bool) or not isinstance(verified_to, int):
         raise InputError(f"verified_to must be an integer, got {verified_to!r}")
     if verified_to < 0:
-        raise InputError(f"verified_to must be at least 0, got {verified_to}")
+        raise InputError(f"verified_to must be at least 0, got {short_int(verified_to)}")
+    digits = int_digits(verified_to)
+    if digits > MAX_START_DIGITS and not limits_lifted():
+        # the floor's work grows with the digits of N (continued fraction terms, precision)
+        raise InputError(
+            f"verified_to (--verified-to) has {digits} digits; the floor accepts at most "
+            f"{MAX_START_DIGITS} (verified ranges in practice are below 10^30)"
+        )
     if isinstance(next_types, bool) or not isinstance(next_types, int) or next_types < 0:
         raise InputError(f"next_types must be a non-negative integer, got {next_types!r}")
+    check_range(next_types, "next_types (--next)", maximum=MAX_NEXT_TYPES, liftable=True)
     return on_sides(side, lambda s: _floor(m, verified_to, s, next_types), tolerate=True)
 
 

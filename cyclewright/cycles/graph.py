@@ -58,7 +58,19 @@ from .errors import InputError
 from .files import atomic_write
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import EXACT
-from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
+from .limits import (
+    DEFAULT_CEILING,
+    DEFAULT_MAX_STEPS,
+    GRAPH_BYTES_PER_NODE,
+    MAX_GRAPH_NODES,
+    MAX_GRAPH_STARTS,
+    MAX_START_DIGITS,
+    MAX_STEP_CAP,
+    MEMORY_BUDGET,
+    check_range,
+    limits_lifted,
+    short_int,
+)
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side
@@ -67,11 +79,13 @@ from .solver import cycle_representative
 __all__ = [
     "FunctionalGraph",
     "functional_graph",
+    "check_graph",
     "MAX_STARTS",
     "PLOT_NODE_LIMIT",
 ]
 
-MAX_STARTS = 2_000_000
+#: Most starts of one graph (the API's limit, :data:`~cyclewright.cycles.limits.MAX_GRAPH_STARTS`).
+MAX_STARTS = MAX_GRAPH_STARTS
 PLOT_NODE_LIMIT = 2_000
 
 ESCAPED = -1
@@ -458,6 +472,74 @@ def _check_int(value, what: str) -> int:
     return int(value)
 
 
+def check_graph(
+    to: int,
+    start: int = 1,
+    side: Side = DEFAULT_SIDE,
+    max_steps: int = DEFAULT_MAX_STEPS,
+    ceiling: int | None = DEFAULT_CEILING,
+) -> tuple[int, int, int, int | None]:
+    """Refuse a :func:`functional_graph` beyond the limits before it is built (one line).
+
+    The range is not empty and starts at 1 or above; it has at most
+    :data:`~cyclewright.cycles.limits.MAX_GRAPH_STARTS` starts (on both
+    sides together); ``max_steps`` is 1 ..
+    :data:`~cyclewright.cycles.limits.MAX_STEP_CAP`; ``ceiling`` is at
+    least ``to`` and at most ``10^1000``. Size limits are lifted inside
+    :func:`~cyclewright.cycles.limits.lift_limits`. Returns
+    ``(to, start, max_steps, ceiling)``.
+
+    >>> check_graph(100)
+    (100, 1, 1000, 1000000000000000)
+    >>> check_graph(10**6, side="both")
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: 2000000 starts: the graph holds at most 500000 starts (about 2300 bytes a node in memory); use a smaller range
+    """
+    to = _check_int(to, "to")
+    start = _check_int(start, "start")
+    parse_side(side)
+    if start < 1:
+        raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
+    if to < start:
+        raise InputError(f"empty range: from {short_int(start)} is above to {short_int(to)}")
+    nstarts = (to - start + 1) * (2 if side == "both" else 1)
+    if nstarts > MAX_GRAPH_STARTS and not limits_lifted():
+        raise InputError(
+            f"{short_int(nstarts)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
+            f"(about {GRAPH_BYTES_PER_NODE} bytes a node in memory); use a smaller range"
+        )
+    max_steps = check_range(
+        _check_int(max_steps, "max_steps"),
+        "max_steps",
+        minimum=1,
+        maximum=MAX_STEP_CAP,
+        liftable=True,
+    )
+    if ceiling is not None:
+        ceiling = _check_int(ceiling, "ceiling")
+        if ceiling > 10**MAX_START_DIGITS and not limits_lifted():
+            raise InputError(
+                f"the ceiling must be at most 10^{MAX_START_DIGITS}, got {short_int(ceiling)}"
+            )
+        if ceiling < to:
+            raise InputError(
+                f"the ceiling {short_int(ceiling)} is below the largest start {short_int(to)}"
+            )
+    return to, start, max_steps, ceiling
+
+
+def _too_many_nodes(nodes: int, value_bytes: int, done: int, total: int, ceiling) -> str:
+    where = "without a ceiling" if ceiling is None else f"towards the ceiling {short_int(ceiling)}"
+    size = (nodes * GRAPH_BYTES_PER_NODE + value_bytes) // 2**20
+    return (
+        f"the graph reached {nodes} nodes (about {size} MiB) after {done} of {total} starts; "
+        f"one graph holds at most {MAX_GRAPH_NODES} nodes and {MEMORY_BUDGET // 2**20} MiB: "
+        f"orbits climbing {where} add nodes beyond the starts; lower the ceiling or the step "
+        "cap, or use a smaller range; nothing was written"
+    )
+
+
 def functional_graph(
     m: Map | str,
     to: int,
@@ -502,6 +584,17 @@ def functional_graph(
     -------
     FunctionalGraph
 
+    Raises
+    ------
+    InputError
+        Input beyond the limits of :func:`check_graph`, refused before any
+        walk; and a graph whose nodes pass
+        :data:`~cyclewright.cycles.limits.MAX_GRAPH_NODES` (or whose values
+        pass the memory budget) while it is walked: orbits that escape add
+        nodes the starts do not bound, and the walk stops there, with the
+        number of starts done, before memory grows further. Not checked
+        inside :func:`~cyclewright.cycles.limits.lift_limits`.
+
     Examples
     --------
     >>> from cyclewright import maps
@@ -519,26 +612,10 @@ def functional_graph(
     Lagarias 1985 (cycles of 3x+1 on both sides); see the module docstring.
     """
     m = as_map(m)
-    to = _check_int(to, "to")
-    start = _check_int(start, "start")
-    max_steps = _check_int(max_steps, "max_steps")
-    parse_side(side)
-    if start < 1:
-        raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
-    if to < start:
-        raise InputError(f"empty range: {start}..{to}")
-    nstarts = (to - start + 1) * (2 if side == "both" else 1)
-    if nstarts > MAX_STARTS:
-        raise InputError(
-            f"{nstarts} starts is too many for a graph held in memory (at most {MAX_STARTS}); "
-            f"scan larger ranges by cycle minimum instead"
-        )
-    if max_steps < 1:
-        raise InputError(f"max_steps must be at least 1, got {max_steps}")
-    if ceiling is not None:
-        ceiling = _check_int(ceiling, "ceiling")
-        if ceiling < to:
-            raise InputError(f"the ceiling {ceiling} is below the largest start {to}")
+    to, start, max_steps, ceiling = check_graph(to, start, side, max_steps, ceiling)
+    lifted = limits_lifted()
+    node_limit = MAX_GRAPH_NODES
+    value_bytes = 0  # the digits of the values held, beyond the fixed size of a node
 
     step = m.step
     succ: dict[int, int] = {}
@@ -559,6 +636,15 @@ def functional_graph(
             w = step(v)
             succ[v] = w
             new += 1
+            if not lifted:
+                value_bytes += w.bit_length() >> 3
+                if (
+                    len(succ) + len(frontier) > node_limit
+                    or value_bytes + len(succ) * GRAPH_BYTES_PER_NODE > MEMORY_BUDGET
+                ):
+                    raise InputError(
+                        _too_many_nodes(len(succ) + len(frontier), value_bytes, i, total, ceiling)
+                    )
             if ceiling is not None and abs(w) > ceiling:
                 if w not in succ:
                     frontier.setdefault(w, "beyond_ceiling")

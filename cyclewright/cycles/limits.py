@@ -1,4 +1,4 @@
-"""The step cap and the value ceiling: one name and one default each.
+"""Defaults and input limits of the API: declared once, checked here, used by the CLI too.
 
 Inside
 ------
@@ -12,6 +12,18 @@ Inside
   a walk of the functional graph stops (``escaped``; the CLI's ``--ceiling``).
 - :func:`wait_seconds` -- a bound on a wait read from the environment
   (``CYCLEWRIGHT_STORE_WAIT``, ``CYCLEWRIGHT_WORKER_WAIT``), one parser for all.
+- The input limits (``MAX_*``, :data:`MEMORY_BUDGET`): what an analysis
+  accepts before it starts. Each analysis refuses input beyond them with
+  :class:`~cyclewright.cycles.errors.InputError` and a one-line message
+  (the command line prints that line as ``error: ...``, exit status 2).
+  The table of every limit is docs/limits.md.
+- :func:`check_range`, :func:`check_memory`, :func:`check_members` -- the
+  refusals, one message each; :func:`limit_text`, :func:`short_int`,
+  :func:`int_digits`, :func:`quote` -- how they quote figures and inputs.
+- :func:`lift_limits` -- a context in which the limits that only protect
+  time and memory are lifted, for callers who know what they ask for
+  (``with cw.lift_limits(): cw.census(m, 2 * 10**6)``); the limits that
+  protect correctness (64-bit stores and kernels) stay.
 
 A capped walk is never a proof of anything: the analyses report capped
 starts as ``unresolved`` (or ``capped``), never as divergent.
@@ -19,9 +31,45 @@ starts as ``unresolved`` (or ``capped``), never as divergent.
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
+import math
 import os
+from collections.abc import Iterator
 
-__all__ = ["DEFAULT_MAX_STEPS", "DEFAULT_CEILING", "wait_seconds"]
+from .errors import InputError
+
+__all__ = [
+    "DEFAULT_MAX_STEPS",
+    "DEFAULT_CEILING",
+    "wait_seconds",
+    "MEMORY_BUDGET",
+    "MAX_START_DIGITS",
+    "MAX_CENSUS_LENGTH",
+    "MAX_CF_CENSUS_LENGTH",
+    "MAX_FAMILY_MEMBERS",
+    "MAX_ITINERARY_WORK",
+    "MAX_WORKERS",
+    "MAX_STEP_CAP",
+    "MAX_CHUNKS",
+    "MAX_TYPE_LENGTH",
+    "MAX_EXCURSION_START",
+    "MAX_EXTRA_LENGTHS",
+    "MAX_NEXT_TYPES",
+    "MAX_GRAPH_STARTS",
+    "MAX_GRAPH_NODES",
+    "GRAPH_BYTES_PER_NODE",
+    "lift_limits",
+    "limits_lifted",
+    "check_range",
+    "check_memory",
+    "check_members",
+    "check_workers",
+    "limit_text",
+    "short_int",
+    "int_digits",
+    "quote",
+]
 
 DEFAULT_MAX_STEPS = 1_000
 """Steps one walk may take before it stops undecided (every analysis, one default).
@@ -71,3 +119,279 @@ def wait_seconds(
         return max(0.0, float(text))
     except ValueError:
         raise error(f"{variable} must be a number of seconds, got {text!r}") from None
+
+
+#: Work whose estimated peak memory exceeds this many bytes is refused before it starts.
+MEMORY_BUDGET = 2 * 2**30
+
+#: Single starting values (``orbit``), ceilings and verified ranges (``floor``)
+#: have at most this many digits (|N| <= 10^1000).
+MAX_START_DIGITS = 1000
+
+#: Largest cycle length K a census (or compare's census) accepts; planning
+#: alone takes seconds at this size, and the scan it asks for is refused
+#: by ``max_scan`` long before.
+MAX_CENSUS_LENGTH = 10**6
+
+#: Largest K for a census whose largest bound comes from the continued
+#: fraction of log_2 a (planning in constant time); the plan then refuses
+#: any scan beyond ``max_scan`` with its estimate.
+MAX_CF_CENSUS_LENGTH = 10**9
+
+#: Largest estimated work (half-words joined) of the itinerary method.
+MAX_ITINERARY_WORK = 3 * 10**8
+
+#: Most members of a family (``3x+k`` with offsets A..B) one run takes.
+MAX_FAMILY_MEMBERS = 10_000
+
+#: Most worker processes a run starts (each holds its own interpreter and kernels).
+MAX_WORKERS = 64
+
+#: Largest step cap per start (scan, graph, orbit) and cycle-length cap; the store
+#: and the kernels hold these as 64-bit integers, and a cap beyond this never
+#: finishes anyway.
+MAX_STEP_CAP = 10**9
+
+#: Most chunks one scan is cut into (``chunk_size``): each chunk costs about a
+#: millisecond of bookkeeping and one store row.
+MAX_CHUNKS = 10_000
+
+#: Largest start of the excursions and of compare's scan (the compiled walk's
+#: int64 values get one bit of headroom).
+MAX_EXCURSION_START = 2**62
+
+#: Largest type length k (count) and odd-step range end (sweep, compare's odd).
+MAX_TYPE_LENGTH = 100_000
+
+#: Most further lengths per x a sweep adds beyond the critical one.
+MAX_EXTRA_LENGTHS = 1000
+
+#: Most further possible types a floor lists.
+MAX_NEXT_TYPES = 1000
+
+#: Most starts of one functional graph (every start is a node).
+MAX_GRAPH_STARTS = 500_000
+
+#: Size of one node of the functional graph with its attributes and edge at
+#: the peak (networkx; tracemalloc's peak over the nodes of 3x+1 from 1..30000
+#: and 5x+1 from 1..2000: 2135 to 2313 bytes), plus its value's own digits.
+GRAPH_BYTES_PER_NODE = 2300
+
+#: Most nodes of one functional graph (the memory budget over the size of a
+#: node): escaping orbits add nodes beyond the starts, and the walk is refused
+#: once the graph passes this or its nodes' values the memory budget, before
+#: memory grows further.
+MAX_GRAPH_NODES = MEMORY_BUDGET // GRAPH_BYTES_PER_NODE
+
+
+_LIFTED: contextvars.ContextVar[bool] = contextvars.ContextVar(
+    "cyclewright_limits_lifted", default=False
+)
+
+
+@contextlib.contextmanager
+def lift_limits() -> Iterator[None]:
+    """Lift the time and memory limits of the API inside a ``with`` block.
+
+    The limits that only guard time and memory (lengths, counts of starts,
+    digits of a start, the memory budget, the number of workers) are not
+    checked inside the block; the limits that guard correctness (the 64-bit
+    stores and kernels of the scan) stay. Only for callers who know the
+    work they ask for: nothing stops it once started but an interrupt.
+
+    Examples
+    --------
+    >>> from cyclewright.cycles.orbit import orbit
+    >>> orbit("3x+1", 2**3330, max_steps=5000).status
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: the start must have at most 1000 digits (|n| <= 10^1000), got 26908256633981014546…64132934518596173824 (1003 digits)
+    >>> with lift_limits():
+    ...     orbit("3x+1", 2**3330, max_steps=5000).status
+    'cycle'
+    """
+    token = _LIFTED.set(True)
+    try:
+        yield
+    finally:
+        _LIFTED.reset(token)
+
+
+def limits_lifted() -> bool:
+    """True inside :func:`lift_limits`.
+
+    >>> limits_lifted()
+    False
+    """
+    return _LIFTED.get()
+
+
+_LOG10_2 = math.log10(2)
+
+
+def int_digits(n: int) -> int:
+    """Decimal digits of ``|n|`` (1 for 0), without converting to text.
+
+    >>> int_digits(0), int_digits(9), int_digits(10), int_digits(-(10**5000))
+    (1, 1, 2, 5001)
+    """
+    n = abs(n)
+    if n < 10:
+        return 1
+    d = int((n.bit_length() - 1) * _LOG10_2) + 1
+    return d + 1 if n >= 10**d else d
+
+
+def short_int(n: int, digits: int = 20) -> str:
+    """An integer for a message: whole when short, else its ends and digit count.
+
+    Never converts more than the kept digits (no limit on integer/text
+    conversion is met).
+
+    >>> short_int(12345), short_int(-(10**70))
+    ('12345', '-10000000000000000000…00000000000000000000 (71 digits)')
+    """
+    d = int_digits(n)
+    if d <= 2 * digits + 8:
+        return str(n)
+    a = abs(n)
+    head = a // 10 ** (d - digits)
+    tail = a % 10**digits
+    return f"{'-' if n < 0 else ''}{head}…{tail:0{digits}d} ({d} digits)"
+
+
+def quote(text: object, width: int = 48) -> str:
+    """``repr(text)``, shortened in the middle when longer than ``width`` characters.
+
+    >>> quote("10^9")
+    "'10^9'"
+    >>> quote("1" * 1000)
+    "'11111111111111111111…11111111111111111111' (1000 characters)"
+    """
+    s = text if isinstance(text, str) else str(text)
+    if len(s) <= width:
+        return repr(s)
+    keep = max(width // 2 - 4, 4)
+    return f"{s[:keep]!r}"[:-1] + "…" + f"{s[-keep:]!r}"[1:] + f" ({len(s)} characters)"
+
+
+def limit_text(value: int) -> str:
+    """A limit as people write it: ``10^9``, ``2^63-1``, ``2^20`` or plain digits.
+
+    >>> limit_text(10**9), limit_text(2**63 - 1), limit_text(1 << 20), limit_text(4096), limit_text(500)
+    ('10^9', '2^63-1', '2^20', '4096', '500')
+    """
+    if value >= 10**6:
+        for base in (10, 2):
+            e = round(math.log(value, base))
+            if base**e == value:
+                return f"{base}^{e}"
+            if base**e - 1 == value:
+                return f"{base}^{e}-1"
+    return str(value)
+
+
+def check_range(
+    value: int,
+    what: str,
+    *,
+    text: object = None,
+    minimum: int | None = None,
+    maximum: int | None = None,
+    why: str = "",
+    liftable: bool = False,
+) -> int:
+    """``value`` if ``minimum <= value <= maximum``, else :class:`InputError` with one line.
+
+    The message names the parameter, the limit (as ``10^x`` or ``2^x`` when
+    that is how it reads best) and the input (``text`` when given, shortened
+    when long); ``why`` adds the reason for a limit. A ``liftable`` maximum
+    (one that only guards time or memory) is not checked inside
+    :func:`lift_limits`.
+
+    >>> check_range(5, "--show", minimum=0)
+    5
+    >>> check_range(-1, "--show", minimum=0)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: --show must be at least 0, got -1
+    >>> check_range(10**30, "--max-steps", maximum=10**9, text="10^30")
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: --max-steps must be at most 10^9, got '10^30'
+    """
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise InputError(f"{what} must be an integer, got {quote(repr(value))}")
+    got = quote(text) if isinstance(text, str) else short_int(value)
+    if minimum is not None and value < minimum:
+        raise InputError(f"{what} must be at least {limit_text(minimum)}, got {got}")
+    if maximum is not None and value > maximum and not (liftable and limits_lifted()):
+        tail = f" ({why})" if why else ""
+        raise InputError(f"{what} must be at most {limit_text(maximum)}, got {got}{tail}")
+    return value
+
+
+def _bytes_text(n: int) -> str:
+    for unit, size in (("GB", 10**9), ("MB", 10**6), ("kB", 10**3)):
+        if n >= size:
+            return f"{n / size:.1f} {unit}"
+    return f"{n} bytes"
+
+
+def check_memory(estimate: int, what: str, *, hint: str = "") -> int:
+    """Refuse work whose estimated memory exceeds :data:`MEMORY_BUDGET` (:class:`InputError`).
+
+    Not checked inside :func:`lift_limits`.
+
+    >>> check_memory(10**6, "the orbit")
+    1000000
+    >>> check_memory(10**10, "the orbit", hint="lower the step cap")
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: the orbit could need about 10.0 GB of memory, more than the 2.1 GB allowed; lower the step cap
+    """
+    if estimate > MEMORY_BUDGET and not limits_lifted():
+        tail = f"; {hint}" if hint else ""
+        raise InputError(
+            f"{what} could need about {_bytes_text(estimate)} of memory, "
+            f"more than the {_bytes_text(MEMORY_BUDGET)} allowed{tail}"
+        )
+    return estimate
+
+
+def check_members(r: range, what: str, limit: int = MAX_FAMILY_MEMBERS) -> range:
+    """``r`` if it has at most ``limit`` members, else :class:`InputError` (one line, no listing).
+
+    Not checked inside :func:`lift_limits`.
+
+    >>> check_members(range(1, 11), "--k")
+    range(1, 11)
+    >>> check_members(range(1, 10**30 + 1), "--k")
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: --k has 10^30 members; at most 10000 are taken in one run
+    """
+    size = max(0, (r.stop - r.start + r.step - (1 if r.step > 0 else -1)) // r.step)
+    if size > limit and not limits_lifted():
+        raise InputError(
+            f"{what} has {limit_text(size)} members; at most {limit} are taken in one run"
+        )
+    return r
+
+
+def check_workers(workers: int | None, what: str = "workers") -> int | None:
+    """``workers`` if None or 1 .. :data:`MAX_WORKERS` (the maximum liftable), else :class:`InputError`.
+
+    >>> check_workers(4), check_workers(None)
+    (4, None)
+    """
+    if workers is None:
+        return None
+    return check_range(
+        workers,
+        what,
+        minimum=1,
+        maximum=MAX_WORKERS,
+        why="each worker holds its own interpreter and compiled kernels",
+        liftable=True,
+    )

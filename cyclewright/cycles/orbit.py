@@ -44,13 +44,24 @@ from typing import TypeVar
 
 from cyclewright.maps import Map, as_map
 
+from .errors import InputError
 from .itinerary import format_itinerary
 from .labels import EXACT
-from .limits import DEFAULT_MAX_STEPS
+from .limits import (
+    DEFAULT_MAX_STEPS,
+    MAX_START_DIGITS,
+    MAX_STEP_CAP,
+    check_memory,
+    check_range,
+    int_digits,
+    limits_lifted,
+    short_int,
+)
 from .presentation import Presentable, Table
 
 __all__ = [
     "brent",
+    "check_orbit",
     "orbit",
     "Orbit",
     "DEFAULT_GROWTH_DIGITS",
@@ -304,6 +315,43 @@ class Orbit(Presentable):
         )
 
 
+def check_orbit(n: int, max_steps: int, ceiling: int | None = None) -> None:
+    """Refuse an :func:`orbit` that cannot finish within the limits (:class:`InputError`, one line).
+
+    ``|n|`` has at most :data:`~cyclewright.cycles.limits.MAX_START_DIGITS`
+    digits; ``max_steps`` is 1 ..
+    :data:`~cyclewright.cycles.limits.MAX_STEP_CAP`; ``ceiling`` is at
+    least ``|n|``; the values the orbit may hold
+    (:func:`orbit_memory_estimate`) fit the memory budget. The limits on
+    size are lifted inside :func:`~cyclewright.cycles.limits.lift_limits`.
+
+    >>> check_orbit(27, 1000)
+    >>> check_orbit(7, 10**8, None)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: an orbit of 100000000 steps with values up to |N| * 10^1000 could need about 48.0 GB of memory, more than the 2.1 GB allowed; lower the step cap (max_steps, --max-steps) or the ceiling
+    """
+    if int_digits(n) > MAX_START_DIGITS and abs(n) > 10**MAX_START_DIGITS and not limits_lifted():
+        raise InputError(
+            f"the start must have at most {MAX_START_DIGITS} digits "
+            f"(|n| <= 10^{MAX_START_DIGITS}), got {short_int(n)}"
+        )
+    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP, liftable=True)
+    if ceiling is not None:
+        check_range(ceiling, "ceiling", minimum=0)
+        if ceiling < abs(n):
+            raise InputError(
+                f"the ceiling {short_int(ceiling)} is below |N| = {short_int(abs(n))}: "
+                "give a larger ceiling, or none"
+            )
+    check_memory(
+        orbit_memory_estimate(max_steps, ceiling if ceiling is not None else default_ceiling(n)),
+        f"an orbit of {max_steps} steps with values up to "
+        + (short_int(ceiling) if ceiling is not None else f"|N| * 10^{DEFAULT_GROWTH_DIGITS}"),
+        hint="lower the step cap (max_steps, --max-steps) or the ceiling",
+    )
+
+
 def orbit(
     m: Map | str, n: int, max_steps: int = DEFAULT_MAX_STEPS, ceiling: int | None = None
 ) -> Orbit:
@@ -346,12 +394,9 @@ def orbit(
     m = as_map(m)
     if isinstance(n, bool) or not isinstance(n, int):
         raise TypeError(f"orbit start must be an integer, got {n!r}")
-    if max_steps < 1:
-        raise ValueError("max_steps must be at least 1")
+    check_orbit(n, max_steps, ceiling)
     if ceiling is None:
         ceiling = default_ceiling(n)
-    elif ceiling < abs(n):
-        raise ValueError("the ceiling is below |start|")
     d = m.divisor
     step = m.step
 

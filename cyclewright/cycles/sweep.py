@@ -17,6 +17,7 @@ References
 
 from __future__ import annotations
 
+import itertools
 import math
 import time
 from collections.abc import Iterable, Sequence
@@ -32,6 +33,14 @@ from .counting import (
 )
 from .errors import InputError
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
+from .limits import (
+    MAX_EXTRA_LENGTHS,
+    MAX_TYPE_LENGTH,
+    check_members,
+    check_range,
+    limits_lifted,
+    short_int,
+)
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
@@ -423,13 +432,32 @@ def sweep(
     docstring.
     """
     m = as_map(m)
+    if isinstance(odd, range):
+        check_members(odd, "the range of x (--odd)", MAX_TYPE_LENGTH)
+    elif not limits_lifted():  # any iterable: never more than the limit taken in
+        odd = list(itertools.islice(odd, MAX_TYPE_LENGTH + 1))
+        if len(odd) > MAX_TYPE_LENGTH:
+            raise InputError(
+                f"the range of x (--odd) has more than {MAX_TYPE_LENGTH} members; "
+                f"at most {MAX_TYPE_LENGTH} are taken in one run"
+            )
     xs = sorted(set(int(v) for v in odd))
     if not xs:
         raise InputError("the range of x is empty")
     if xs[0] < 0:
-        raise InputError(f"x must be at least 0, got {xs[0]}")
+        raise InputError(f"x must be at least 0, got {short_int(xs[0])}")
+    check_range(
+        xs[-1],
+        "the largest x (--odd)",
+        maximum=MAX_TYPE_LENGTH,
+        why="the figures of a type have about k digits each",
+        liftable=True,
+    )
     if isinstance(extra_lengths, bool) or not isinstance(extra_lengths, int) or extra_lengths < 0:
         raise InputError(f"extra lengths must be an integer >= 0, got {extra_lengths!r}")
+    check_range(
+        extra_lengths, "extra_lengths (--extra-lengths)", maximum=MAX_EXTRA_LENGTHS, liftable=True
+    )
     parse_side(side)
     limit = _check_limit(limit)
     d = m.divisor

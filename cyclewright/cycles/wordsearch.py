@@ -49,10 +49,12 @@ from cyclewright.maps import Map, as_map
 from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .itinerary import primitive_root
+from .limits import MAX_ITINERARY_WORK, limits_lifted, short_int
 from .solver import cycle_representative, solve
 
 __all__ = [
     "integral_cycles_by_itinerary",
+    "itinerary_work",
     "words_table",
     "following_class",
     "DegenerateMap",
@@ -209,6 +211,37 @@ class WordSearchResult:
         return tuple(sorted(vals, key=lambda v: (v < 0, abs(v))))
 
 
+def itinerary_work(m: Map | str, max_length: int, stop_above: int | None = None) -> int:
+    """Half-words the itinerary method joins up to ``max_length`` (for feasibility checks).
+
+    For each length ``k`` the join pairs every product class of the prefixes
+    (length ``floor(k/2)``) with every class of the suffixes, so the work is
+    ``sum_k (classes_j * d^i + classes_i * d^j)``. With ``stop_above`` the sum stops
+    as soon as it exceeds ``stop_above`` (the answer is then some value above it),
+    so the estimate itself costs little for any length.
+
+    >>> from cyclewright import maps
+    >>> itinerary_work(maps.get("3x+1"), 4)
+    50
+    >>> itinerary_work(maps.get("3x+1"), 10**9, stop_above=10**8) > 10**8
+    True
+    """
+    m = as_map(m)
+    d = m.divisor
+    classes = [1]
+    products = {1}
+    total = 0
+    for k in range(1, max_length + 1):
+        i, j = k // 2, k - k // 2
+        while len(classes) <= j:
+            products = {p * a for p in products for a in m.multipliers}
+            classes.append(len(products))
+        total += classes[j] * d**i + classes[i] * d**j
+        if stop_above is not None and total > stop_above:
+            break
+    return total
+
+
 def integral_cycles_by_itinerary(m: Map | str, max_length: int) -> WordSearchResult:
     """Every integer cycle of ``m`` with length at most ``max_length``, from itineraries.
 
@@ -227,6 +260,10 @@ def integral_cycles_by_itinerary(m: Map | str, max_length: int) -> WordSearchRes
     DegenerateMap
         When a word with ``d^k = A`` and ``B = 0`` exists (infinitely many
         fixed points follow it).
+    InputError
+        When the estimated work (:func:`itinerary_work`) passes
+        :data:`~cyclewright.cycles.limits.MAX_ITINERARY_WORK` (not checked
+        inside :func:`~cyclewright.cycles.limits.lift_limits`).
 
     Examples
     --------
@@ -242,8 +279,17 @@ def integral_cycles_by_itinerary(m: Map | str, max_length: int) -> WordSearchRes
     1974 (meet in the middle). See the module docstring.
     """
     m = as_map(m)
+    if isinstance(max_length, bool) or not isinstance(max_length, int):
+        raise InputError(f"the maximal length must be an integer, got {max_length!r}")
     if max_length < 1:
         raise InputError(f"the maximal length must be at least 1, got {max_length}")
+    if not limits_lifted():
+        work = itinerary_work(m, max_length, stop_above=MAX_ITINERARY_WORK)
+        if work > MAX_ITINERARY_WORK:
+            raise InputError(
+                f"{m.label}: the itineraries up to length {short_int(max_length)} need more than "
+                f"{MAX_ITINERARY_WORK:.0e} half-words joined (the limit); lower the length"
+            )
     d = m.divisor
     half = (max_length + 1) // 2
     tables = [words_table(m, t) for t in range(half + 1)]

@@ -4,12 +4,18 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.census import MAX_SCAN, census, census_family, parse_family, plan_census
+from cyclewright.cycles.census import (
+    MAX_SCAN,
+    census,
+    census_family,
+    check_census_length,
+    parse_family,
+    plan_census,
+)
 from cyclewright.cycles.certificate import write_certificate
-from cyclewright.cycles.largest_bound import continued_fraction_applies
 
 from ..errors import BadInput
-from ..numbers import MAX_CENSUS_LENGTH, MAX_CF_CENSUS_LENGTH
+from ..numbers import MAX_CF_CENSUS_LENGTH
 from ..options import (
     IntExpr,
     all_offsets_option,
@@ -103,22 +109,9 @@ def census_cmd(
     as_json,
 ):
     """All integer cycles of MAP with length at most K, certified complete."""
-    # Where the continued fraction gives the largest bound (two-branch halving
-    # maps) planning does not grow with K, so K may reach MAX_CF_CENSUS_LENGTH
-    # and the plan's own estimate decides (refusal beyond --max-scan); every
-    # other map, method and family keeps the tighter limit.
+    # The option's range is the widest K any census takes; the API refuses K
+    # beyond the limit of the map, method or family (check_census_length).
     K = parse_int(max_length, "--max-length", minimum=1, maximum=MAX_CF_CENSUS_LENGTH)
-
-    def limit_general(what: str) -> None:
-        if K > MAX_CENSUS_LENGTH:
-            parse_int(
-                max_length,
-                "--max-length",
-                minimum=1,
-                maximum=MAX_CENSUS_LENGTH,
-                why=f"{what}: planning alone grows with K; the scans it needs are far beyond "
-                "any --max-scan",
-            )
 
     kw = {
         "store": resolve_store(store, no_store),
@@ -127,14 +120,13 @@ def census_cmd(
         "method": method,
     }
     if "k" in map_spec.replace(" ", "").lower().split("x")[-1]:
-        limit_general("a family")
+        check_census_length(None, K)
         _family(map_spec, offsets, K, side, all_offsets, cert_path, kw, as_json)
         return
     if offsets is not None:
         raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
-    if not (continued_fraction_applies(m) and method in ("auto", "bound-scan")):
-        limit_general(f"{m.label} with the {method} method")
+    check_census_length(m, K, method)
     if plan_only:
         _plan(m, K, side, method, workers, max_scan, as_json)
         return

@@ -7,14 +7,13 @@ import sys
 import click
 
 from cyclewright.cycles.census import default_family_members, parse_family
-from cyclewright.cycles.compare import compare
+from cyclewright.cycles.compare import check_compare, compare
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
 from ..files import check_figure_path, check_output
-from ..numbers import MAX_CENSUS_LENGTH
 from ..options import (
     all_offsets_option,
     csv_option,
@@ -25,7 +24,6 @@ from ..options import (
     max_steps_option,
     odd_option,
     offsets_option,
-    parse_int,
     plot_option,
     resolve_map,
     resolve_store,
@@ -120,13 +118,11 @@ def compare_cmd(
     Without --max-length, --to and --odd: census length 20, scan 1..10^5 on both
     sides, counting figures at x = 20.
     """
-    if odd is not None and odd < 1:
-        raise BadInput("--odd must be at least 1")
-    if max_length is not None:
-        parse_int(max_length, "--max-length", minimum=1, maximum=MAX_CENSUS_LENGTH)
-    if to is not None:
-        parse_int(to, "--to", minimum=1, maximum=2**62)
     given = {"max_length": max_length, "to": to, "odd": odd}
+    # the API's limits, refused before any output is checked or map resolved
+    check_compare(
+        **{k: v for k, v in given.items() if v is not None}, max_steps=max_steps, workers=workers
+    )
     check_output(csv_path, "--csv")
     check_figure_path(plot_path, "--plot")
     ms = resolve_maps(map_specs, offsets, map_files, all_offsets)

@@ -5,9 +5,9 @@ from __future__ import annotations
 import click
 
 from cyclewright.cycles.floors import floor
+from cyclewright.cycles.limits import MAX_NEXT_TYPES
 from cyclewright.cycles.sides import PerSide
 
-from ..errors import BadInput
 from ..options import (
     IntExpr,
     json_option,
@@ -17,10 +17,7 @@ from ..options import (
     resolve_map,
     side_option,
 )
-from ..render import emit_json, int_digits, show_table, stdout_console
-
-# The floor's work grows with the digits of N (continued fraction terms, precision).
-_MAX_FLOOR_DIGITS = 1000
+from ..render import emit_json, show_table, stdout_console
 
 
 @click.command(
@@ -49,7 +46,7 @@ _MAX_FLOOR_DIGITS = 1000
     "next_types",
     default=5,
     show_default=True,
-    type=IntExpr(minimum=0, maximum=1000),
+    type=IntExpr(minimum=0, maximum=MAX_NEXT_TYPES),
     metavar="J",
     help="How many further possible (length, odd steps) types to list.",
 )
@@ -69,11 +66,6 @@ def floor_cmd(map_spec, verified_to, side, next_types, map_files, as_json) -> No
     """
     m = resolve_map(map_spec, map_files)
     n = verified_to
-    if int_digits(n) > _MAX_FLOOR_DIGITS:
-        raise BadInput(
-            f"--verified-to has {int_digits(n)} digits; the floor accepts at most "
-            f"{_MAX_FLOOR_DIGITS} (verified ranges in practice are below 10^30)"
-        )
     got = floor(m, n, side, next_types=next_types)
     if isinstance(got, PerSide):
         results = list(got)

@@ -6,11 +6,11 @@ from pathlib import Path
 
 import click
 
-from cyclewright.cycles.graph import PLOT_NODE_LIMIT, functional_graph
+from cyclewright.cycles.graph import PLOT_NODE_LIMIT, check_graph, functional_graph
 
 from ..errors import BadInput
 from ..files import check_output
-from ..numbers import MAX_START_DIGITS, quote
+from ..numbers import quote
 from ..options import (
     ceiling_option,
     force_option,
@@ -30,12 +30,6 @@ from ..render import emit_json, short, show_table, stdout_console
 
 #: File name endings --plot understands (the format follows the ending).
 PLOT_SUFFIXES = (".png", ".svg", ".pdf")
-
-#: Ranges with more starts are refused before the graph is built (memory).
-MAX_GRAPH_STARTS = 500_000
-
-#: Rough size of one node with its attributes and edge in memory (networkx).
-GRAPH_BYTES_PER_NODE = 2200
 
 
 @click.command(
@@ -85,20 +79,9 @@ def graph_cmd(
     basins count the starts that fall into each.
     """
     m = resolve_map(map_spec, map_files)
-    n_to, n_from, steps, ceil = to, start, max_steps, ceiling
-    if n_to < n_from:
-        raise BadInput(f"empty range: --from {short(n_from, 20)} is above --to {short(n_to, 20)}")
+    # the API's limits (range, starts, step cap, ceiling), refused before anything is built
+    n_to, n_from, steps, ceil = check_graph(to, start, side, max_steps, ceiling)
     total = (n_to - n_from + 1) * (2 if side == "both" else 1)
-    # every start is a node: refuse what cannot be held or drawn before building anything
-    if total > MAX_GRAPH_STARTS:
-        raise BadInput(
-            f"{short(total, 20)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
-            f"(about {GRAPH_BYTES_PER_NODE} bytes a node in memory); use a smaller range"
-        )
-    if ceil is not None and ceil > 10**MAX_START_DIGITS:
-        raise BadInput(f"--ceiling must be at most 10^{MAX_START_DIGITS}, got {short(ceil, 20)}")
-    if ceil is not None and ceil < n_to:
-        raise BadInput(f"--ceiling {short(ceil, 20)} is below --to {short(n_to, 20)}")
     if plot_path is not None and total > PLOT_NODE_LIMIT:
         raise BadInput(
             f"{total} starts give at least {total} nodes; --plot draws at most "

@@ -4,16 +4,10 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.orbit import (
-    DEFAULT_GROWTH_DIGITS,
-    default_ceiling,
-    orbit,
-    orbit_memory_estimate,
-)
+from cyclewright.cycles.orbit import DEFAULT_GROWTH_DIGITS, check_orbit, orbit
 
-from ..errors import BadInput
 from ..files import check_figure_path
-from ..numbers import MAX_START_DIGITS, check_memory
+from ..numbers import MAX_START_DIGITS
 from ..options import (
     ceiling_option,
     force_option,
@@ -60,21 +54,8 @@ def orbit_cmd(
     limit = 10**MAX_START_DIGITS
     n = parse_int(start, "N", minimum=-limit, maximum=limit)
     ceil = ceiling
-    if ceil is not None and ceil < abs(n):
-        raise BadInput(
-            f"--ceiling {short(ceil, 20)} is below |N| = {short(abs(n), 20)}: "
-            "give a larger --ceiling, or 'none'"
-        )
+    check_orbit(n, max_steps, ceil)  # the API's limits, refused before any file is touched
     check_figure_path(plot_path, "--plot", force)
-    try:
-        check_memory(
-            orbit_memory_estimate(max_steps, ceil if ceil is not None else default_ceiling(n)),
-            f"an orbit of {max_steps} steps with values up to "
-            + (short(ceil, 20) if ceil is not None else f"|N| * 10^{DEFAULT_GROWTH_DIGITS}"),
-            hint="lower --max-steps or --ceiling",
-        )
-    except ValueError as exc:
-        raise BadInput(str(exc)) from None
     o = orbit(m, n, max_steps=max_steps, ceiling=ceil)
     if plot_path:
         from ..plots import plot_orbit

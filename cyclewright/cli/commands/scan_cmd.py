@@ -6,7 +6,6 @@ import click
 
 from cyclewright.cycles.scan.run import scan
 
-from ..errors import BadInput
 from ..numbers import MAX_CHUNKS, MAX_STEP_CAP
 from ..options import (
     IntExpr,
@@ -27,7 +26,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, short, show_table, stdout_console
+from ..render import emit_json, show_table, stdout_console
 
 _EPILOG = """\b
 Examples:
@@ -94,16 +93,6 @@ def scan_cmd(
 ) -> None:
     """Every integer cycle of MAP whose minimum lies in [M, N], by an exact scan of the starts."""
     m = resolve_map(map_spec, map_files)
-    if chunk_size is not None and to is not None:
-        starts = max(to - start + 1, 0) * (2 if side == "both" else 1)
-        chunks = -(-starts // chunk_size)
-        if chunks > MAX_CHUNKS:
-            raise BadInput(
-                f"--chunk-size {chunk_size} cuts {short(starts, 20)} starts into "
-                f"{short(chunks, 20)} chunks; at most {MAX_CHUNKS} are allowed (each costs "
-                f"bookkeeping and a store row): use --chunk-size "
-                f"{-(-starts // MAX_CHUNKS)} or more, or leave it out"
-            )
     with progress_display() as show_progress:
         result = scan(
             m,

@@ -9,6 +9,7 @@ import click
 
 from cyclewright.cycles.counting import DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
+from cyclewright.cycles.limits import MAX_EXTRA_LENGTHS
 from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
@@ -57,7 +58,7 @@ __all__ = ["COMMANDS"]
     "extra",
     default=0,
     show_default=True,
-    type=IntExpr(minimum=0, maximum=1000),
+    type=IntExpr(minimum=0, maximum=MAX_EXTRA_LENGTHS),
     help="Further lengths per x beyond the critical one.",
 )
 @side_option

@@ -15,7 +15,15 @@ from cyclewright.maps import Map, as_map
 
 from ..errors import InputError, StoreError
 from ..integer_cycle import IntegerCycle
-from ..limits import DEFAULT_MAX_STEPS
+from ..limits import (
+    DEFAULT_MAX_STEPS,
+    MAX_CHUNKS,
+    MAX_STEP_CAP,
+    check_range,
+    check_workers,
+    limits_lifted,
+    short_int,
+)
 from ..progress import ProgressCallback, report
 from ..sides import DEFAULT_SIDE, SIDES, Side, sides_of
 from .chunks import (
@@ -44,6 +52,7 @@ _CLAIM_POLL = 0.5  # seconds between looks at chunks another run is computing
 __all__ = [
     "scan",
     "check_store_for_maps",
+    "check_chunks",
 ]
 
 
@@ -104,6 +113,32 @@ def _prepare_parent(m: Map, sides, cap: int, to: int) -> Callable[[], None]:
             _side_tools(m, s, cap, to)
 
     return prepare
+
+
+def check_chunks(starts_per_side: int, n_sides: int, chunk_size: int) -> int:
+    """The number of chunks ``chunk_size`` cuts a scan into; :class:`InputError` past the limit.
+
+    At most :data:`~cyclewright.cycles.limits.MAX_CHUNKS` chunks (each costs
+    bookkeeping and a store row); lifted inside
+    :func:`~cyclewright.cycles.limits.lift_limits`.
+
+    >>> check_chunks(10**6, 1, 1000)
+    1000
+    >>> check_chunks(10**5, 1, 1)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: chunk_size (--chunk-size) 1 cuts 100000 starts into 100000 chunks; at most 10000 are allowed (each costs bookkeeping and a store row): use a chunk size of 10 or more, or leave it out
+    """
+    starts = max(starts_per_side, 0) * n_sides
+    chunks = -(-starts // chunk_size)
+    if chunks > MAX_CHUNKS and not limits_lifted():
+        raise InputError(
+            f"chunk_size (--chunk-size) {chunk_size} cuts {short_int(starts)} starts into "
+            f"{short_int(chunks)} chunks; at most {MAX_CHUNKS} are allowed (each costs "
+            f"bookkeeping and a store row): use a chunk size of "
+            f"{-(-starts // MAX_CHUNKS)} or more, or leave it out"
+        )
+    return chunks
 
 
 def scan(
@@ -216,20 +251,16 @@ def scan(
         )
     sides = sides_of(side)
     if workers is not None:
-        workers = _as_int(workers, "workers")
-        if workers < 1:
-            raise InputError(f"workers must be at least 1, got {workers}")
+        workers = check_workers(_as_int(workers, "workers"))
     max_steps = _as_int(max_steps, "max_steps")
-    if max_steps < 1:
-        raise InputError(f"max_steps must be at least 1, got {max_steps}")
+    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP)
     if max_cycle_length is not None:
         max_cycle_length = _as_int(max_cycle_length, "max_cycle_length")
-        if max_cycle_length < 1:
-            raise InputError(f"max_cycle_length must be at least 1, got {max_cycle_length}")
+        check_range(max_cycle_length, "max_cycle_length", minimum=1, maximum=MAX_STEP_CAP)
     if chunk_size is not None:
         chunk_size = _as_int(chunk_size, "chunk_size")
-        if chunk_size < 1:
-            raise InputError(f"chunk_size must be at least 1, got {chunk_size}")
+        check_range(chunk_size, "chunk_size", minimum=1)
+        check_chunks(to - start + 1, len(sides), chunk_size)
     if executor not in ("local", "dask"):
         raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
     cap = max_cycle_length if max_cycle_length is not None else max_steps
