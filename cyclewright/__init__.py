@@ -45,6 +45,7 @@ _EXPORTS = {
     "PerSide": "cycles.sides",
     "DEFAULT_MAX_STEPS": "cycles.limits",
     "DEFAULT_CEILING": "cycles.limits",
+    "lift_limits": "cycles.limits",
     "ProgressEvent": "cycles.progress",
     # itineraries and exact cycles
     "parse_itinerary": "cycles.itinerary",

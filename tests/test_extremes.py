@@ -208,3 +208,33 @@ def test_itinerary_work_estimate_stops_at_its_cap():
     from cyclewright.cycles.census import itinerary_work
 
     assert itinerary_work(maps.get("3x+1"), 10**12, stop_above=10**6) > 10**6
+
+
+def test_census_beyond_max_scan_is_refused_without_measuring(capsys):
+    # K = 10^9 of 3x+1 is within the continued-fraction limit; the scan it needs
+    # (about 1.25 * 10^18 starts) is far beyond --max-scan, so the plan refuses it at
+    # once with its estimate at the nominal rate (no chunk near 10^18 is measured)
+    code, out, err = run(["census", "3x+1", "--max-length", "10^9"], capsys)
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert "1,252,079,477,257,659,530" in err and "beyond the limit of" in err
+
+
+def test_compare_with_a_census_beyond_its_scan_keeps_the_other_columns(capsys):
+    # compare's census of 3x+1 up to K = 10^6 needs a scan of about 10^12 starts:
+    # refused at once inside compare, its row says so, every other figure is there
+    args = ["compare", "3x+1", "--max-length", "10^6", "--to", "1000", "--no-store"]
+    code, out, err = run(args, capsys)
+    assert code == 0, err
+    assert "3x+1: no census:" in out and "run census for more" in out
+    # the delay record of 1..1000 is 871, 178 steps of n -> 3n+1, n/2 (OEIS A006877 lists
+    # 871 as a record setter; 178 from memory); with (3n+1)/2 as one step its 65 odd
+    # steps merge: 178 - 65 = 113 (common practice, no source)
+    assert "113 at 871" in out
+
+
+def test_graph_of_5x1_over_a_large_range_stops_at_the_node_limit(capsys):
+    from cyclewright.cycles.limits import MAX_GRAPH_NODES
+
+    code, out, err = run(["graph", "5x+1", "--to", "500000"], capsys)
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert f"at most {MAX_GRAPH_NODES} nodes" in err and "nothing was written" in err

@@ -489,6 +489,7 @@ def plan_census(
     workers: int | None = None,
     rate: float | None = None,
     progress: ProgressCallback | None = None,
+    max_scan: int | None = None,
 ) -> CensusPlan:
     """The plan of a census before it runs: per side the bound, the range to scan, the time.
 
@@ -504,6 +505,10 @@ def plan_census(
         Starts per second per worker; measured on this machine (one chunk
         near the top of the range) when not given and the scan has at
         least :data:`MEASURE_ABOVE` starts, else nominal.
+    max_scan : int, optional
+        The scan limit of the census this plan is for: a side beyond it is
+        refused anyway, so the rate is not measured (nominal; measuring one
+        chunk near 10^18 takes half a minute) -- the refusal comes at once.
     progress : callable, optional
         Receives :class:`~cyclewright.cycles.progress.ProgressEvent` values
         (phase ``"plan"``).
@@ -568,6 +573,9 @@ def plan_census(
     n_workers = workers or os.cpu_count() or 1
     if rate is not None:
         source = "rate given"
+    elif max_scan is not None and any((p.scan_to or 0) > max_scan for p in plans.values()):
+        rate = _nominal_rate(m)
+        source = "nominal rate (not measured: the scan is beyond max_scan)"
     elif starts >= MEASURE_ABOVE:
         top = max(plans.values(), key=lambda p: p.scan_to or 0)
         report(progress, "plan", 0, None, "", "measuring the scan rate on one chunk")
@@ -691,7 +699,14 @@ def census(
     if method == "necklaces":
         return _census_by_necklaces(m, K, sides, t0)
     plan = plan_census(
-        m, K, side=side, method=method, workers=workers, rate=rate, progress=progress
+        m,
+        K,
+        side=side,
+        method=method,
+        workers=workers,
+        rate=rate,
+        progress=progress,
+        max_scan=max_scan,
     )
     if any((p.scan_to or 0) > max_scan for p in plan.plans.values()):
         raise InputError(_refusal(plan, max_scan))

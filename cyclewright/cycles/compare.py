@@ -49,6 +49,8 @@ from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
 from .limits import (
     DEFAULT_MAX_STEPS,
     MAX_CENSUS_LENGTH,
+    MAX_COMPARE_SCAN,
+    MAX_COMPARE_TO,
     MAX_EXCURSION_START,
     MAX_STEP_CAP,
     MAX_TYPE_LENGTH,
@@ -641,7 +643,8 @@ def check_compare(
     """Refuse :func:`compare` parameters beyond the limits (:class:`InputError`, one line).
 
     The census length is 1 .. :data:`~cyclewright.cycles.limits.MAX_CENSUS_LENGTH`,
-    the scan end ``to`` 1 .. 2^62, the counting ``odd`` 1 ..
+    the scan end ``to`` 1 .. :data:`~cyclewright.cycles.limits.MAX_COMPARE_TO`
+    (and never beyond 2^62, the compiled walk's range), the counting ``odd`` 1 ..
     :data:`~cyclewright.cycles.limits.MAX_TYPE_LENGTH`, ``max_steps`` 1 ..
     :data:`~cyclewright.cycles.limits.MAX_STEP_CAP`.
 
@@ -650,6 +653,10 @@ def check_compare(
     Traceback (most recent call last):
     ...
     cyclewright.cycles.errors.InputError: odd (--odd) must be at most 100000, got 1000000000
+    >>> check_compare(to=2**62)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: to (--to) must be at most 10^9, got 4611686018427387904 (compare walks every start of 1..to on both sides three times (excursions, scan, records): about a minute per 10^8 starts and map)
     """
     check_range(
         max_length,
@@ -659,7 +666,16 @@ def check_compare(
         why="planning alone grows with K; the scans it needs are far beyond any max_scan",
         liftable=True,
     )
-    check_range(to, "to (--to)", minimum=1, maximum=MAX_EXCURSION_START)
+    check_range(
+        to,
+        "to (--to)",
+        minimum=1,
+        maximum=MAX_COMPARE_TO,
+        why="compare walks every start of 1..to on both sides three times (excursions, "
+        "scan, records): about a minute per 10^8 starts and map",
+        liftable=True,
+    )
+    check_range(to, "to (--to)", maximum=MAX_EXCURSION_START)
     check_range(odd, "odd (--odd)", minimum=1, maximum=MAX_TYPE_LENGTH, liftable=True)
     check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP)
     check_workers(workers)
@@ -676,6 +692,7 @@ def compare(
     workers: int | None = None,
     count_limit: int = 10**5,
     progress: ProgressCallback | None = None,
+    max_scan: int = MAX_COMPARE_SCAN,
 ) -> Comparison:
     """Profiles of several maps with the same parameters.
 
@@ -696,6 +713,11 @@ def compare(
         Passed to the census' scan; ``store`` may be a directory (one store per map).
     count_limit : int
         Necklace enumeration limit.
+    max_scan : int
+        Largest scan a member's census may run (default
+        :data:`~cyclewright.cycles.limits.MAX_COMPARE_SCAN`); a census
+        beyond it is refused at once and its row says so (run ``census``
+        for it).
     progress : ProgressCallback, optional
         Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
         (phase ``"compare"``, unit ``"maps"``, the map and stage as detail)
@@ -735,10 +757,14 @@ def compare(
 
         say(f"census up to length {max_length}")
         try:
-            c = census(m, max_length, side="both", store=store, workers=workers)
+            c = census(m, max_length, side="both", store=store, workers=workers, max_scan=max_scan)
             cnote = ""
         except InputError as exc:
             c, cnote = None, str(exc)
+            if "beyond the limit of" in cnote:
+                cnote += (
+                    f" (compare's census scans at most {max_scan:,} starts: run census for more)"
+                )
         say(f"excursions and scan to {to}")
         exc_ = {}
         met = {}

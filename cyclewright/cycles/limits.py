@@ -54,6 +54,8 @@ __all__ = [
     "MAX_CHUNKS",
     "MAX_TYPE_LENGTH",
     "MAX_EXCURSION_START",
+    "MAX_COMPARE_TO",
+    "MAX_COMPARE_SCAN",
     "MAX_EXTRA_LENGTHS",
     "MAX_NEXT_TYPES",
     "MAX_GRAPH_STARTS",
@@ -159,6 +161,14 @@ MAX_CHUNKS = 10_000
 #: Largest start of the excursions and of compare's scan (the compiled walk's
 #: int64 values get one bit of headroom).
 MAX_EXCURSION_START = 2**62
+
+#: Largest scan end of ``compare`` (it walks 1..to on both sides three times:
+#: excursions, scan, records; about a minute per 10^8 starts and map).
+MAX_COMPARE_TO = 10**9
+
+#: Largest scan a census inside ``compare`` runs (a few seconds for a
+#: contracting map); beyond it the census is refused and its row says so.
+MAX_COMPARE_SCAN = 10**10
 
 #: Largest type length k (count) and odd-step range end (sweep, compare's odd).
 MAX_TYPE_LENGTH = 100_000

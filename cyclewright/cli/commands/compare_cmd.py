@@ -196,6 +196,8 @@ def compare_cmd(
         )
     )
     for p in cmp.profiles:
+        if p.census is None and p.census_note:
+            con.print(f"{p.map.label}: no census: {p.census_note}", highlight=False)
         if p.predictions is not None:
             con.print(show_table(p.predictions.table()))
     if any(r.get("rho_assumes") and "fails" in r["rho_assumes"] for r in rows):

@@ -1,0 +1,206 @@
+"""The API refuses work beyond its limits, quickly and in one line (no MemoryError, no hang).
+
+Every case calls a public function of the API with an extreme input, as a
+notebook user could, and expects :class:`cyclewright.InputError` (or the
+itinerary parser's own input error) with the one-line message of
+:mod:`cyclewright.cycles.limits`. The cases run in one child process with
+its address space capped (4 GiB) and an alarm per case (60 s): a limit that
+stopped working ends as a failed case, never as a machine out of memory or
+a hung suite. The limits and the rule are the project's own (docs/limits.md;
+common practice, no source). No assertion depends on machine speed.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+import textwrap
+
+import pytest
+
+CHILD = textwrap.dedent(
+    r"""
+    import json, resource, signal, sys
+    resource.setrlimit(resource.RLIMIT_AS, (4 * 2**30, 4 * 2**30))
+
+    import cyclewright as cw
+    from cyclewright.cycles import graph as graph_module
+    from cyclewright.cycles.census import census_family
+    from cyclewright.cycles.wordsearch import integral_cycles_by_itinerary
+
+    def no_ceiling_graph_small_budget():
+        # the node and value bound of a graph whose orbits escape without a ceiling,
+        # with the budget scaled down to 64 MiB (the mechanism, not the machine's memory)
+        graph_module.MEMORY_BUDGET = 2**26
+        try:
+            return cw.functional_graph("5x+1", 10, ceiling=None, max_steps=10**9)
+        finally:
+            graph_module.MEMORY_BUDGET = cw.cycles.limits.MEMORY_BUDGET
+
+    CASES = {
+        "census-K-10^30": lambda: cw.census("3x+1", 10**30),
+        "census-K-10^9-max-scan": lambda: cw.census("3x+1", 10**9, rate=1e9, store=False),
+        "census-K-2*10^6-general": lambda: cw.census("mod3-4x", 2 * 10**6),
+        "census-K-10^7-itineraries": lambda: cw.census("3x+1", 10**7, method="itineraries"),
+        "plan-K-10^12": lambda: cw.cycles.census.plan_census("3x+1", 10**12),
+        "census-workers-256": lambda: cw.census("3x+1", 5, workers=256, store=False),
+        "family-offsets-10^30": lambda: census_family("3x+k", range(1, 10**30), 5),
+        "family-K-2*10^6": lambda: census_family("3x+k", range(1, 4), 2 * 10**6),
+        "orbit-start-10^10^5": lambda: cw.orbit("3x+1", 10**10**5),
+        "orbit-memory": lambda: cw.orbit("5x+1", 7, max_steps=10**8),
+        "orbit-max-steps-10^30": lambda: cw.orbit("3x+1", 7, max_steps=10**30),
+        "count-length-10^7": lambda: cw.count("3x+1", 10**7, 10**6),
+        "count-content-10^7": lambda: cw.count("3x+1", content=(9 * 10**6, 10**6)),
+        "sweep-range-10^30": lambda: cw.sweep("3x+1", range(1, 10**30)),
+        "sweep-generator": lambda: cw.sweep("3x+1", (x for x in range(10**30))),
+        "sweep-x-10^6": lambda: cw.sweep("3x+1", range(10**6, 10**6 + 2)),
+        "sweep-extra-10^6": lambda: cw.sweep("3x+1", range(1, 3), 10**6),
+        "scan-to-10^30": lambda: cw.scan("3x+1", 10**30, store=False),
+        "scan-chunk-size-1": lambda: cw.scan("3x+1", 10**5, chunk_size=1, store=False),
+        "scan-max-steps-10^30": lambda: cw.scan("3x+1", 100, max_steps=10**30, store=False),
+        "scan-workers-256": lambda: cw.scan("3x+1", 100, workers=256, store=False),
+        "graph-to-10^30": lambda: cw.functional_graph("3x+1", 10**30),
+        "graph-ceiling-10^2000": lambda: cw.functional_graph("3x+1", 10, ceiling=10**2000),
+        "graph-escaping-5x+1": lambda: cw.functional_graph("5x+1", 100_000),
+        "graph-no-ceiling": no_ceiling_graph_small_budget,
+        "solve-10^7-letters": lambda: cw.solve("3x+1", "1" * 10**7),
+        "solve-repeat-10^6": lambda: cw.solve("3x+1", "1^1000000"),
+        "itineraries-K-10^6": lambda: integral_cycles_by_itinerary("3x+1", 10**6),
+        "floor-10^10^5": lambda: cw.floor("3x+1", 10**10**5),
+        "floor-next-10^6": lambda: cw.floor("3x+1", 100, next_types=10**6),
+        "compare-odd-10^9": lambda: cw.compare(["3x+1"], odd=10**9),
+        "compare-K-10^9": lambda: cw.compare(["3x+1"], max_length=10**9),
+        "compare-to-10^30": lambda: cw.compare(["3x+1"], to=10**30),
+        "excursions-max-steps-10^30": lambda: cw.excursions("3x+1", 100, max_steps=10**30),
+    }
+
+    def alarm(*_):
+        raise TimeoutError("no refusal within the safety timeout")
+
+    signal.signal(signal.SIGALRM, alarm)
+    out = {}
+    for name in sys.argv[1:]:
+        signal.alarm(60)
+        try:
+            CASES[name]()
+            out[name] = {"type": None, "message": ""}
+        except BaseException as exc:
+            out[name] = {"type": type(exc).__name__, "message": str(exc)}
+        finally:
+            signal.alarm(0)
+    print(json.dumps(out))
+    """
+)
+
+# case -> (expected exception type, a piece of its one-line message)
+EXPECTED: dict[str, tuple[str, str]] = {
+    "census-K-10^30": ("InputError", "must be at most 10^9"),
+    "census-K-10^9-max-scan": ("InputError", "beyond the limit of 1,000,000,000,000 starts"),
+    "census-K-2*10^6-general": ("InputError", "must be at most 10^6"),
+    "census-K-10^7-itineraries": ("InputError", "with the itineraries method"),
+    "plan-K-10^12": ("InputError", "must be at most 10^9"),
+    "census-workers-256": ("InputError", "workers must be at most 64"),
+    "family-offsets-10^30": ("InputError", "at most 10000 are taken in one run"),
+    "family-K-2*10^6": ("InputError", "a family: planning alone grows with K"),
+    "orbit-start-10^10^5": ("InputError", "the start must have at most 1000 digits"),
+    "orbit-memory": ("InputError", "of memory, more than the 2.1 GB allowed"),
+    "orbit-max-steps-10^30": ("InputError", "max_steps must be at most 10^9"),
+    "count-length-10^7": ("InputError", "the length k (--length) must be at most 100000"),
+    "count-content-10^7": ("InputError", "the length k (--length) must be at most 100000"),
+    "sweep-range-10^30": ("InputError", "at most 100000 are taken in one run"),
+    "sweep-generator": ("InputError", "more than 100000 members"),
+    "sweep-x-10^6": ("InputError", "the largest x (--odd) must be at most 100000"),
+    "sweep-extra-10^6": ("InputError", "extra_lengths (--extra-lengths) must be at most 1000"),
+    "scan-to-10^30": ("InputError", "beyond what the store schema allows"),
+    "scan-chunk-size-1": ("InputError", "into 100000 chunks; at most 10000"),
+    "scan-max-steps-10^30": ("InputError", "max_steps must be at most 10^9"),
+    "scan-workers-256": ("InputError", "workers must be at most 64"),
+    "graph-to-10^30": ("InputError", "the graph holds at most 500000 starts"),
+    "graph-ceiling-10^2000": ("InputError", "the ceiling must be at most 10^1000"),
+    "graph-escaping-5x+1": ("InputError", "one graph holds at most 933688 nodes"),
+    "graph-no-ceiling": ("InputError", "orbits climbing without a ceiling"),
+    "solve-10^7-letters": ("ItineraryError", "more than 100000 letters"),
+    "solve-repeat-10^6": ("ItineraryError", "more than 100000 letters"),
+    "itineraries-K-10^6": ("InputError", "half-words joined (the limit)"),
+    "floor-10^10^5": ("InputError", "has 100001 digits; the floor accepts at most 1000"),
+    "floor-next-10^6": ("InputError", "next_types (--next) must be at most 1000"),
+    "compare-odd-10^9": ("InputError", "odd (--odd) must be at most 100000"),
+    "compare-K-10^9": ("InputError", "must be at most 10^6"),
+    "compare-to-10^30": ("InputError", "to (--to) must be at most 10^9"),
+    "excursions-max-steps-10^30": ("InputError", "max_steps must be at most 10^9"),
+}
+
+
+@pytest.fixture(scope="module")
+def outcomes(tmp_path_factory):
+    """Every case run once in a child process with capped memory (JSON: type and message)."""
+    import os
+
+    base = tmp_path_factory.mktemp("api-limits")
+    env = dict(os.environ)
+    for var, sub in (
+        ("CYCLEWRIGHT_CONFIG_DIR", "config"),
+        ("CYCLEWRIGHT_DATA_DIR", "data"),
+        ("CYCLEWRIGHT_CACHE_DIR", "cache"),
+    ):
+        env[var] = str(base / sub)
+    res = subprocess.run(
+        [sys.executable, "-c", CHILD, *EXPECTED],
+        capture_output=True,
+        text=True,
+        env=env,
+        timeout=1200,  # a safety net only: every case has its own alarm
+    )
+    assert res.returncode == 0, res.stderr[-2000:]
+    return json.loads(res.stdout.strip().splitlines()[-1])
+
+
+@pytest.mark.parametrize("case", list(EXPECTED))
+def test_api_refuses_in_one_line(outcomes, case):
+    kind, piece = EXPECTED[case]
+    got = outcomes[case]
+    assert got["type"] == kind, got
+    assert piece in got["message"], got["message"][:500]
+    assert "\n" not in got["message"] and len(got["message"]) < 600
+
+
+def test_the_cli_and_the_api_share_the_limits():
+    # one declaration: the CLI's numbers module re-exports the API's limits and checks
+    from cyclewright.cli import numbers
+    from cyclewright.cycles import limits
+
+    for name in ("MAX_CENSUS_LENGTH", "MAX_CF_CENSUS_LENGTH", "MAX_STEP_CAP", "MAX_WORKERS"):
+        assert getattr(numbers, name) is getattr(limits, name)
+    assert numbers.check_range is limits.check_range
+    assert limits.MAX_CF_CENSUS_LENGTH == 10**9 and limits.MAX_CENSUS_LENGTH == 10**6
+
+
+def test_lift_limits_lets_a_caller_through():
+    import cyclewright as cw
+    from cyclewright.cycles.census import check_census_length
+    from cyclewright.cycles.graph import check_graph
+
+    with pytest.raises(cw.InputError):
+        cw.orbit("3x+1", 2**3330, max_steps=5000)
+    with cw.lift_limits():
+        # 2^3330 halves to 1 in 3330 steps, then the cycle 1 -> 2 -> 1 (exact)
+        o = cw.orbit("3x+1", 2**3330, max_steps=5000)
+        assert o.status == "cycle" and o.cycle == (1, 2)
+        assert check_census_length("mod3-4x", 2 * 10**6) == 2 * 10**6
+        assert check_graph(10**6, side="both")[0] == 10**6
+    # the limits are back after the block
+    with pytest.raises(cw.InputError):
+        check_census_length("mod3-4x", 2 * 10**6)
+    # a limit that guards correctness stays: the store holds 64-bit starts
+    with cw.lift_limits(), pytest.raises(cw.InputError, match="store schema"):
+        cw.scan("3x+1", 10**30, store=False)
+
+
+def test_graph_of_an_escaping_map_small_range_still_works():
+    # 5x+1 from 1..20 with ceiling 10^6: cycles with minima 1, 13, 17 (Lagarias 1985,
+    # the three known cycles of 5x+1 on the positive side), 5 starts escape
+    import cyclewright as cw
+
+    g = cw.functional_graph("5x+1", 20, ceiling=10**6)
+    assert g.cycle_minima() == [1, 13, 17] and g.escaped == 5
