@@ -173,6 +173,11 @@ def test_the_cli_and_the_api_share_the_limits():
     for name in ("MAX_CENSUS_LENGTH", "MAX_CF_CENSUS_LENGTH", "MAX_STEP_CAP", "MAX_WORKERS"):
         assert getattr(numbers, name) is getattr(limits, name)
     assert numbers.check_range is limits.check_range
+    # solve's refusal is the project's input error type too
+    from cyclewright.cycles.errors import InputError
+    from cyclewright.cycles.itinerary import ItineraryError
+
+    assert issubclass(ItineraryError, InputError)
     assert limits.MAX_CF_CENSUS_LENGTH == 10**9 and limits.MAX_CENSUS_LENGTH == 10**6
 
 

@@ -26,6 +26,8 @@ from __future__ import annotations
 import re
 from collections.abc import Sequence
 
+from .errors import InputError
+
 __all__ = [
     "ItineraryError",
     "parse_itinerary",
@@ -45,8 +47,8 @@ __all__ = [
 MAX_ITINERARY_LENGTH = 100_000
 
 
-class ItineraryError(ValueError):
-    """A malformed itinerary (one-sentence message)."""
+class ItineraryError(InputError):
+    """A malformed or too long itinerary (one-sentence message; an :class:`InputError`)."""
 
 
 _TOKEN = re.compile(r"^(\d+)(?:\^(\d+))?$")
