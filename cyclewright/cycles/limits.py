@@ -209,6 +209,18 @@ def lift_limits() -> Iterator[None]:
     stores and kernels of the scan) stay. Only for callers who know the
     work they ask for: nothing stops it once started but an interrupt.
 
+    Parameters
+    ----------
+    None
+        The block's extent is the lift's extent; nested blocks and threads
+        (a context variable) keep their own state.
+
+    Returns
+    -------
+    contextmanager
+        Entered with ``with``; the limits are back when the block ends,
+        normally or by an exception.
+
     Examples
     --------
     >>> from cyclewright.cycles.orbit import orbit
@@ -219,6 +231,10 @@ def lift_limits() -> Iterator[None]:
     >>> with lift_limits():
     ...     orbit("3x+1", 2**3330, max_steps=5000).status
     'cycle'
+
+    References
+    ----------
+    None: the limits are the project's own (docs/limits.md).
     """
     token = _LIFTED.set(True)
     try:

@@ -341,8 +341,8 @@ def check_orbit(n: int, max_steps: int, ceiling: int | None = None) -> None:
         check_range(ceiling, "ceiling", minimum=0)
         if ceiling < abs(n):
             raise InputError(
-                f"the ceiling {short_int(ceiling)} is below |N| = {short_int(abs(n))}: "
-                "give a larger ceiling, or none"
+                f"--ceiling {short_int(ceiling)} is below |N| = {short_int(abs(n))}: "
+                "give a larger --ceiling (ceiling), or 'none'"
             )
     check_memory(
         orbit_memory_estimate(max_steps, ceiling if ceiling is not None else default_ceiling(n)),
