@@ -2,7 +2,9 @@
 
 External checks name their sources: OEIS A006877/A006878 (delay records of
 3x+1), A006884/A006885 (path records and their peaks), A060412 (glide record
-holders), A060445 and A126241 (glides of single starts), A006577 (steps to 1).
+holders; their values from memory, OEIS A060413), A060409 (glides of path-record
+holders), A060445 and A126241 (glides of single starts, as distributions and record
+tables), A006577 (steps to 1).
 """
 
 from __future__ import annotations
@@ -49,6 +51,38 @@ A006885 = [
 ]  # fmt: skip
 # OEIS A060412: starts setting records for the dropping time (glide), below 10^6.
 A060412 = [2, 3, 7, 27, 703, 10087, 35655, 270271, 362343, 381727, 626331]
+# The record glides of those starts, 3x+1 and halving steps counted (OEIS A060413 lists
+# them; these values are from memory, the entry's data could not be read here).
+A060413_FROM_MEMORY = [1, 6, 11, 96, 132, 171, 220, 267, 269, 282, 287]
+# OEIS A126241: dropping time of n = 1, 2, ..., 99 under n/2, (3n+1)/2 (a(1) = 0 by convention).
+A126241 = [
+    0, 1, 4, 1, 2, 1, 7, 1, 2, 1, 5, 1, 2, 1, 7, 1, 2, 1, 4, 1, 2, 1, 5, 1, 2, 1, 59, 1, 2, 1,
+    56, 1, 2, 1, 4, 1, 2, 1, 8, 1, 2, 1, 5, 1, 2, 1, 54, 1, 2, 1, 4, 1, 2, 1, 5, 1, 2, 1, 7, 1,
+    2, 1, 54, 1, 2, 1, 4, 1, 2, 1, 51, 1, 2, 1, 5, 1, 2, 1, 8, 1, 2, 1, 4, 1, 2, 1, 5, 1, 2, 1,
+    45, 1, 2, 1, 8, 1, 2, 1, 4,
+]  # fmt: skip
+# OEIS A060445: dropping time of 2n+1 = 1, 3, ..., 185 (3x+1 and halving steps; a(0) = 0).
+A060445 = [
+    0, 6, 3, 11, 3, 8, 3, 11, 3, 6, 3, 8, 3, 96, 3, 91, 3, 6, 3, 13, 3, 8, 3, 88, 3, 6, 3, 8, 3,
+    11, 3, 88, 3, 6, 3, 83, 3, 8, 3, 13, 3, 6, 3, 8, 3, 73, 3, 13, 3, 6, 3, 68, 3, 8, 3, 50, 3,
+    6, 3, 8, 3, 13, 3, 24, 3, 6, 3, 11, 3, 8, 3, 11, 3, 6, 3, 8, 3, 65, 3, 34, 3, 6, 3, 47, 3, 8,
+    3, 13, 3, 6, 3, 8, 3,
+]  # fmt: skip
+# OEIS A060409: dropping times, in the (3x+1)/2 count, of the path-record starts of A006884
+# from 2 on (2, 3, 7, 15, 27, 255, ...).
+A060409 = [
+    1, 4, 7, 7, 59, 13, 40, 23, 81, 61, 70, 65, 54, 72, 65, 59, 127, 105, 110, 59, 72, 164,
+]  # fmt: skip
+
+
+def _running_records(values: dict[int, int]) -> list[tuple[int, int]]:
+    """(start, value) of every start whose value beats all smaller starts'."""
+    out, best = [], -1
+    for s in sorted(values):
+        if values[s] > best:
+            best = values[s]
+            out.append((s, values[s]))
+    return out
 
 
 @pytest.fixture(scope="module")
@@ -77,6 +111,40 @@ def test_glide_records_oeis_a060412(million):
     vals = {r.start: r.value for r in sd.records["full_glide"]}
     assert vals[27] == 96 and vals[3] == 6 and vals[7] == 11  # OEIS A060445
     assert {r.start: r.value for r in sd.records["glide"]}[27] == 59  # OEIS A126241
+
+
+def test_glide_record_values_oeis(million):
+    sd = million.sides["positive"]
+    full = [(r.start, r.value) for r in sd.records["full_glide"]]
+    # OEIS A060412 (holders); values from memory (OEIS A060413 lists them)
+    assert full == list(zip(A060412, A060413_FROM_MEMORY))
+    # the divided record glides of the holders that also set path records (OEIS A006884)
+    # are OEIS A060409's terms: 2 -> 1, 3 -> 4, 7 -> 7, 27 -> 59, 703 -> 81, 270271 -> 164
+    divided = {r.start: r.value for r in sd.records["glide"]}
+    path_glide = dict(zip(A006884[1:], A060409))
+    shared = [s for s in A060412 if s in path_glide]
+    assert shared == [2, 3, 7, 27, 703, 270271]
+    assert [divided[s] for s in shared] == [path_glide[s] for s in shared]  # OEIS A060409
+
+
+def test_glide_distribution_and_records_oeis_a126241_a060445():
+    # OEIS A126241: the divided glides of 1..99, as a distribution and as a record table
+    r = records("3x+1", 99).sides["positive"]
+    glides = dict(enumerate(A126241[1:], start=2))  # a(1) = 0: 1 never drops
+    want: dict[int, int] = {}
+    for g in glides.values():
+        want[g] = want.get(g, 0) + 1
+    assert r.glides == want and r.no_glide == 1  # OEIS A126241
+    assert [(x.start, x.value) for x in r.records["glide"]] == _running_records(glides)
+    # OEIS A060445: the undivided glides of the odd starts 3..185; an even start drops at once
+    r = records("3x+1", 185).sides["positive"]
+    full = {2 * n + 1: g for n, g in enumerate(A060445) if n}
+    full.update({s: 1 for s in range(2, 186, 2)})  # common practice, no source
+    want = {}
+    for g in full.values():
+        want[g] = want.get(g, 0) + 1
+    assert r.full_glides == want  # OEIS A060445
+    assert [(x.start, x.value) for x in r.records["full_glide"]] == _running_records(full)
 
 
 def test_every_start_resolved_and_counted(million):
