@@ -300,3 +300,81 @@ def test_notebook_display():
     assert "<table>" in html and "27" in html
     rows = r.record_rows()
     assert {"side", "kind", "start", "value"} <= set(rows[0])
+
+
+def _plain_side(m, lo: int, hi: int, cap: int) -> dict:
+    """Every figure of records() over lo..hi, from the plain definition start by start."""
+    out = {"delays": {}, "full_delays": {}, "glides": {}, "full_glides": {}, "basins": {}}
+    recs = {k: [] for k in ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")}
+    best = dict.fromkeys(recs, -1)
+    unres = []
+
+    def bump(d, k):
+        d[k] = d.get(k, 0) + 1
+
+    for s in range(lo, hi + 1):
+        f = start_figures(m, s, cap)
+        if f is None:
+            unres.append(s)
+            continue
+        vals = {
+            "delay": f["delay"],
+            "full_delay": f["delay"] + f["odd"],
+            "peak": f["peak"],
+            "full_peak": f["full_peak"],
+        }
+        bump(out["delays"], vals["delay"])
+        bump(out["full_delays"], vals["full_delay"])
+        bump(out["basins"], f["cycle_min"])
+        if f["glide"] is not None:
+            vals["glide"] = f["glide"]
+            vals["full_glide"] = f["glide"] + f["glide_odd"]
+            bump(out["glides"], vals["glide"])
+            bump(out["full_glides"], vals["full_glide"])
+        for k, v in vals.items():
+            if abs(v) > best[k]:
+                best[k] = abs(v)
+                recs[k].append((s, v))
+    out["records"] = recs
+    out["unresolved"] = unres
+    return out
+
+
+@pytest.mark.parametrize("name", ["3x+1", "3x-1", "3x+5", "3x+13", "5x+1"])
+@pytest.mark.parametrize("seed", [1, 2, 3])
+def test_fast_walk_matches_plain_definition_on_random_ranges(name, seed):
+    # common practice, no source: starts far above the table (the jumping walk, its
+    # peak bounds and its fall-backs) against the plain definition, with chunk grids
+    # that restart the record bounds often
+    import random
+
+    rnd = random.Random(seed * 7919 + len(name))
+    m = maps.get(name)
+    lo = rnd.randrange(2**21, 2**44)
+    hi = lo + rnd.randrange(60, 160)
+    cap = 400
+    want = _plain_side(m, lo, hi, cap)
+    r = records(m, hi, start=lo, max_steps=cap, chunk_size=rnd.choice([7, 31, 1000]))
+    sd = r.sides["positive"]
+    assert sorted(sd.unresolved_first) == want["unresolved"]
+    for k in ("delays", "full_delays", "glides", "full_glides", "basins"):
+        assert getattr(sd, k) == want[k], k
+    for k, v in want["records"].items():
+        assert [(x.start, x.value) for x in sd.records[k]] == v, k
+
+
+@pytest.mark.parametrize("name", ["3x+1", "3x+5"])
+def test_fast_walk_equals_stepwise_walk(name, monkeypatch):
+    # common practice, no source: the same range with the jumping walk switched off
+    from cyclewright.cycles import records as rec
+
+    lo, hi = 3 * 2**20, 3 * 2**20 + 40000
+    fast = records(name, hi, start=lo, chunk_size=5000)
+    rec._table.cache_clear()
+    monkeypatch.setattr(rec, "_JUMP", 0)
+    try:
+        slow = records(name, hi, start=lo, chunk_size=5000)
+    finally:
+        rec._table.cache_clear()
+    a, b = fast.sides["positive"], slow.sides["positive"]
+    assert a.to_dict() == b.to_dict()

@@ -567,20 +567,52 @@ def _kernel_arrays(mm: Map):
 
 @functools.lru_cache(maxsize=8)
 def _table(divisor: int, branches: tuple, cap: int, size: int):
-    """The table of starts ``1 .. size-1`` of the map given by its branches (per process)."""
+    """The table of starts ``1 .. size-1`` of the map given by its branches (per process).
+
+    Returns ``(tab, fast)``: the table (see :func:`records_kernel.new_table`) and
+    what the fast walk reads (:func:`_fast_parts`).
+    """
     from .records_kernel import new_table
 
     mm = Map(divisor, [tuple(b) for b in branches])
     km = _kernel_arrays(mm)
     tab = new_table(max(size, 1))
     if km is None or size <= 1:
-        return tab
+        return tab, _fast_parts(mm, tab, False)
     acc = _Accumulator(cap, mm.ax_b is not None)
     pos = 1
     while pos < size:
-        pos = acc.call(km, mm, pos, size - 1, tab, size, True)
+        pos = acc.call(km, pos, size - 1, tab, _fast_parts(mm, tab, False), True)
         acc.drain(None, None)
-    return tab
+    return tab, _fast_parts(mm, tab, True)
+
+
+#: Steps of one jump of the fast walk (fewer for multipliers whose powers grow fast).
+_JUMP = 12
+
+
+def _fast_parts(mm: Map, tab, built: bool) -> tuple:
+    """``(hot, tcmin, tmax, jt, K)`` for the fast walk (empty arrays: no fast walk)."""
+    from .records_kernel import hot_table, jump_table
+
+    none = (
+        np.zeros(1, np.int64),
+        np.zeros(1, np.int64),
+        np.zeros(2, np.int64),
+        np.zeros((1, 6), np.int64),
+        1,
+    )
+    ab = mm.ax_b
+    if not built or ab is None or mm.divisor != 2 or tab.shape[0] <= 1:
+        return none
+    a, b = ab
+    if a < 1 or a + b < 1 or a % 2 == 0 or _JUMP < 1:
+        return none
+    k = _JUMP
+    while k > 1 and a**k > 2**40:
+        k -= 1
+    hot, tcmin, tmax = hot_table(tab, mm.step)
+    return hot, tcmin, tmax, jump_table(a, b, k), k
 
 
 class _Accumulator:
@@ -610,9 +642,10 @@ class _Accumulator:
         self.unresolved_extra = 0
         self.hard_starts: list[int] = []
 
-    def call(self, km, mm: Map, lo: int, hi: int, tab, size: int, build: bool) -> int:
+    def call(self, km, lo: int, hi: int, tab, fast: tuple, build: bool) -> int:
         from .records_kernel import walk_chunk
 
+        hot, tcmin, tmax, jt, k = fast
         return int(
             walk_chunk(
                 lo,
@@ -623,9 +656,14 @@ class _Accumulator:
                 km.vmax,
                 self.cap,
                 self.undiv,
-                size,
+                tab.shape[0],
                 tab,
                 build,
+                hot,
+                tcmin,
+                tmax,
+                jt,
+                k,
                 self.hist_del,
                 self.hist_udel,
                 self.hist_gl,
@@ -821,7 +859,7 @@ def _run_chunk(task) -> _ChunkResult:
     mm = _side_map(m, side)
     undiv = mm.ax_b is not None
     km = _kernel_arrays(mm)
-    tab = _table(mm.divisor, tuple(tuple(b) for b in mm.branches), cap, size if km else 1)
+    tab, fast = _table(mm.divisor, tuple(tuple(b) for b in mm.branches), cap, size if km else 1)
     acc = _Accumulator(cap, undiv)
     hard: list[int] = []
     unres: list[int] = []
@@ -829,7 +867,7 @@ def _run_chunk(task) -> _ChunkResult:
     if km is not None:
         pos = lo
         while pos <= hi:
-            pos = acc.call(km, mm, pos, hi, tab, size, False)
+            pos = acc.call(km, pos, hi, tab, fast, False)
             if len(unres_all) < _CACHE:
                 unres_all.extend(acc.unres[: int(acc.nunres[0])].tolist())
             acc.drain(hard, unres)
