@@ -310,6 +310,22 @@ def _one_fast(
         i += 1
     glide = i
     uglide = i + odd
+    if hot.shape[0] <= 1:
+        # the table is being built (or no packed copy): read it directly, no jumps
+        if v >= T:
+            return (-1, 0, 0, 0, 0, 0, 0, 0)
+        e = tab[v, 0]
+        if e == T_UNRESOLVED:
+            return (_UNRES, 0, 0, glide, uglide, 0, 0, 0)
+        if e < 0 or i + e > cap:
+            return (-1 if e < 0 else _UNRES, 0, 0, glide, uglide, 0, 0, 0)
+        if tab[v, 2] > pm:
+            pm = tab[v, 2]
+        if tab[v, 3] > upm:
+            upm = tab[v, 3]
+        if pm > upm:
+            upm = pm
+        return (_OK, i + e, odd + tab[v, 1], glide, uglide, pm, upm, tab[v, 4])
     # past the table: K steps at a time, n = 2^K q + r -> a^c(r) q + T^K(r)
     jumped = False
     top = 0  # the largest value a jump starts from
@@ -401,12 +417,10 @@ def walk_chunk(
     sum_full_delay, sum_glide, sum_full_glide]``. A call returns early when a
     record, hard or unresolved buffer is full (the caller empties it and calls
     again from the returned start). With ``build`` the starts below ``T`` fill
-    the table ``tab`` (and the fast walk, which needs ``hot``, is not used).
+    the table ``tab`` (the fast walk then reads ``tab`` itself and never jumps).
     """
     fast = (
-        not build
-        and jt.shape[0] > 1
-        and d == 2
+        d == 2
         and undiv
         and ma[0] == 1
         and mb[0] == 0
@@ -415,7 +429,7 @@ def walk_chunk(
     )
     grow = 0.0
     lift = 0.0
-    if fast:
+    if jt.shape[0] > 1:
         grow = jt[:, 4].max() / float(1 << K)
         lift = float(jt[:, 5].max())
     last_min = 0
