@@ -277,6 +277,10 @@ class RangeRecords(Presentable):
     sides: dict
     undivided: bool
     seconds: float = 0.0
+    store: str | None = None
+    chunks_total: int = 0
+    chunks_reused: int = 0
+    chunks_damaged: int = 0
     labels: dict = field(
         default_factory=lambda: {
             "records": EXACT.value,
@@ -348,6 +352,13 @@ class RangeRecords(Presentable):
             "max_steps": self.max_steps,
             "undivided": self.undivided,
             "sides": {k: v.to_dict() for k, v in self.sides.items()},
+            "store": {
+                "path": self.store,
+                "chunks": self.chunks_total,
+                "reused": self.chunks_reused,
+                "computed": self.chunks_total - self.chunks_reused,
+                "damaged_recomputed": self.chunks_damaged,
+            },
             "labels": self.labels,
             "caution": self.caution,
         }
@@ -848,6 +859,44 @@ class _ChunkResult:
     unresolved: int
 
 
+def _to_figures(res: _ChunkResult) -> dict:
+    """A chunk's result as plain JSON data (for the records store)."""
+
+    def sparse(arr):
+        nz = np.nonzero(arr)[0]
+        return {str(int(i)): int(arr[i]) for i in nz}
+
+    return {
+        "hist": [sparse(h) for h in res.hist],
+        "sums": [int(x) for x in res.sums],
+        "candidates": [[[int(a), int(b)] for a, b in c] for c in res.candidates],
+        "basins": {str(k): int(v) for k, v in res.basins.items()},
+        "unresolved_first": [int(x) for x in res.unresolved_first],
+        "unresolved": int(res.unresolved),
+    }
+
+
+def _from_figures(side: str, lo: int, hi: int, f: dict, cap: int) -> _ChunkResult:
+    """The inverse of :func:`_to_figures`."""
+    hist = []
+    for i, h in enumerate(f["hist"]):
+        arr = np.zeros(cap + 1 if i % 2 == 0 else 2 * cap + 2, np.int64)
+        for k, v in h.items():
+            arr[int(k)] = v
+        hist.append(arr)
+    return _ChunkResult(
+        side,
+        lo,
+        hi,
+        tuple(hist),
+        list(f["sums"]),
+        [[(a, b) for a, b in c] for c in f["candidates"]],
+        {int(k): v for k, v in f["basins"].items()},
+        list(f["unresolved_first"]),
+        f["unresolved"],
+    )
+
+
 def _chunk_size(m: Map) -> int:
     return 2**22 if m.drift_ratio() < 1 else 2**12
 
@@ -996,6 +1045,7 @@ def records(
     scheduler: str | None = None,
     progress: ProgressCallback | None = None,
     chunk_size: int | None = None,
+    store=None,
 ) -> RangeRecords:
     """Records, distributions and basins of every start of ``[start, to]`` (exact).
 
@@ -1019,14 +1069,21 @@ def records(
         Receives :class:`~cyclewright.cycles.progress.ProgressEvent` values.
     chunk_size : int, optional
         Starts per chunk (a fixed grid, as in the scan).
+    store : path, None or False
+        Where finished chunks are kept (:mod:`~cyclewright.cycles.records_store`),
+        so that an interrupted run resumes and a repeated run reuses them.
+        None: beside the map's scan store in the user data directory
+        (``$CYCLEWRIGHT_DATA_DIR`` overrides); a directory or a scan store's
+        file name: the records file of this map there; False: keep nothing.
 
     Returns
     -------
     RangeRecords
+        ``chunks_reused`` of ``chunks_total`` came from the store.
 
     Examples
     --------
-    >>> r = records("3x+1", 1000)
+    >>> r = records("3x+1", 1000, store=False)
     >>> [x.start for x in r.sides["positive"].records["full_delay"]][-3:]   # OEIS A006877
     [649, 703, 871]
     >>> r.sides["positive"].holder("full_peak")                           # OEIS A006884/A006885
@@ -1063,42 +1120,93 @@ def records(
         raise InputError(f"chunk_size must be at least 1, got {csize}")
     size = min((_TABLE_CONTRACTING if m.drift_ratio() < 1 else _TABLE_EXPANDING), to + 1)
     undiv = m.ax_b is not None
-    ex = make_executor(executor, workers=workers, scheduler=scheduler)
+    from .records_store import RecordsStore, records_path_for
+
+    spot = records_path_for(store, m)
+    led = RecordsStore(spot, m) if spot is not None else None
     total = (to - start + 1) * len(sides)
     out = {}
     done = 0
+    reused = chunks = 0
     try:
-        for sd in sides:
-            tasks = (
-                (m.divisor, tuple(tuple(b) for b in m.branches), sd, lo, hi, max_steps, size)
-                for lo, hi in iter_chunks(start, to, csize)
-            )
-            hist = [np.zeros(max_steps + 1, np.int64), np.zeros(2 * max_steps + 2, np.int64)]
-            hist += [np.zeros(max_steps + 1, np.int64), np.zeros(2 * max_steps + 2, np.int64)]
-            sums = [0] * 8
-            cands: list[list] = [[] for _ in KINDS]
-            basins: dict[int, int] = {}
-            unres: list[int] = []
-            for res in ex.map_unordered(_run_chunk, tasks):
-                for h, add in zip(hist, res.hist):
-                    h += add
-                sums = [a + b for a, b in zip(sums, res.sums)]
-                for k in range(6):
-                    cands[k].extend(res.candidates[k])
-                    # keep the candidate lists short: only running records can survive
-                    if len(cands[k]) > 4096:
-                        cands[k] = _merge_records(cands[k], k >= 4)
-                for c, n in res.basins.items():
-                    basins[c] = basins.get(c, 0) + n
-                unres.extend(res.unresolved_first)
-                unres.sort()
-                del unres[LISTED_UNRESOLVED:]
-                done += res.hi - res.lo + 1
-                report(progress, "records", done, total, "starts", sd)
-            out[sd] = _side_result(m, sd, start, to, hist, sums, cands, basins, unres, undiv)
+        ex = make_executor(executor, workers=workers, scheduler=scheduler)
+        try:
+            for sd in sides:
+                config = RecordsStore.config(sd, max_steps)
+                acc = _Gathered(max_steps)
+
+                def gather(res: _ChunkResult, acc=acc, sd=sd) -> None:
+                    nonlocal done
+                    acc.add(res)
+                    done += res.hi - res.lo + 1
+                    report(progress, "records", done, total, "starts", sd)
+
+                todo = []
+                for lo, hi in iter_chunks(start, to, csize):
+                    chunks += 1
+                    got = led.get(config, lo, hi) if led is not None else None
+                    if got is None:
+                        todo.append((lo, hi))
+                    else:
+                        reused += 1
+                        gather(_from_figures(sd, lo, hi, got, max_steps))
+                tasks = (
+                    (m.divisor, tuple(tuple(b) for b in m.branches), sd, lo, hi, max_steps, size)
+                    for lo, hi in todo
+                )
+                for res in ex.map_unordered(_run_chunk, tasks):
+                    if led is not None:
+                        led.put(config, res.lo, res.hi, _to_figures(res))
+                    gather(res)
+                out[sd] = _side_result(
+                    m, sd, start, to, acc.hist, acc.sums, acc.cands, acc.basins, acc.unres, undiv
+                )
+        finally:
+            ex.close()
     finally:
-        ex.close()
-    return RangeRecords(m, start, to, max_steps, out, undiv, time.perf_counter() - t0)
+        damaged = led.damaged if led is not None else 0
+        if led is not None:
+            led.close()
+    return RangeRecords(
+        m,
+        start,
+        to,
+        max_steps,
+        out,
+        undiv,
+        time.perf_counter() - t0,
+        store=str(spot) if spot is not None else None,
+        chunks_total=chunks,
+        chunks_reused=reused,
+        chunks_damaged=damaged,
+    )
+
+
+class _Gathered:
+    """What the chunks of one side add up to (records, distributions, basins, unresolved)."""
+
+    def __init__(self, cap: int):
+        self.hist = [np.zeros(cap + 1, np.int64), np.zeros(2 * cap + 2, np.int64)]
+        self.hist += [np.zeros(cap + 1, np.int64), np.zeros(2 * cap + 2, np.int64)]
+        self.sums = [0] * 8
+        self.cands: list[list] = [[] for _ in KINDS]
+        self.basins: dict[int, int] = {}
+        self.unres: list[int] = []
+
+    def add(self, res: _ChunkResult) -> None:
+        for h, more in zip(self.hist, res.hist):
+            h += more
+        self.sums = [a + b for a, b in zip(self.sums, res.sums)]
+        for k in range(6):
+            self.cands[k].extend(res.candidates[k])
+            # keep the candidate lists short: only running records can survive
+            if len(self.cands[k]) > 4096:
+                self.cands[k] = _merge_records(self.cands[k], k >= 4)
+        for c, n in res.basins.items():
+            self.basins[c] = self.basins.get(c, 0) + n
+        self.unres.extend(res.unresolved_first)
+        self.unres.sort()
+        del self.unres[LISTED_UNRESOLVED:]
 
 
 def _side_result(m, sd, start, to, hist, sums, cands, basins, unres, undiv) -> SideRecords:

@@ -419,14 +419,7 @@ def walk_chunk(
     again from the returned start). With ``build`` the starts below ``T`` fill
     the table ``tab`` (the fast walk then reads ``tab`` itself and never jumps).
     """
-    fast = (
-        d == 2
-        and undiv
-        and ma[0] == 1
-        and mb[0] == 0
-        and ma[1] >= 1
-        and ma[1] + mb[1] >= 1
-    )
+    fast = d == 2 and undiv and ma[0] == 1 and mb[0] == 0 and ma[1] >= 1 and ma[1] + mb[1] >= 1
     grow = 0.0
     lift = 0.0
     if jt.shape[0] > 1:

@@ -23,8 +23,10 @@ from ..options import (
     max_steps_option,
     plot_option,
     resolve_map,
+    resolve_store,
     show_option,
     side_option,
+    store_options,
     to_option,
     workers_option,
 )
@@ -37,6 +39,9 @@ Examples:
   cyclewright records 3x+5 --to 10^5 --side both --plot 3x5.pdf
   cyclewright records 5x+1 --to 10^4 --max-steps 500 --json
   cyclewright records 3x+1 --to 10^7 --csv rec.csv --latex
+\b
+Finished chunks are kept in a store beside the map's scan store (--store,
+--no-store): an interrupted run resumes, a repeated run reuses them.
 \b
 Every start s of the range is followed to the minimum of the cycle it enters.
 delay: steps to that minimum; glide: first step below |s|; peak: largest
@@ -62,6 +67,7 @@ left out of every record and distribution. Model means are heuristic.
 @show_option
 @force_option
 @maps_option
+@store_options
 @json_option
 def records_cmd(
     map_spec,
@@ -78,6 +84,8 @@ def records_cmd(
     show,
     force,
     map_files,
+    store,
+    no_store,
     as_json,
 ) -> None:
     """Record holders (delay, glide, peak), exact distributions and basin sizes of MAP over [M, N]."""
@@ -103,6 +111,7 @@ def records_cmd(
                 executor=executor,
                 scheduler=scheduler,
                 progress=show_progress,
+                store=resolve_store(store, no_store),
             )
     except InputError as exc:
         raise BadInput(str(exc)) from None
@@ -275,7 +284,17 @@ def _print(r, show_n: int) -> None:
                 f"(left out of the records above); first: {first}"
             )
     con.print(f"caution: {r.caution}")
-    con.print(f"{r.seconds:.2f} s (wall-clock measurement)")
+    con.print(f"{store_line(r)}; {r.seconds:.2f} s (wall-clock measurement)")
+
+
+def store_line(r) -> str:
+    """Where the chunks are kept and how many were reused (or recomputed as damaged)."""
+    if r.store is None:
+        return "store: not stored"
+    text = f"store: {r.store}; chunks {r.chunks_total} ({r.chunks_reused} reused from the store"
+    if r.chunks_damaged:
+        text += f", {r.chunks_damaged} damaged and recomputed"
+    return text + ")"
 
 
 COMMANDS = [records_cmd]
