@@ -95,10 +95,14 @@ def main() -> None:
     env_note = f"{platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()}"
     print(f"machine: {env_note}")
     # warm-up: compile or load the kernels
-    measured([*cli, "records", "3x+1", "--to", "1000", "--json"])
-    ours = measured([*cli, "records", "3x+1", "--to", str(n), "--json"])
-    ours1 = measured([*cli, "records", "3x+1", "--to", str(n), "--json", "--workers", "1"])
-    small = measured([*cli, "records", "3x+1", "--to", str(max(n // 10, 1)), "--json"])
+    measured([*cli, "records", "3x+1", "--to", "1000", "--json", "--no-store"])
+    ours = measured([*cli, "records", "3x+1", "--to", str(n), "--json", "--no-store"])
+    ours1 = measured(
+        [*cli, "records", "3x+1", "--to", str(n), "--json", "--workers", "1", "--no-store"]
+    )
+    small = measured(
+        [*cli, "records", "3x+1", "--to", str(max(n // 10, 1)), "--json", "--no-store"]
+    )
     doc = json.loads(ours["out"])
     got = {
         k: [[r["start"], r["value"]] for r in doc["sides"]["positive"]["records"][k]]

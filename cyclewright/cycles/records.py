@@ -793,28 +793,27 @@ def _exact_one(
 
     def path(stop_at, steps):
         """Walk from s: peaks and odd steps (and glide's odd steps) up to a value or a count."""
-        v = peak = upk = s
-        odd = n = 0
-        godd = 0
-        while (v != stop_at) if steps is None else (n < steps):
-            r = v % d
-            a, b = A[r], B[r]
-            if undiv and r == 1:
-                w = a * v + b
-                if bigger(w, upk):
-                    upk = w
-                odd += 1
-            v = (a * v + b) // d
-            n += 1
-            if n == glide:
-                godd = odd
-            if bigger(v, peak):
-                peak = v
-            if bigger(v, upk):
-                upk = v
-            if steps is None and n > cap:
+        done = (lambda n, v: v == stop_at) if steps is None else (lambda n, v: n == steps)
+        vals = [s]  # the values of the path
+        seen = [s]  # and, for ax+b maps, a v + b before each halving too
+        odd_at = [0]  # odd steps before step n
+        v, n = s, 0
+        while not done(n, v):
+            if steps is None and n >= cap:
                 return None
-        return n, odd, peak, upk, godd
+            r = v % d
+            lifted = A[r] * v + B[r]
+            if undiv and r == 1:
+                seen.append(lifted)
+            v = lifted // d
+            n += 1
+            odd_at.append(odd_at[-1] + (undiv and r == 1))
+            vals.append(v)
+            seen.append(v)
+        peak = max(vals, key=abs)  # the first of largest |value|
+        top = max(seen, key=abs)
+        godd = odd_at[glide] if 0 <= glide <= n else 0
+        return n, odd_at[n], peak, top, godd
 
     uglide = -1
     if hit is not None:
