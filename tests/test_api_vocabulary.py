@@ -70,7 +70,8 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "default_store_path": ((), {}),
     "adopt_legacy_store": ((), {}),
     "prove_cycle_rows": (("positive", [(1, 2, b'{"length": 2}')]), {}),
-    "records": ((300,), {"side": "both", "workers": 1}),
+    "records": ((300,), {"side": "both", "workers": 1, "store": False}),
+    "default_records_path": ((), {}),
     "start_figures": ((27,), {}),
     "glide_model": ((), {}),
 }

@@ -39,6 +39,7 @@ import zlib
 from pathlib import Path
 
 from cyclewright.maps import Map
+from cyclewright.maps.registry import as_map
 
 from .errors import StoreError
 from .files import data_dir
@@ -50,13 +51,14 @@ FORMAT = "records-1"
 _TIMEOUT = 60.0
 
 
-def default_records_path(m: Map) -> Path:
+def default_records_path(m: Map | str) -> Path:
     """``<data dir>/scans/<key prefix>-records.db``: beside the map's scan store.
 
     >>> from cyclewright import maps
     >>> default_records_path(maps.get("3x+1")).name
     'f477e91227842caa-records.db'
     """
+    m = as_map(m)
     return data_dir() / "scans" / f"{m.key[:16]}-records.db"
 
 
