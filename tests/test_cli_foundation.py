@@ -176,7 +176,14 @@ def test_no_args_prints_help_and_help_has_examples():
 
 
 @pytest.mark.slow
-def test_demo_runs():
-    out = run_cli("demo")
+def test_demo_runs(tmp_path):
+    # common practice, no source: a test writes only below its own temporary directory
+    here = tmp_path / "cwd"
+    here.mkdir()
+    out = run_cli("demo", "--out", str(tmp_path / "demo-out"), cwd=here)
     assert out.returncode == 0, out.stderr
     assert "3x+1" in out.stdout and "111" in out.stdout
+    assert (tmp_path / "demo-out" / "report.md").is_file()
+    assert list(here.iterdir()) == []
+    # the highlights are columns of the comparison's own overview (one table, one place)
+    assert "highlights from this run's data files" in " ".join(out.stdout.split())

@@ -215,3 +215,122 @@ def test_compare_rows_agree_with_the_individual_commands(tmp_path):
     assert (
         rows["5x+1"]["floor_positive_length"] is None
     )  # unresolved starts: no verified range, no floor
+
+
+def test_overview_is_a_view_of_the_table(cmp):
+    # common practice, no source: the condensed view re-presents the full table's figures
+    full = cmp.table().records()
+    view = cmp.overview().records()
+    assert [r["map"] for r in view] == [r["map"] for r in full] == ["3x+1", "5x+1"]
+    for f, v in zip(full, view, strict=True):
+        assert v["cycles <= K primitive / all"] == (
+            f["census_primitive_cycles"],
+            f["census_cycles"],
+        )
+        assert v["minima"] == ", ".join(map(str, f["census_minima"]))
+        assert v["floor + / -"] == (f["floor_positive_length"], f["floor_negative_length"])
+        assert v["necklaces / candidates / heuristic at x"] == (
+            f["necklaces_at_x"],
+            f["candidates_at_x"],
+            f["heuristic_at_x"],
+        )
+        assert v["drift per step"].startswith(f["drift_exact"])
+    # Lagarias 1985 survey (from memory): 3x+1 cycles up to length 16 have minima 1, -1, -5, -17
+    assert view[0]["minima"] == "1, -1, -5, -17"
+    labels = cmp.overview().labels
+    assert labels["minima"] == "certified" and labels["floor + / -"] == "proved"
+    assert labels["rho"] == "rounded"  # a float is never labelled exact
+
+
+def test_compare_command_prints_the_results_overview(monkeypatch):
+    # common practice, no source: the command renders the result's own table, builds none
+    from click.testing import CliRunner
+
+    from cyclewright.cli.app import cli
+    from cyclewright.cycles import compare as compare_module
+
+    shown = []
+    real = compare_module.Comparison.overview
+
+    def spy(self):
+        t = real(self)
+        shown.append(t)
+        return t
+
+    monkeypatch.setattr(compare_module.Comparison, "overview", spy)
+    res = CliRunner().invoke(
+        cli,
+        ["compare", "3x+1", "--max-length", "6", "--to", "200", "--odd", "3"]
+        + ["--workers", "1", "--no-store"],
+    )
+    assert res.exit_code == 0, res.output
+    assert len(shown) == 1
+    assert "Maps side by side (census K = 6" in " ".join(res.output.split())
+    # Lagarias 1985 survey (from memory): up to length 6 the 3x+1 minima are 1, -1, -5
+    assert "1, -1, -5" in res.output
+
+
+def test_study_compare_defaults_are_the_api_defaults():
+    # common practice, no source: one declaration of each default (compare's signature)
+    import inspect
+
+    from cyclewright.cli.studyfile import PARAMS, parse_study
+    from cyclewright.cycles.compare import COMPARE_DEFAULTS
+
+    sig = inspect.signature(compare).parameters
+    for key, value in COMPARE_DEFAULTS.items():
+        assert sig[key].default == value
+        assert PARAMS["compare"][key][1] == value
+    study = parse_study(
+        {"study": {"title": "t"}, "maps": {"use": ["3x+1"]}, "analysis": [{"kind": "compare"}]},
+        origin="t.toml",
+    )
+    params = study.analyses[0].params
+    assert {k: params[k] for k in COMPARE_DEFAULTS} == COMPARE_DEFAULTS
+
+
+def test_compare_help_states_the_api_defaults():
+    # common practice, no source: --help quotes the defaults compare() really uses
+    from click.testing import CliRunner
+
+    from cyclewright.cli.app import cli
+
+    out = " ".join(CliRunner().invoke(cli, ["compare", "--help"]).output.split())
+    assert "census length 20, scan 1..10^5 on both sides, counting figures at x = 20" in out
+    assert "--executor" in out and "--scheduler ADDR" in out
+
+
+def test_compare_passes_executor_and_scheduler_on(monkeypatch):
+    # common practice, no source: compare's census runs go where scan and census would
+    from click.testing import CliRunner
+
+    from cyclewright.cli.app import cli
+    from cyclewright.cli.commands import compare_cmd
+    from cyclewright.cycles import compare as compare_module
+
+    got = {}
+
+    class Stop(Exception):
+        pass
+
+    def fake_compare(maps_, **kw):
+        got["cli"] = kw
+        raise Stop
+
+    monkeypatch.setattr(compare_cmd, "compare", fake_compare)
+    res = CliRunner().invoke(
+        cli, ["compare", "3x+1", "--executor", "dask", "--scheduler", "tcp://127.0.0.1:9"]
+    )
+    assert isinstance(res.exception, Stop)
+    assert (got["cli"]["executor"], got["cli"]["scheduler"]) == ("dask", "tcp://127.0.0.1:9")
+
+    def fake_census(m, k, **kw):
+        got["census"] = kw
+        raise Stop
+
+    monkeypatch.setattr(compare_module, "census", fake_census)
+    with pytest.raises(Stop):
+        compare(["3x+1"], executor="dask", scheduler="tcp://127.0.0.1:9", store=False)
+    assert (got["census"]["executor"], got["census"]["scheduler"]) == ("dask", "tcp://127.0.0.1:9")
+    bad = CliRunner().invoke(cli, ["compare", "3x+1", "--executor", "cloud"])
+    assert bad.exit_code == 2

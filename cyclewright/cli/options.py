@@ -23,7 +23,7 @@ Inside
   :func:`maps_option`, :func:`json_option`, :func:`latex_option`,
   :func:`latex_tables` (``--latex`` for commands printing rich tables).
 - :func:`resolve_map`, :func:`catalog_for`, :func:`resolve_store`,
-  :func:`parse_int`.
+  :func:`parse_int`, :func:`power_text`.
 
 Old spellings (``-k``, ``-K``, ``-x``, ``--k``, ``--all-k``,
 ``--max-cycle-length``, ``--rows``) are still read, as hidden aliases: they do
@@ -98,6 +98,7 @@ __all__ = [
     "resolve_store",
     "catalog_for",
     "parse_int",
+    "power_text",
 ]
 
 #: The sides of a map's integers; ``both`` runs the positive and the negative side.
@@ -106,10 +107,10 @@ SIDES = (*_ACTUAL_SIDES, "both")
 
 # DEFAULT_SIDE, DEFAULT_MAX_STEPS and DEFAULT_CEILING are the API's own
 # (cycles/sides.py, cycles/limits.py), re-exported for the options below.
-def _power_text(n: int) -> str:
+def power_text(n: int) -> str:
     """``10^15`` for a power of ten, else the digits (help texts).
 
-    >>> _power_text(10**15), _power_text(1000), _power_text(1234)
+    >>> power_text(10**15), power_text(1000), power_text(1234)
     ('10^15', '10^3', '1234')
     """
     text = str(n)
@@ -362,7 +363,7 @@ ceiling_option = _shared(
     "--ceiling",
     "ceiling",
     type=CeilingType(),
-    default=_power_text(DEFAULT_CEILING),
+    default=power_text(DEFAULT_CEILING),
     show_default=True,
     metavar="C",
     help="Stop an orbit once |value| exceeds C (escaped: not a proof of divergence); 'none' for no ceiling.",
@@ -376,7 +377,7 @@ limit_option = _shared(
     metavar="L",
     help=(
         "Enumerate a type's necklaces when there are at most L of them [default: "
-        f"{_power_text(DEFAULT_LIMIT)} for one type, {_power_text(DEFAULT_SWEEP_LIMIT)} "
+        f"{power_text(DEFAULT_LIMIT)} for one type, {power_text(DEFAULT_SWEEP_LIMIT)} "
         "per row of a sweep]."
     ),
 )

@@ -36,6 +36,8 @@ from collections.abc import Iterable, Mapping, Sequence
 from fractions import Fraction
 from pathlib import Path
 
+from cyclewright.cycles.presentation import Parts
+
 __all__ = [
     "unlimited_digits",
     "int_digits",
@@ -205,6 +207,8 @@ def short(value, digits: int = 40) -> str:
         return "yes" if value else "no"
     if value is None:
         return "-"
+    if isinstance(value, Parts):  # figures shown together in one cell
+        return " / ".join(short(x, digits) for x in value)
     if isinstance(value, float):
         return f"{value:.6g}"
     if isinstance(value, int) and type(value).__name__ == "Magnitude":
@@ -398,6 +402,8 @@ def tex_number(value) -> str:
         return "--"
     if isinstance(value, bool):
         return "yes" if value else "no"
+    if isinstance(value, Parts):
+        return " / ".join(tex_number(x) for x in value)
     if isinstance(value, Fraction):
         if value.denominator == 1:
             return tex_number(value.numerator)

@@ -44,6 +44,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from cyclewright.cycles.compare import COMPARE_DEFAULTS
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
@@ -183,11 +184,11 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "side": (SIDE, DEFAULT_SIDE),
         "next": (_int(0, 50), 3),
     },
-    "compare": {
-        "max_length": (_int(1, MAX_CENSUS_LENGTH), 20),
-        "to": (_int(1, 2**62), 10**5),
-        "odd": (_int(1, 100_000), 20),
-        "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
+    "compare": {  # the defaults are compare()'s own
+        "max_length": (_int(1, MAX_CENSUS_LENGTH), COMPARE_DEFAULTS["max_length"]),
+        "to": (_int(1, 2**62), COMPARE_DEFAULTS["to"]),
+        "odd": (_int(1, 100_000), COMPARE_DEFAULTS["odd"]),
+        "max_steps": (_int(1, 10**6), COMPARE_DEFAULTS["max_steps"]),
         "plot": (_bool, True),
     },
     "records": {

@@ -12,7 +12,12 @@ Inside
   found, with found against necklaces, candidates (proved) and the heuristic
   expectation, and the totals over every type up to the length asked. Found
   is never above candidates (a theorem; a violation would be a bug).
-- :class:`Comparison`, :class:`MapProfile`, :class:`Predictions`.
+- :class:`Comparison`, :class:`MapProfile`, :class:`Predictions`;
+  :meth:`Comparison.table` (every figure, one row per map: CSV, JSON, the
+  study) and :meth:`Comparison.overview` (the condensed view the ``compare``
+  command prints), both from the same rows.
+- :data:`COMPARE_DEFAULTS` -- the defaults of :func:`compare`, read by the
+  command's help and by study files.
 
 Labels: drift, critical ratio and ρ are given as closed forms
 (``drift_exact``... labelled ``exact``) beside their float values (labelled
@@ -44,8 +49,7 @@ from cyclewright.maps import Map, as_map
 from .census import Census, census
 from .counting import count
 from .errors import InputError
-from .excursions import Excursions, excursions, peak_text
-from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
+from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED, Label
 from .limits import (
     DEFAULT_MAX_STEPS,
     MAX_CENSUS_LENGTH,
@@ -59,7 +63,7 @@ from .limits import (
 )
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
-from .presentation import Presentable, Table
+from .presentation import Parts, Presentable, Table
 from .progress import ProgressCallback, report
 from .scan.result import StoreUse
 from .sweep import critical_lengths, rho, rho_exact, sweep
@@ -74,7 +78,18 @@ __all__ = [
     "critical_ratio",
     "ROW_COLUMNS",
     "ROW_HEADINGS",
+    "COMPARE_DEFAULTS",
+    "overview_table",
 ]
+
+#: The defaults of :func:`compare`: census length ``K``, scan ``1..N`` and
+#: counting at ``x = X``, and the step cap (study files and ``--help`` read them).
+COMPARE_DEFAULTS: dict[str, int] = {
+    "max_length": 20,
+    "to": 10**5,
+    "odd": 20,
+    "max_steps": DEFAULT_MAX_STEPS,
+}
 
 #: The columns of :meth:`Comparison.table` (and of the CLI's CSV).
 ROW_COLUMNS = (
@@ -430,7 +445,7 @@ class MapProfile:
     map: Map
     census: Census | None
     census_note: str
-    excursions: dict[str, Excursions]
+    excursions: dict  # side -> Excursions
     scan_to: int
     floors: dict  # side -> Floor or None
     floor_notes: dict
@@ -440,6 +455,8 @@ class MapProfile:
     extras: dict = field(default_factory=dict)
 
     def row(self) -> dict:
+        from .excursions import peak_text  # compiled walks: loaded only when used
+
         m = self.map
         cr = critical_ratio(m)
         r = rho(m)
@@ -565,6 +582,117 @@ class MapProfile:
         return own + self.census.store_use if self.census is not None else own
 
 
+_TABLE_NOTE = (
+    "Floors are conditional on the scan having verified 1..N with no unresolved "
+    "start; where starts stayed unresolved no floor is given. A peak whose walk was cut is a "
+    "lower bound."
+)
+
+
+def overview_table(rows: Sequence[dict], max_length: int, to: int, odd: int) -> Table:
+    """The condensed view of a comparison's rows (:meth:`MapProfile.row`, or their JSON).
+
+    The same rows as :meth:`Comparison.table`, fewer columns, worded with
+    their ``K``, ``N`` and ``x``: figures read together share a cell
+    (:class:`~cyclewright.cycles.presentation.Parts`, e.g. primitive / all
+    cycles, the floors on both sides). The ``compare`` command prints it;
+    the demo shows some of its columns, from the study's data files.
+
+    Parameters
+    ----------
+    rows : sequence of dict
+        One row per map, keyed as :data:`ROW_COLUMNS` (with ``labels`` and
+        ``rho_assumes`` when known).
+    max_length, to, odd : int
+        ``K``, ``N`` and ``X`` of the comparison.
+
+    Returns
+    -------
+    Table
+        One row per map. A column whose label differs between maps (the
+        largest value: exact, or a proved lower bound when a walk was cut;
+        the candidates: exact or proved) gets a label per row.
+
+    Examples
+    --------
+    >>> row = {"map": "3x+1", "drift_exact": "(1/2) ln(3/4)", "drift": -0.1438,
+    ...        "rho": 1.89, "census_primitive_cycles": 4,
+    ...        "census_cycles": 4, "census_minima": [1, -1, -5, -17],
+    ...        "unresolved_share": 0.0, "largest_peak": 9232, "delay_record": 111,
+    ...        "delay_record_start": 27, "delay_record_unresolved": 0,
+    ...        "floor_positive_length": 100, "floor_negative_length": None,
+    ...        "necklaces_at_x": 7, "candidates_at_x": 1, "heuristic_at_x": 0.2}
+    >>> t = overview_table([row], 20, 10**5, 20)
+    >>> floors = t.records()[0]["least length of a further cycle, + / -, given 1..100000 verified"]
+    >>> floors, str(floors)
+    ((100, None), '100 / -')
+
+    References
+    ----------
+    See the module docstring.
+    """
+    K, N, X = max_length, to, odd
+    columns = {  # heading -> (label, the row's figure)
+        "map": (None, lambda r: r["map"]),
+        "drift per step, exact form": (EXACT, lambda r: r["drift_exact"]),
+        "drift per step": (ROUNDED, lambda r: r["drift"]),
+        "necklace growth rate rho": (ROUNDED, lambda r: r["rho"]),
+        f"cycles of length <= {K} other than 0: primitive / all": (
+            CERTIFIED,
+            lambda r: Parts((r["census_primitive_cycles"], r["census_cycles"])),
+        ),
+        "cycle minima": (CERTIFIED, lambda r: ", ".join(map(str, r["census_minima"] or [])) or None),
+        f"share of 1..{N} unresolved": (ROUNDED, lambda r: r["unresolved_share"]),
+        "largest value reached": ("largest_peak", lambda r: r["largest_peak"]),
+        f"delay record over 1..{N}, at its start": (EXACT, _delay_text),
+        f"least length of a further cycle, + / -, given 1..{N} verified": (
+            PROVED,
+            lambda r: Parts((r["floor_positive_length"], r["floor_negative_length"])),
+        ),
+        f"necklaces at x = {X}": (EXACT, lambda r: r["necklaces_at_x"]),
+        f"candidates at x = {X}": ("candidates_at_x", lambda r: r["candidates_at_x"]),
+        f"necklaces/|D| at x = {X}": (HEURISTIC, lambda r: r["heuristic_at_x"]),
+    }
+    over = [r["map"] for r in rows if "fails" in (r.get("rho_assumes") or "")]
+    note = _TABLE_NOTE
+    if over:
+        note += (
+            f" rho over-counts for {', '.join(over)}: it assumes every itinerary is "
+            "realized, but a multiplier shares a factor with d, so some never occur."
+        )
+    title = (
+        f"Maps side by side (census length K = {K}, starts 1..N with N = {N} on both sides, "
+        f"counting at x = {X})"
+    )
+
+    def labels(r: dict) -> dict:
+        out = {}
+        for head, (label, _) in columns.items():
+            if label is not None and not isinstance(label, Label):  # the row gives it
+                label = (r.get("labels") or {}).get(label)
+            if label is not None:
+                out[head] = str(label)
+        return out
+
+    per_map = [
+        Table(title, tuple(columns), (tuple(f(r) for _, f in columns.values()),), labels(r), note)
+        for r in rows
+    ]
+    if not per_map:
+        return Table(title, tuple(columns), (), {}, note)
+    return Table.stack(per_map)  # a label that differs between maps goes per row
+
+
+def _delay_text(r: dict) -> str | None:
+    """``111 at 27`` (and the starts the walk left unresolved)."""
+    if r["delay_record"] is None:
+        return None
+    text = f"{r['delay_record']} at {r['delay_record_start']}"
+    if r["delay_record_unresolved"]:
+        text += f" ({r['delay_record_unresolved']} unresolved)"
+    return text
+
+
 @dataclass(frozen=True)
 class Comparison(Presentable):
     """Profiles of several maps with shared parameters."""
@@ -580,11 +708,7 @@ class Comparison(Presentable):
     def table(self) -> Table:
         """One row per map: the columns of :data:`ROW_COLUMNS` under their words
         (:data:`ROW_HEADINGS`), labelled; the title gives K, N and x."""
-        note = (
-            "Floors are conditional on the scan having verified 1..N with no unresolved "
-            "start; where starts stayed unresolved no floor is given. A peak whose walk was cut is a "
-            "lower bound."
-        )
+        note = _TABLE_NOTE
         title = (
             f"One row per map (census length K = {self.max_length}, "
             f"starts 1..N with N = {self.to}, counting at x = {self.odd})"
@@ -603,6 +727,20 @@ class Comparison(Presentable):
         if not per_map:
             return Table(title, heads, (), {}, note)
         return Table.stack(per_map)  # a label that differs between maps goes per row
+
+    def overview(self) -> Table:
+        """The condensed view of :meth:`table` (what the ``compare`` command prints).
+
+        See :func:`overview_table`.
+
+        Examples
+        --------
+        >>> cmp = compare(["3x+1"], max_length=8, to=100, odd=3, store=False, workers=1)
+        >>> row = cmp.overview().records()[0]
+        >>> row["cycles of length <= 8 other than 0: primitive / all"], row["cycle minima"]
+        ((3, 3), '1, -1, -5')
+        """
+        return overview_table(self.rows(), self.max_length, self.to, self.odd)
 
     def sweeps(self, limit: int = 2000) -> dict:
         """The positive-side critical-line sweep of every map that has one (for plots)."""
@@ -634,10 +772,10 @@ class Comparison(Presentable):
 
 def check_compare(
     *,
-    max_length: int = 20,
-    to: int = 10**5,
-    odd: int = 20,
-    max_steps: int = DEFAULT_MAX_STEPS,
+    max_length: int = COMPARE_DEFAULTS["max_length"],
+    to: int = COMPARE_DEFAULTS["to"],
+    odd: int = COMPARE_DEFAULTS["odd"],
+    max_steps: int = COMPARE_DEFAULTS["max_steps"],
     workers: int | None = None,
 ) -> None:
     """Refuse :func:`compare` parameters beyond the limits (:class:`InputError`, one line).
@@ -684,12 +822,14 @@ def check_compare(
 def compare(
     maps_: Sequence[Map | str],
     *,
-    max_length: int = 20,
-    to: int = 10**5,
-    odd: int = 20,
-    max_steps: int = DEFAULT_MAX_STEPS,
+    max_length: int = COMPARE_DEFAULTS["max_length"],
+    to: int = COMPARE_DEFAULTS["to"],
+    odd: int = COMPARE_DEFAULTS["odd"],
+    max_steps: int = COMPARE_DEFAULTS["max_steps"],
     store=None,
     workers: int | None = None,
+    executor: str = "local",
+    scheduler: str | None = None,
     count_limit: int = 10**5,
     progress: ProgressCallback | None = None,
     max_scan: int = MAX_COMPARE_SCAN,
@@ -709,8 +849,10 @@ def compare(
     max_steps : int
         Step cap per start of the excursion walk and of the scan (default
         :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`).
-    store, workers
-        Passed to the census' scan; ``store`` may be a directory (one store per map).
+    store, workers, executor, scheduler
+        Passed to the census' scan, the scan of ``1..N`` and the records;
+        ``store`` may be a directory (one store per map), ``executor`` is
+        ``"local"`` or ``"dask"`` (with a ``scheduler`` address).
     count_limit : int
         Necklace enumeration limit.
     max_scan : int
@@ -739,6 +881,7 @@ def compare(
     Lagarias 1985 (the heuristic, drift); Eliahou 1993 (bounds and floors);
     see the module docstring.
     """
+    from .excursions import excursions
     from .floors import floor
     from .records import records
     from .scan.run import check_store_for_maps, scan
@@ -757,7 +900,16 @@ def compare(
 
         say(f"census up to length {max_length}")
         try:
-            c = census(m, max_length, side="both", store=store, workers=workers, max_scan=max_scan)
+            c = census(
+                m,
+                max_length,
+                side="both",
+                store=store,
+                workers=workers,
+                executor=executor,
+                scheduler=scheduler,
+                max_scan=max_scan,
+            )
             cnote = ""
         except InputError as exc:
             c, cnote = None, str(exc)
@@ -777,7 +929,16 @@ def compare(
             except InputError as e:
                 fnotes[side] = str(e)
                 continue
-            sr = scan(m, to, side=side, max_steps=max_steps, store=store, workers=workers)
+            sr = scan(
+                m,
+                to,
+                side=side,
+                max_steps=max_steps,
+                store=store,
+                workers=workers,
+                executor=executor,
+                scheduler=scheduler,
+            )
             use = use + sr.store_use
             met[side] = list(sr.minima.get(side, ()))
             scan_counts[side] = {k: int(v) for k, v in sr.counts[side].items()}
@@ -793,7 +954,15 @@ def compare(
                 floors[side] = None
                 fnotes[side] = str(e)
         say(f"{m.label}: records over 1..{to}")
-        recs = records(m, to, side="positive", max_steps=max_steps, workers=workers)
+        recs = records(
+            m,
+            to,
+            side="positive",
+            max_steps=max_steps,
+            workers=workers,
+            executor=executor,
+            scheduler=scheduler,
+        )
         tc, tnote = None, ""
         try:
             if m.divisor == 2:

@@ -9,6 +9,8 @@ Inside
   (``to_pandas``, when pandas is installed: never a dependency).
 - :class:`Presentable` -- the same two for a result type, from its own
   tables (``tables()``, ``figures_table()`` or ``table()``).
+- :class:`Parts` -- several figures shown together in one cell of a condensed
+  table (``3 / 5``); JSON and CSV give them as a list.
 - :class:`Magnitude` -- an exact integer whose digits carry no information
   (a bound of thousands of digits): tables show it as ``~10^x``, JSON and
   CSV give every digit.
@@ -24,7 +26,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field, replace
 
-__all__ = ["Table", "Presentable", "Magnitude"]
+__all__ = ["Table", "Presentable", "Magnitude", "Parts"]
 
 
 class Magnitude(int):
@@ -36,6 +38,19 @@ class Magnitude(int):
     """
 
     __slots__ = ()
+
+
+class Parts(tuple):
+    """Figures shown together in one cell (``primitive / all``): tables join them with `` / ``.
+
+    >>> Parts((3, 5)) == (3, 5)
+    True
+    """
+
+    __slots__ = ()
+
+    def __str__(self) -> str:
+        return " / ".join("-" if x is None else str(x) for x in self)
 
 
 @dataclass(frozen=True)
@@ -160,6 +175,8 @@ def _html_cell(v) -> str:
         return "&ndash;"
     if isinstance(v, bool):
         return "yes" if v else "no"
+    if isinstance(v, Parts):
+        return escape(str(v))
     if isinstance(v, (list, tuple)):
         return escape(", ".join(str(x) for x in v))
     return escape(str(v))

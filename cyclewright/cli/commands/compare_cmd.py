@@ -7,7 +7,7 @@ import sys
 import click
 
 from cyclewright.cycles.census import default_family_members, parse_family
-from cyclewright.cycles.compare import check_compare, compare
+from cyclewright.cycles.compare import COMPARE_DEFAULTS, check_compare, compare
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.maps import MapError, parse_shorthand
@@ -17,6 +17,7 @@ from ..files import check_figure_path, check_output
 from ..options import (
     all_offsets_option,
     csv_option,
+    executor_options,
     json_option,
     latex_tables,
     maps_option,
@@ -25,6 +26,7 @@ from ..options import (
     odd_option,
     offsets_option,
     plot_option,
+    power_text,
     resolve_map,
     resolve_store,
     store_options,
@@ -32,7 +34,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, make_table, short, show_table, stdout_console, write_csv
+from ..render import emit_json, show_table, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "resolve_maps"]
 
@@ -73,8 +75,17 @@ def resolve_maps(specs, offsets, map_files, all_k=False):
     return out
 
 
+_HELP = (
+    "Maps side by side: drift, critical ratio, census, scan, floor, counting; predictions vs "
+    "findings.\n\nWithout --max-length, --to and --odd: census length "
+    f"{COMPARE_DEFAULTS['max_length']}, scan 1..{power_text(COMPARE_DEFAULTS['to'])} on both sides, "
+    f"counting figures at x = {COMPARE_DEFAULTS['odd']}."
+)
+
+
 @click.command(
     "compare",
+    help=_HELP,
     epilog=(
         "\b\nExamples:\n"
         "  cyclewright compare 3x+1 5x+1 7x+1 --max-length 20 --to 10^5\n"
@@ -94,6 +105,7 @@ def resolve_maps(specs, offsets, map_files, all_k=False):
 @plot_option
 @store_options
 @workers_option
+@executor_options
 @maps_option
 @json_option
 @latex_tables
@@ -110,14 +122,11 @@ def compare_cmd(
     store,
     no_store,
     workers,
+    executor,
+    scheduler,
     map_files,
     as_json,
 ):
-    """Maps side by side: drift, critical ratio, census, scan, floor, counting; predictions vs findings.
-
-    Without --max-length, --to and --odd: census length 20, scan 1..10^5 on both
-    sides, counting figures at x = 20.
-    """
     given = {"max_length": max_length, "to": to, "odd": odd}
     # the API's limits, refused before any output is checked or map resolved
     check_compare(
@@ -133,6 +142,8 @@ def compare_cmd(
             max_steps=max_steps,
             store=resolve_store(store, no_store),
             workers=workers,
+            executor=executor,
+            scheduler=scheduler,
             progress=show,
         )
     if csv_path:
@@ -148,63 +159,13 @@ def compare_cmd(
         return
     if csv_path == "-":
         return
-    K, N, X = cmp.max_length, cmp.to, cmp.odd
-    rows = cmp.rows()
     con = stdout_console()
-    con.print(
-        make_table(
-            f"Maps side by side (census K = {K}, scan 1..{N} both sides, counting at x = {X})",
-            [
-                "map",
-                "drift/step [exact = rounded]",
-                "log_d a [rounded]",
-                "rho [rounded]",
-                "cycles <= K primitive/all [certified]",
-                "minima",
-                "unresolved <= N [rounded]",
-                "largest peak [exact, or lower bound]",
-                "delay record 1..N [exact]",
-                "floor +/- [proved]",
-                "necklaces / candidates / heuristic at x",
-            ],
-            [
-                [
-                    r["map"],
-                    f"{r['drift_exact']} = {r['drift']:+.4f}",
-                    short(r["critical_ratio"]),
-                    short(r["rho"])
-                    + ("*" if r.get("rho_assumes", "") and "fails" in r["rho_assumes"] else ""),
-                    f"{short(r['census_primitive_cycles'])}/{short(r['census_cycles'])}",
-                    ", ".join(map(str, r["census_minima"] or [])) or "-",
-                    f"{r['unresolved_share']:.4f}" if r["unresolved_share"] is not None else "-",
-                    short(r["largest_peak"]),
-                    (
-                        f"{r['delay_record']} at {r['delay_record_start']}"
-                        + (
-                            f" ({r['delay_record_unresolved']} unresolved)"
-                            if r["delay_record_unresolved"]
-                            else ""
-                        )
-                        if r["delay_record"] is not None
-                        else "-"
-                    ),
-                    f"{short(r['floor_positive_length'])} / {short(r['floor_negative_length'])}",
-                    f"{short(r['necklaces_at_x'], 12)} / {short(r['candidates_at_x'])} / {short(r['heuristic_at_x'])}",
-                ]
-                for r in rows
-            ],
-        )
-    )
+    con.print(show_table(cmp.overview()))
     for p in cmp.profiles:
         if p.census is None and p.census_note:
             con.print(f"{p.map.label}: no census: {p.census_note}", highlight=False)
         if p.predictions is not None:
             con.print(show_table(p.predictions.table()))
-    if any(r.get("rho_assumes") and "fails" in r["rho_assumes"] for r in rows):
-        con.print(
-            "* rho assumes every itinerary is realized; a multiplier of this map shares a factor "
-            "with d, so some itineraries never occur and rho over-counts them."
-        )
     con.print(cmp.store_use.line(), highlight=False)
     con.print(HEURISTIC_CAUTION)
 

@@ -3,13 +3,16 @@
 from __future__ import annotations
 
 import json
+from dataclasses import replace
 from pathlib import Path
 
 import click
 
+from cyclewright.cycles.compare import ROW_HEADINGS, overview_table
+
 from ..errors import BadInput
 from ..options import latex_tables, out_option, workers_option
-from ..render import make_table, short, stdout_console
+from ..render import short, show_table, stdout_console
 from ..study import run_study
 from ..studyfile import StudyError, load_study
 
@@ -41,43 +44,27 @@ def demo_cmd(out, workers) -> None:
 
 
 def highlights(study, out: Path):
-    """The highlights table, read from the study's compare data file: K, N and x named in it.
+    """The highlights: columns of the comparison's overview, read from the study's data file.
 
     Every figure comes from the study's ``compare`` analysis, so the census
     length K, the range 1..N behind the unresolved share and the floors, and
     x are those of that analysis (the report's own floor section may assume
-    another N; its table of parameters lists both).
+    another N; its table of parameters lists both). The table is
+    :func:`~cyclewright.cycles.compare.overview_table`, the one the
+    ``compare`` command prints: no figure is formatted twice.
     """
-    from cyclewright.cycles.compare import ROW_HEADINGS
-
     spec = next(a for a in study.analyses if a.kind == "compare")
-    K, N = spec.params["max_length"], spec.params["to"]
+    K, N, X = spec.params["max_length"], spec.params["to"], spec.params["odd"]
     doc = json.loads((out / "compare.json").read_text())
     rows = [{c: r.get(ROW_HEADINGS[c]) for c in ROW_HEADINGS} for r in doc["rows"]]
-    return make_table(
-        f"Highlights (from this run's data files; census length K = {K}, starts 1..N with N = {short(N)})",
-        [
-            "map",
-            "drift per step [exact]",
-            "drift, rounded [rounded]",
-            f"cycles of length <= {K} other than 0: primitive of all [certified]",
-            "cycle minima [certified]",
-            f"share of 1..{short(N)} unresolved [rounded]",
-            f"least length of a further cycle, + / -, given 1..{short(N)} verified [proved]",
-        ],
-        [
-            [
-                r["map"],
-                r["drift_exact"],
-                f"{r['drift']:+.4f}",
-                f"{r['census_primitive_cycles']} of {r['census_cycles']}",
-                ", ".join(map(str, r["census_minima"] or [])),
-                f"{r['unresolved_share']:.4f}" if r["unresolved_share"] is not None else "-",
-                f"{r['floor_positive_length'] or '-'} / {r['floor_negative_length'] or '-'}",
-            ]
-            for r in rows
-        ],
-    )
+    view = overview_table(rows, K, N, X)
+    keep = [
+        c
+        for c in view.columns
+        if c.startswith(("map", "drift", "cycles of length", "cycle minima", "share of", "least"))
+    ]
+    title = f"Highlights (from this run's data files; census length K = {K}, starts 1..N with N = {short(N)})"
+    return show_table(replace(view, title=title).select(keep))
 
 
 COMMANDS = [demo_cmd]
