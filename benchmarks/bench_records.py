@@ -27,42 +27,11 @@ import argparse
 import json
 import os
 import platform
-import shutil
 import subprocess
 import sys
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-BUILD = HERE / "_build"
-ROOT = HERE.parent
-
-_WRAPPER = r"""
-import json, resource, subprocess, sys, time
-t0 = time.perf_counter()
-p = subprocess.run(sys.argv[1:], capture_output=True, text=True)
-dt = time.perf_counter() - t0
-rss = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
-print(json.dumps({"seconds": dt, "maxrss_kib": rss, "rc": p.returncode, "out": p.stdout, "err": p.stderr}))
-"""
-
-
-def measured(cmd: list[str]) -> dict:
-    """Run ``cmd`` in a fresh wrapper process: wall time and the largest child's peak RSS."""
-    p = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True)
-    res = json.loads(p.stdout)
-    if res["rc"] != 0:
-        raise SystemExit(f"command failed: {' '.join(cmd)}\n{res['err']}")
-    return res
-
-
-def build_c() -> Path:
-    BUILD.mkdir(exist_ok=True)
-    exe = BUILD / "plain_records"
-    cc = shutil.which("gcc")
-    if cc is None:
-        raise SystemExit("gcc is needed for the plain C loop")
-    subprocess.run([cc, "-O2", "-o", str(exe), str(HERE / "plain_records.c")], check=True)
-    return exe
+from harness import BUILD, build_c, measured, parse_n
 
 
 def plain_c(exe: Path, lo: int, hi: int) -> dict:
@@ -76,14 +45,6 @@ def plain_c(exe: Path, lo: int, hi: int) -> dict:
             recs[kind].append([int(s), int(v)])
     secs = float(out[0])
     return {"seconds": secs, "rate": (hi - lo + 1) / secs, "records": recs}
-
-
-def parse_n(text: str) -> int:
-    text = text.replace("_", "")
-    if "^" in text:
-        b, e = text.split("^")
-        return int(b) ** int(e)
-    return int(float(text)) if "e" in text else int(text)
 
 
 def main() -> None:
@@ -108,7 +69,7 @@ def main() -> None:
         k: [[r["start"], r["value"]] for r in doc["sides"]["positive"]["records"][k]]
         for k in ("full_delay", "full_glide", "full_peak")
     }
-    exe = build_c()
+    exe = build_c("plain_records")
     c = plain_c(exe, 1, n)
     if got != c["records"]:
         raise SystemExit("the record holders of cyclewright and of the C loop differ")

@@ -33,44 +33,12 @@ import argparse
 import json
 import os
 import platform
-import shutil
 import subprocess
-import sys
 import tempfile
 import time
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-BUILD = HERE / "_build"
-ROOT = HERE.parent
-
-_WRAPPER = r"""
-import json, resource, subprocess, sys, time
-t0 = time.perf_counter()
-p = subprocess.run(sys.argv[1:], capture_output=True, text=True)
-dt = time.perf_counter() - t0
-rss = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
-print(json.dumps({"seconds": dt, "maxrss_kib": rss, "rc": p.returncode, "out": p.stdout, "err": p.stderr}))
-"""
-
-
-def measured(cmd: list[str]) -> dict:
-    """Run ``cmd`` in a fresh wrapper process: wall time and the largest child's peak RSS."""
-    p = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True)
-    res = json.loads(p.stdout)
-    if res["rc"] != 0:
-        raise SystemExit(f"command failed: {' '.join(cmd)}\n{res['err']}")
-    return res
-
-
-def build_c() -> Path:
-    BUILD.mkdir(exist_ok=True)
-    exe = BUILD / "plain_scan"
-    cc = shutil.which("gcc")
-    if cc is None:
-        raise SystemExit("gcc is needed for the plain C loop")
-    subprocess.run([cc, "-O2", "-o", str(exe), str(HERE / "plain_scan.c")], check=True)
-    return exe
+from harness import BUILD, ROOT, build_c, measured
 
 
 def plain_c(exe: Path, a: int, b: int, lo: int, hi: int, cap: int) -> dict:
@@ -163,7 +131,7 @@ def main() -> None:
             "python": platform.python_version(),
         }
     }
-    exe = build_c()
+    exe = build_c("plain_scan")
     with tempfile.TemporaryDirectory() as tmp:
         tmpd = Path(tmp)
         # warm the caches a user's second run finds: the compiled kernels (numba)

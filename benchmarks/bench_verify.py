@@ -42,17 +42,7 @@ import sys
 import time
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-BUILD = HERE / "_build"
-ROOT = HERE.parent
-
-
-def parse_n(text: str) -> int:
-    t = text.replace("_", "").replace(",", "")
-    if "^" in t:
-        b, e = t.split("^")
-        return int(b) ** int(e)
-    return int(float(t)) if "e" in t.lower() else int(t)
+from harness import BUILD, HERE, ROOT, parse_n
 
 
 def build_c() -> tuple[Path, str]:

@@ -45,6 +45,21 @@ def _legend_above_data(ax) -> None:
     ax.legend(fontsize=6, loc="upper right", frameon=False)
 
 
+def _log_axes(ax, xlabel: str, ylabel: str, title: str, *, head_room: bool = False) -> None:
+    """A log-scale y axis over integer x values: labels, title, small ticks, a legend
+    (with ``head_room``, above the tallest bar)."""
+    ax.set_yscale("log")
+    ax.set_xlabel(xlabel, fontsize=8)
+    ax.set_ylabel(ylabel, fontsize=8)
+    ax.set_title(title, fontsize=8)
+    _integer_ticks(ax.xaxis)
+    ax.tick_params(labelsize=7)
+    if head_room:
+        _legend_above_data(ax)
+    else:
+        ax.legend(fontsize=6, loc="best", frameon=False)
+
+
 def log10(n) -> float:
     """log10 of a positive integer or float, exact-enough for plotting big integers; nan for <= 0."""
     if n is None:
@@ -232,13 +247,13 @@ def plot_records(result, path: str | os.PathLike) -> Path:
             mu, sig = h["delay_mean"], h["delay_sd"]
             ax.axvline(mu, color="C3", lw=1.2, label="drift model mean (heuristic)")
             ax.axvspan(mu - sig, mu + sig, color="C3", alpha=0.12, label="model mean ± sd")
-        ax.set_yscale("log")
-        ax.set_xlabel("steps to the cycle minimum (divided)", fontsize=8)
-        ax.set_ylabel("starts (count)", fontsize=8)
-        ax.set_title(f"{result.map.label}, {sd.side} side: delay", fontsize=8)
-        _integer_ticks(ax.xaxis)
-        ax.tick_params(labelsize=7)
-        _legend_above_data(ax)
+        _log_axes(
+            ax,
+            "steps to the cycle minimum (divided)",
+            "starts (count)",
+            f"{result.map.label}, {sd.side} side: delay",
+            head_room=True,
+        )
         ax = row[1]
         if sd.glides:
             xs = sorted(sd.glides)
@@ -248,13 +263,13 @@ def plot_records(result, path: str | os.PathLike) -> Path:
             n = sum(sd.glides.values()) + sd.no_glide
             ks = [k for k in sorted(gp) if k <= max(sd.glides, default=1)]
             ax.plot(ks, [n * gp[k] for k in ks], "k.", ms=3, label="random-walk model (heuristic)")
-        ax.set_yscale("log")
-        ax.set_xlabel("stopping time (steps)", fontsize=8)
-        ax.set_ylabel("starts (count)", fontsize=8)
-        ax.set_title(f"{result.map.label}, {sd.side} side: glide", fontsize=8)
-        _integer_ticks(ax.xaxis)
-        ax.tick_params(labelsize=7)
-        _legend_above_data(ax)
+        _log_axes(
+            ax,
+            "stopping time (steps)",
+            "starts (count)",
+            f"{result.map.label}, {sd.side} side: glide",
+            head_room=True,
+        )
     fig.tight_layout()
     return save_figure(fig, path)
 
@@ -277,12 +292,11 @@ def plot_orbit(o, path: str | os.PathLike) -> Path:
     ax.plot(marked, [ys[i] for i in marked], "o", ms=2.5, color="C3", label=f"{what} taken here")
     if o.cycle and o.tail is not None:
         ax.axvspan(o.tail, len(vals) - 1, color="0.85", label="on the cycle")
-    ax.set_yscale("log")
-    ax.set_xlabel("step (divided map)", fontsize=8)
-    ax.set_ylabel("|value| (log scale)", fontsize=8)
-    ax.set_title(f"{o.map.label}: orbit of {o.start} ({o.status})", fontsize=8)
-    _integer_ticks(ax.xaxis)
-    ax.tick_params(labelsize=7)
-    ax.legend(fontsize=6, loc="best", frameon=False)
+    _log_axes(
+        ax,
+        "step (divided map)",
+        "|value| (log scale)",
+        f"{o.map.label}: orbit of {o.start} ({o.status})",
+    )
     fig.tight_layout()
     return save_figure(fig, path)

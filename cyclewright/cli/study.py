@@ -27,7 +27,7 @@ import json
 import os
 import platform
 import shutil
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
 
 from cyclewright.cycles.files import atomic_write
@@ -73,6 +73,13 @@ class StudyContext:
         self.names.add(stem)
         return stem
 
+    def add_stacked(
+        self, sec: Section, name: Sequence[str], tables: Sequence, title: str | None = None
+    ) -> None:
+        """Add the maps' tables to ``sec`` as one table (one row block a map); none: nothing."""
+        if tables:
+            sec.tables.append(Table.of(self.name(*name), ResultTable.stack(tables, title)))
+
 
 def _versions() -> dict:
     from importlib import metadata
@@ -108,9 +115,12 @@ def _count(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             continue
         tc = count(m, p["length"], p["odd"], limit=p["limit"])
         rows.append(tc.table().with_column("map", m.label))
-    if rows:
-        t = ResultTable.stack(rows, title=f"Type k = {p['length']}, x = {p['odd']}")
-        sec.tables.append(Table.of(ctx.name("count", str(p["length"]), str(p["odd"])), t))
+    ctx.add_stacked(
+        sec,
+        ("count", str(p["length"]), str(p["odd"])),
+        rows,
+        f"Type k = {p['length']}, x = {p['odd']}",
+    )
     sec.cautions.append(HEURISTIC_CAUTION)
     return sec
 
@@ -177,8 +187,8 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         t_counts, t_cycles = r.tables()
         counts.append(t_counts.with_column("map", m.label))
         cyc.append(t_cycles.with_column("map", m.label))
-    for name, tables in (("scan-counts", counts), ("scan-cycles", cyc)):
-        sec.tables.append(Table.of(ctx.name(name), ResultTable.stack(tables)))
+    ctx.add_stacked(sec, ("scan-counts",), counts)
+    ctx.add_stacked(sec, ("scan-cycles",), cyc)
     ctx.note_store_use(sec, StoreUse.total(uses))
     return sec
 
@@ -218,9 +228,8 @@ def _census(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         plans.append(t_plans.with_column("map", m.label))
         cyc.append(t_cycles.with_column("map", m.label))
         sec.paragraphs.append(f"{c.statement()} Certificate: [{cert.name}]({cert.name}).")
-    for name, tables in (("census-methods", plans), ("census-cycles", cyc)):
-        if tables:
-            sec.tables.append(Table.of(ctx.name(name, str(K)), ResultTable.stack(tables)))
+    ctx.add_stacked(sec, ("census-methods", str(K)), plans)
+    ctx.add_stacked(sec, ("census-cycles", str(K)), cyc)
     ctx.note_store_use(sec, StoreUse.total(uses))
     return sec
 
@@ -240,7 +249,7 @@ def _floor(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         except InputError as exc:  # the bound does not apply on the one side asked: say why
             got = PerSide({}, {p["side"]: str(exc)})
         tables.append(floor_table(got).with_column("map", m.label))
-    sec.tables.append(Table.of(ctx.name("floor", str(N)), ResultTable.stack(tables)))
+    ctx.add_stacked(sec, ("floor", str(N)), tables)
     return sec
 
 
@@ -303,7 +312,7 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
                     png, f"{m.label}: the orbits of 1..{p['to']} ({p['side']}), cycles highlighted"
                 )
             )
-    sec.tables.append(Table.of(ctx.name("graph-basins"), ResultTable.stack(rows)))
+    ctx.add_stacked(sec, ("graph-basins",), rows)
     return sec
 
 
@@ -342,15 +351,8 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
                     f"{p['from']}..{p['to']} (counts exact; model heuristic)",
                 )
             )
-    sec.tables.append(
-        Table.of(
-            ctx.name("records"),
-            ResultTable.stack(summaries, "Record holders and mean step counts"),
-        )
-    )
-    sec.tables.append(
-        Table.of(ctx.name("records-basins"), ResultTable.stack(basins, "Basin sizes"))
-    )
+    ctx.add_stacked(sec, ("records",), summaries, "Record holders and mean step counts")
+    ctx.add_stacked(sec, ("records-basins",), basins, "Basin sizes")
     return sec
 
 
