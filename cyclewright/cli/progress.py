@@ -14,10 +14,13 @@ from __future__ import annotations
 import sys
 import time
 from collections.abc import Callable
+from typing import TypeVar
 
 from cyclewright.cycles.progress import ProgressEvent
 
-__all__ = ["ProgressDisplay", "progress_display", "messages", "PLAIN_INTERVAL"]
+T = TypeVar("T")
+
+__all__ = ["ProgressDisplay", "progress_display", "with_progress", "messages", "PLAIN_INTERVAL"]
 
 #: Seconds between two plain progress lines (and before the first one).
 PLAIN_INTERVAL = 5.0
@@ -138,6 +141,16 @@ class ProgressDisplay:
 def progress_display() -> ProgressDisplay:
     """The display on stderr (a bar on a terminal, plain periodic lines otherwise)."""
     return ProgressDisplay()
+
+
+def with_progress(fn: Callable[..., T], *args, **kwargs) -> T:
+    """``fn(*args, progress=display, **kwargs)`` inside the one progress display.
+
+    >>> with_progress(lambda n, progress: n + 1, 41)
+    42
+    """
+    with progress_display() as show:
+        return fn(*args, progress=show, **kwargs)
 
 
 def messages(show: Callable[[ProgressEvent], None], phase: str, unit: str = ""):

@@ -46,6 +46,7 @@ from pathlib import Path
 
 from cyclewright.cycles.compare import COMPARE_DEFAULTS
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
+from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
 
@@ -182,7 +183,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "floor": {
         "verified_to": (_int(1, 10**MAX_START_DIGITS), 2**40),
         "side": (SIDE, DEFAULT_SIDE),
-        "next": (_int(0, 50), 3),
+        "next": (_int(0, 50), DEFAULT_NEXT_TYPES),
     },
     "compare": {  # the defaults are compare()'s own
         "max_length": (_int(1, MAX_CENSUS_LENGTH), COMPARE_DEFAULTS["max_length"]),

@@ -89,7 +89,11 @@ __all__ = [
     "Floor",
     "floor",
     "floor_table",
+    "DEFAULT_NEXT_TYPES",
 ]
+
+#: How many further possible types :func:`floor` lists by default (``--next``, study ``next``).
+DEFAULT_NEXT_TYPES = 5
 
 
 # --------------------------------------------------------------------------
@@ -479,7 +483,7 @@ def floor_table(result: Floor | PerSide[Floor]) -> Table:
 
 
 def floor(
-    m: Map | str, verified_to: int, side: Side = DEFAULT_SIDE, *, next_types: int = 5
+    m: Map | str, verified_to: int, side: Side = DEFAULT_SIDE, *, next_types: int = DEFAULT_NEXT_TYPES
 ) -> Floor | PerSide[Floor]:
     """The least length and odd-step count of any further cycle, given a verified range.
 

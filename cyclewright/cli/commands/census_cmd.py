@@ -33,7 +33,7 @@ from ..options import (
     store_options,
     workers_option,
 )
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, show_table, stderr_console, stdout_console
 
 __all__ = ["COMMANDS"]
@@ -137,23 +137,20 @@ def census_cmd(
         for line in plan.lines():
             stderr_console().print(f"plan: {line}", highlight=False)
 
-    with progress_display() as show:
-        c = census(
-            m,
-            K,
-            side=side,
-            progress=show,
-            executor=executor,
-            scheduler=scheduler,
-            on_plan=show_plan,
-            **kw,
-        )
+    c = with_progress(
+        census,
+        m,
+        K,
+        side=side,
+        executor=executor,
+        scheduler=scheduler,
+        on_plan=show_plan,
+        **kw,
+    )
     if cert_path:
         write_certificate(c, cert_path)
     if as_json:
-        doc = c.to_dict()
-        doc["certificate"] = cert_path
-        emit_json(doc)
+        emit_json({**c.to_dict(), "certificate": cert_path})
         return
     con = stdout_console()
     con.print(
@@ -176,14 +173,10 @@ def census_cmd(
 
 
 def _plan(m, K, side, method, workers, max_scan, as_json) -> None:
-    with progress_display() as show:
-        plan = plan_census(m, K, side=side, method=method, workers=workers, progress=show)
+    plan = with_progress(plan_census, m, K, side=side, method=method, workers=workers)
     refused = any((p.scan_to or 0) > max_scan for p in plan.plans.values())
     if as_json:
-        doc = plan.to_dict()
-        doc["max_scan"] = max_scan
-        doc["refused"] = refused
-        emit_json(doc)
+        emit_json({**plan.to_dict(), "max_scan": max_scan, "refused": refused})
         return
     con = stdout_console()
     for line in plan.lines():
@@ -207,16 +200,15 @@ def _family(template, ks, K, side, all_offsets, cert_path, kw, as_json):
         raise BadInput(
             "--certificate is for a single map; run the census of one member to certify it"
         )
-    with progress_display() as show:
-        fam = census_family(
-            template,
-            ks,
-            K,
-            side=side,
-            all_k=all_offsets,
-            progress=show,
-            **kw,
-        )
+    fam = with_progress(
+        census_family,
+        template,
+        ks,
+        K,
+        side=side,
+        all_k=all_offsets,
+        **kw,
+    )
     if as_json:
         emit_json(fam.to_dict())
         return

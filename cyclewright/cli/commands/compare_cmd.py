@@ -33,7 +33,7 @@ from ..options import (
     to_option,
     workers_option,
 )
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, show_table, stdout_console, write_csv
 
 __all__ = ["COMMANDS", "resolve_maps"]
@@ -135,17 +135,16 @@ def compare_cmd(
     check_output(csv_path, "--csv")
     check_figure_path(plot_path, "--plot")
     ms = resolve_maps(map_specs, offsets, map_files, all_offsets)
-    with progress_display() as show:
-        cmp = compare(
-            ms,
-            **{k: v for k, v in given.items() if v is not None},
-            max_steps=max_steps,
-            store=resolve_store(store, no_store),
-            workers=workers,
-            executor=executor,
-            scheduler=scheduler,
-            progress=show,
-        )
+    cmp = with_progress(
+        compare,
+        ms,
+        **{k: v for k, v in given.items() if v is not None},
+        max_steps=max_steps,
+        store=resolve_store(store, no_store),
+        workers=workers,
+        executor=executor,
+        scheduler=scheduler,
+    )
     if csv_path:
         target = sys.stdout if csv_path == "-" else csv_path
         t = cmp.table()

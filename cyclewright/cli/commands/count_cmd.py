@@ -23,7 +23,7 @@ from ..options import (
     resolve_map,
     show_option,
 )
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, short, show_table, stdout_console
 
 __all__ = ["COMMANDS", "parse_content"]
@@ -97,15 +97,14 @@ def count_cmd(map_spec, length, odd, content_text, limit, show, map_files, as_js
             f"{m.label} has divisor {m.divisor}: give the type as --content r:c,... "
             "(how often each residue occurs)"
         )
-    with progress_display() as show_progress:
-        tc = count(
-            m,
-            length,
-            odd,
-            content=content,
-            limit=limit,
-            progress=show_progress,
-        )
+    tc = with_progress(
+        count,
+        m,
+        length,
+        odd,
+        content=content,
+        limit=limit,
+    )
     if as_json:
         emit_json(tc.to_dict())
         return

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from cyclewright.cycles.floors import floor
+from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES, floor
 from cyclewright.cycles.limits import MAX_NEXT_TYPES
 from cyclewright.cycles.sides import PerSide
 
@@ -44,7 +44,7 @@ from ..render import emit_json, show_table, stdout_console
 @click.option(
     "--next",
     "next_types",
-    default=5,
+    default=DEFAULT_NEXT_TYPES,
     show_default=True,
     type=IntExpr(minimum=0, maximum=MAX_NEXT_TYPES),
     metavar="J",

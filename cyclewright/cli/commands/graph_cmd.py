@@ -25,7 +25,7 @@ from ..options import (
     side_option,
     to_option,
 )
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, short, show_table, stdout_console
 
 #: File name endings --plot understands (the format follows the ending).
@@ -102,16 +102,15 @@ def graph_cmd(
     if len({p.resolve() for p in names}) != len(names):
         raise BadInput("two outputs name the same file")
 
-    with progress_display() as show:
-        result = functional_graph(
-            m,
-            n_to,
-            start=n_from,
-            side=side,
-            max_steps=steps,
-            ceiling=ceil,
-            progress=show,
-        )
+    result = with_progress(
+        functional_graph,
+        m,
+        n_to,
+        start=n_from,
+        side=side,
+        max_steps=steps,
+        ceiling=ceil,
+    )
     nodes = result.graph.number_of_nodes()
     if outputs["plot"] is not None and nodes > PLOT_NODE_LIMIT:
         raise BadInput(
@@ -129,9 +128,7 @@ def graph_cmd(
         written["plot"] = str(result.plot(outputs["plot"]))
 
     if as_json:
-        doc = result.to_dict()
-        doc["written"] = written
-        emit_json(doc)
+        emit_json({**result.to_dict(), "written": written})
         return
     con = stdout_console()
     con.print(

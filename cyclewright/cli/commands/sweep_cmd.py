@@ -31,7 +31,7 @@ from ..options import (
     side_option,
 )
 from ..plots import plot_sweep
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, show_table, stdout_console, write_csv
 
 __all__ = ["COMMANDS"]
@@ -100,8 +100,7 @@ def sweep_cmd(
     check_figure_path(plot_path, "--plot", force)
     if plot_path and side == "both":
         raise BadInput("--plot draws one side; give --side positive or --side negative")
-    with progress_display() as show_progress:
-        got = sweep(m, xs, extra, side, limit=limit, progress=show_progress)
+    got = with_progress(sweep, m, xs, extra, side, limit=limit)
     sweeps = list(got) if isinstance(got, PerSide) else [got]
     # Outputs are written only after the whole sweep succeeded.
     if csv_path:

@@ -14,7 +14,7 @@ from cyclewright.cycles.certificate import (
 
 from ..errors import BadInput
 from ..options import json_option, latex_tables, workers_option
-from ..progress import progress_display
+from ..progress import with_progress
 from ..render import emit_json, latex_mode, make_table, stdout_console
 
 __all__ = ["COMMANDS"]
@@ -58,8 +58,7 @@ def verify_cmd(path, rescan, minutes, workers, as_json):
         raise BadInput(f"--minutes must be a number, got {minutes!r}") from None
     if not limit >= 0:
         raise BadInput(f"--minutes must be at least 0, got {minutes!r}")
-    with progress_display() as show:
-        v = verify_certificate(path, rescan=rescan, workers=workers, minutes=limit, progress=show)
+    v = with_progress(verify_certificate, path, rescan=rescan, workers=workers, minutes=limit)
     if as_json:
         emit_json(v.to_dict())
     elif latex_mode():  # one table of the checks, the verdict as its note
