@@ -49,6 +49,7 @@ from cyclewright.maps import Map, as_map
 from .census import Census, census
 from .counting import count
 from .errors import InputError
+from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED, Label
 from .limits import (
     DEFAULT_MAX_STEPS,
@@ -204,7 +205,7 @@ def _rho_assumes(m: Map) -> str:
 
 
 @dataclass(frozen=True)
-class TypeRow:
+class TypeRow(OfContent):
     """One type of the predictions table (found against the counting figures)."""
 
     side: str
@@ -216,10 +217,6 @@ class TypeRow:
     candidates: int | None
     candidates_label: str
     heuristic: Fraction | None
-
-    @property
-    def length(self) -> int:
-        return sum(self.content)
 
     def to_dict(self) -> dict:
         return {

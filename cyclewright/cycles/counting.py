@@ -61,6 +61,7 @@ from cyclewright.maps import Map, as_map
 from .errors import InputError
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .intervals import Interval, _log_form
+from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .limits import MAX_TYPE_LENGTH, check_range
 from .linear_forms import LinearFormBound, _linear_form_bound, candidates_from_linear_form
@@ -142,7 +143,7 @@ def _down4(q: Fraction) -> str:
 
 
 @dataclass(frozen=True)
-class TypeCount(Presentable):
+class TypeCount(OfContent, Presentable):
     """Counting figures for one type; see the module docstring for the definitions.
 
     Attributes
@@ -207,16 +208,6 @@ class TypeCount(Presentable):
     linear_form: LinearFormBound
     candidates_linear_forms: int | None
     labels: dict = field(default_factory=dict, compare=False)
-
-    @property
-    def length(self) -> int:
-        """``k``."""
-        return sum(self.content)
-
-    @property
-    def odd(self) -> int | None:
-        """For two-branch maps, ``x`` (steps on residue 1); None otherwise."""
-        return self.content[1] if len(self.content) == 2 else None
 
     @property
     def off_zero(self) -> int:

@@ -58,7 +58,7 @@ References
 from __future__ import annotations
 
 import heapq
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 
 from cyclewright.maps import Map, as_map
@@ -73,7 +73,7 @@ from .continued_fractions import (
 )
 from .errors import InputError
 from .intervals import _log_sign, _Precision
-from .labels import EXACT, PROVED
+from .labels import EXACT, PROVED, labels_field
 from .limits import (
     MAX_NEXT_TYPES,
     MAX_START_DIGITS,
@@ -270,15 +270,12 @@ class Floor(Presentable):
     next_possible: tuple[tuple[int, int], ...]
     interval: dict
     precision_bits: int
-    labels: dict = field(
-        default_factory=lambda: {
-            "least_length": PROVED.value,
-            "odd_steps": PROVED.value,
-            "next_possible": PROVED.value,
-            "continued_fraction": EXACT.value,
-        },
-        compare=False,
+    labels: dict = labels_field(
         repr=False,
+        least_length=PROVED,
+        odd_steps=PROVED,
+        next_possible=PROVED,
+        continued_fraction=EXACT,
     )
 
     @property
@@ -483,7 +480,11 @@ def floor_table(result: Floor | PerSide[Floor]) -> Table:
 
 
 def floor(
-    m: Map | str, verified_to: int, side: Side = DEFAULT_SIDE, *, next_types: int = DEFAULT_NEXT_TYPES
+    m: Map | str,
+    verified_to: int,
+    side: Side = DEFAULT_SIDE,
+    *,
+    next_types: int = DEFAULT_NEXT_TYPES,
 ) -> Floor | PerSide[Floor]:
     """The least length and odd-step count of any further cycle, given a verified range.
 

@@ -57,7 +57,7 @@ from cyclewright.maps import Map, as_map
 from .errors import InputError
 from .files import atomic_write
 from .integer_cycle import IntegerCycle, cycle_from_element
-from .labels import EXACT
+from .labels import EXACT, labels_field
 from .limits import (
     DEFAULT_CEILING,
     DEFAULT_MAX_STEPS,
@@ -133,15 +133,7 @@ class FunctionalGraph(Presentable):
     starts: int
     escaped: int
     unresolved: int
-    labels: dict = field(
-        default_factory=lambda: {
-            "cycles": EXACT.value,
-            "basin": EXACT.value,
-            "escaped": EXACT.value,
-            "unresolved": EXACT.value,
-        },
-        compare=False,
-    )
+    labels: dict = labels_field(cycles=EXACT, basin=EXACT, escaped=EXACT, unresolved=EXACT)
 
     # ------------------------------------------------------------ summaries
     @property

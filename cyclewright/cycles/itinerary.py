@@ -10,6 +10,8 @@ Inside
 - :func:`rotations`, :func:`least_rotation` -- necklace representatives.
 - :func:`composite` -- ``(A, B)`` with ``T_w(n) = (A n + B) / d^k``.
 - :func:`content` -- how many times each residue occurs (the type).
+- :class:`OfContent` -- ``length`` and ``odd`` of a result that holds a type's
+  ``content`` (the counting figures, the minimum bound, the predictions).
 - :data:`MAX_ITINERARY_LENGTH` -- the longest itinerary accepted.
 
 References
@@ -38,6 +40,7 @@ __all__ = [
     "least_rotation",
     "composite",
     "content",
+    "OfContent",
     "MAX_ITINERARY_LENGTH",
 ]
 
@@ -211,6 +214,30 @@ def content(word: Sequence[int], divisor: int) -> tuple[int, ...]:
     for r in word:
         counts[r] += 1
     return tuple(counts)
+
+
+class OfContent:
+    """``length`` and ``odd`` of a type held as ``content`` (steps per residue ``0 .. d-1``).
+
+    >>> from dataclasses import dataclass
+    >>> @dataclass(frozen=True)
+    ... class T(OfContent):
+    ...     content: tuple[int, ...]
+    >>> T((3, 2)).length, T((3, 2)).odd, T((1, 1, 1)).odd
+    (5, 2, None)
+    """
+
+    content: tuple[int, ...]
+
+    @property
+    def length(self) -> int:
+        """``k``, the number of steps."""
+        return sum(self.content)
+
+    @property
+    def odd(self) -> int | None:
+        """For two-branch maps, ``x`` (steps on residue 1); None otherwise."""
+        return self.content[1] if len(self.content) == 2 else None
 
 
 def composite(

@@ -15,11 +15,13 @@
 A capped value is never labelled ``exact`` as a number: it is shown as a
 lower bound (``"> 2^62"``). Results expose their labels through a ``labels``
 mapping from field name to label; JSON output carries it alongside the values.
-:data:`LABELS` lists every label name a ``labels`` mapping may use.
+:data:`LABELS` lists every label name a ``labels`` mapping may use;
+:func:`labels_field` declares a result's ``labels`` as a dataclass field.
 """
 
 from __future__ import annotations
 
+from dataclasses import field
 from enum import Enum
 
 __all__ = [
@@ -31,6 +33,7 @@ __all__ = [
     "ROUNDED",
     "LABELS",
     "HEURISTIC_CAUTION",
+    "labels_field",
 ]
 
 
@@ -60,3 +63,20 @@ HEURISTIC_CAUTION = (
     "Figures labelled 'heuristic' are expectations of a probabilistic model, not proofs; "
     "unresolved starts are open cases, not evidence either way."
 )
+
+
+def labels_field(*, repr: bool = True, **labels: Label):
+    """A dataclass field ``labels``: field name -> label name, each instance its own dict.
+
+    Left out of comparisons (two results are equal by their figures).
+
+    >>> from dataclasses import dataclass
+    >>> @dataclass
+    ... class R:
+    ...     n: int
+    ...     labels: dict = labels_field(n=EXACT)
+    >>> R(3).labels, R(3) == R(3)
+    ({'n': 'exact'}, True)
+    """
+    names = {k: Label(v).value for k, v in labels.items()}
+    return field(default_factory=lambda: dict(names), compare=False, repr=repr)

@@ -55,6 +55,7 @@ from .intervals import (
     _log_ratio_float,
     resolve_content,
 )
+from .itinerary import OfContent
 from .labels import PROVED
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -66,7 +67,7 @@ __all__ = [
 
 # ------------------------------------------------------------------ the bound
 @dataclass(frozen=True)
-class MinimumBound:
+class MinimumBound(OfContent):
     """The proved bound on the minimum of a cycle of one type on one side.
 
     Attributes
@@ -109,15 +110,6 @@ class MinimumBound:
     formula: str
     reason: str
     label: str = PROVED.value
-
-    @property
-    def length(self) -> int:
-        return sum(self.content)
-
-    @property
-    def odd(self) -> int | None:
-        """For two-branch maps, the number of steps on residue 1."""
-        return self.content[1] if len(self.content) == 2 else None
 
     def to_dict(self) -> dict:
         return {
@@ -461,18 +453,14 @@ def _bound_of_content(
     formula = _formula(m, content, st)
     if not st.applies:
         return MinimumBound(label, content, side, st.D, False, True, None, None, formula, st.reason)
+
+    def impossible(why: str) -> MinimumBound:  # the bound applies: no cycle of the type
+        zero = Interval(Fraction(0), Fraction(0))
+        return MinimumBound(label, content, side, st.D, True, False, 0, zero, formula, why)
+
     if not st.S:
-        return MinimumBound(
-            label,
-            content,
-            side,
-            st.D,
-            True,
-            False,
-            0,
-            Interval(Fraction(0), Fraction(0)),
-            formula,
-            "every residue used has offset 0: the composite is n -> A n / d^k, whose only cycle is 0",
+        return impossible(
+            "every residue used has offset 0: the composite is n -> A n / d^k, whose only cycle is 0"
         )
     if st.D == 0 or (st.D > 0) != st.growth:
         need = ">" if st.growth else "<"
@@ -480,18 +468,7 @@ def _bound_of_content(
             f"D = d^k - A = {_short_int(st.D)}: a {side} cycle of this type needs D {need} 0 "
             f"(the product of (1 + b_r/(a_r n)) along it is {'above' if st.growth else 'below'} 1)"
         )
-        return MinimumBound(
-            label,
-            content,
-            side,
-            st.D,
-            True,
-            False,
-            0,
-            Interval(Fraction(0), Fraction(0)),
-            formula,
-            why,
-        )
+        return impossible(why)
     lam = _log_ratio_float(st.d**st.k, st.A)
     M = _integer_bound(st, lam)
     interval = _real_interval(st, content, M) if with_interval else None
