@@ -251,12 +251,7 @@ class Study:
 def load_study(path: str | Path) -> Study:
     """Read and validate a study file; raises :class:`StudyError` with a precise message."""
     p = Path(path)
-    if p.is_dir():
-        raise StudyError(f"{p}: is a directory, not a study file")
-    try:
-        raw = read_limited(p, MAX_STUDY_FILE_BYTES, "study file")
-    except ValueError as exc:
-        raise StudyError(str(exc)) from None
+    raw = read_limited(p, MAX_STUDY_FILE_BYTES, "study file", StudyError)
     data = parse_toml(raw, str(p), "study file", StudyError)
     with parsing_digit_limit():
         return parse_study(data, origin=str(p), base_dir=p.parent, path=p)

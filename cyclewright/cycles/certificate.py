@@ -240,12 +240,7 @@ def load_certificate(path: str | os.PathLike) -> dict:
     checks everything else.
     """
     p = Path(path)
-    if p.is_dir():
-        raise InputError(f"{p}: is a directory, not a certificate")
-    try:
-        raw = read_limited(p, MAX_CERTIFICATE_BYTES, "certificate")
-    except ValueError as exc:
-        raise InputError(str(exc)) from None
+    raw = read_limited(p, MAX_CERTIFICATE_BYTES, "certificate", InputError)
     try:
         with parsing_digit_limit():
             doc = json.loads(raw.decode("utf-8"))

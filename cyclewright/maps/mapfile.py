@@ -99,22 +99,28 @@ def parsing_digit_limit(limit: int = PARSE_DIGIT_LIMIT):
         sys.set_int_max_str_digits(old)
 
 
-def read_limited(path: str | os.PathLike, max_bytes: int, what: str) -> bytes:
-    """The bytes of ``path``, refused (``ValueError``, one line) beyond ``max_bytes``.
+def read_limited(
+    path: str | os.PathLike, max_bytes: int, what: str, error: type[Exception] = ValueError
+) -> bytes:
+    """The bytes of the file ``path`` (a ``what``), refused beyond ``max_bytes``.
 
-    The size is checked before reading, so a huge file costs nothing.
+    The size is checked before reading, so a huge file costs nothing. A
+    directory, an unreadable file or one too large raises ``error`` with one
+    line naming the file (the map files, study files and certificates alike).
     """
     p = Path(path)
+    if p.is_dir():
+        raise error(f"{p}: is a directory, not a {what}")
     try:
         with open(p, "rb") as fh:
             size = os.fstat(fh.fileno()).st_size
             if size > max_bytes:
-                raise ValueError(f"{p}: the {what} has {size} bytes; at most {max_bytes} are read")
+                raise error(f"{p}: the {what} has {size} bytes; at most {max_bytes} are read")
             data = fh.read(max_bytes + 1)
     except OSError as exc:
-        raise ValueError(f"{p}: cannot read {what} ({exc.strerror or exc})") from None
+        raise error(f"{p}: cannot read {what} ({exc.strerror or exc})") from None
     if len(data) > max_bytes:
-        raise ValueError(f"{p}: the {what} is larger than {max_bytes} bytes")
+        raise error(f"{p}: the {what} is larger than {max_bytes} bytes")
     return data
 
 
@@ -172,12 +178,7 @@ def load_map_file(path: str | os.PathLike) -> list[Map]:
         the file, the map and the key).
     """
     p = Path(path)
-    if p.is_dir():
-        raise MapError(f"{p}: is a directory, not a map file")
-    try:
-        raw = read_limited(p, MAX_MAP_FILE_BYTES, "map file")
-    except ValueError as exc:
-        raise MapError(str(exc)) from None
+    raw = read_limited(p, MAX_MAP_FILE_BYTES, "map file", MapError)
     data = parse_toml(raw, str(p), "map file", MapError)
     return maps_from_toml_data(data, origin=str(p), source=f"file:{p}")
 
