@@ -323,6 +323,8 @@ def _fast_pass(
                 nxt = base if base > first else first
                 return False, nxt, ncyc, nhard, njump
             njump += jhi - jlo
+            # The argument list mirrors _lanes2's parameters (no logic is repeated): the
+            # compiled kernels take flat scalars and arrays, one numba signature each.
             ncyc, nhard = _lanes2(
                 q,
                 jlo,

@@ -384,6 +384,7 @@ def _resolve_many(
     L = np.zeros(nlimbs, np.int64)
     L2 = np.zeros(nlimbs, np.int64)
     for k in range(starts.shape[0]):
+        # the call mirrors _resolve_one's flat parameters (compiled: scalars and arrays only)
         code, steps, esc = _resolve_one(
             starts[k],
             cap,
