@@ -128,21 +128,12 @@ def plot_comparison(comparison, sweeps: dict, path: str | os.PathLike) -> Path:
             ax.set_title(p.map.label, fontsize=9)
             continue
         xs, series = _critical_series(s)
-        ax.plot(xs, [log10(v["necklaces"]) for v in series], label="necklaces (exact)", lw=1.3)
-        ax.plot(
-            xs,
-            [log10(v["candidates"]) for v in series],
-            label="candidates (proved/exact)",
-            lw=1.1,
-            ls="--",
-        )
-        ax.plot(
-            xs,
-            [log10(v["heuristic"]) for v in series],
-            label="necklaces/|D| (heuristic)",
-            lw=0.9,
-            ls=":",
-        )
+        for key, label, lw, ls in (
+            ("necklaces", "necklaces (exact)", 1.3, "-"),
+            ("candidates", "candidates (proved/exact)", 1.1, "--"),
+            ("heuristic", "necklaces/|D| (heuristic)", 0.9, ":"),
+        ):
+            ax.plot(xs, [log10(v[key]) for v in series], label=label, lw=lw, ls=ls)
         cyc = [(x, log10(v["cycles"])) for x, v in zip(xs, series) if v["known"] and v["cycles"]]
         if cyc:
             ax.scatter(
