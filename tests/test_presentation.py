@@ -35,6 +35,24 @@ def test_study_imports_no_command_module():
     assert not [m for m in mods if "commands" in m]
 
 
+def _calls(path: pathlib.Path) -> set[str]:
+    out = set()
+    for node in ast.walk(ast.parse(path.read_text())):
+        if isinstance(node, ast.Call):
+            f = node.func
+            out.add(f.id if isinstance(f, ast.Name) else getattr(f, "attr", ""))
+    return out
+
+
+def test_compare_and_demo_render_the_comparisons_own_tables():
+    # common practice, no source: the commands render Comparison.overview() (and the
+    # predictions' tables); neither builds a table of figures by hand
+    for name in ("compare_cmd.py", "demo_cmd.py"):
+        calls = _calls(ROOT / "cyclewright" / "cli" / "commands" / name)
+        assert "make_table" not in calls and "show_table" in calls, name
+        assert "overview" in calls or "overview_table" in calls, name
+
+
 def _well_formed(t: Table) -> None:
     assert t.title and t.columns
     assert all(len(row) == len(t.columns) for row in t.rows)
@@ -57,6 +75,7 @@ def test_every_result_table_is_well_formed():
     tables.append(floor_table(cw.floor("3x+1", 16, side="both")))
     cmp = cw.compare(["3x+1"], max_length=8, to=200, odd=3, store=False, workers=1)
     tables.append(cmp.table())
+    tables.append(cmp.overview())
     tables += [p.predictions.table() for p in cmp.profiles if p.predictions is not None]
     for t in tables:
         _well_formed(t)

@@ -182,3 +182,37 @@ def test_parse_study_inline():
         origin="inline",
     )
     assert st.analyses[0].params["verified_to"] == 2**40
+
+
+def test_study_defaults_are_the_api_defaults():
+    # common practice, no source: a default is declared once, in the API function's signature;
+    # a study key with an API default takes that default (keys named as on the command line)
+    import inspect
+
+    import cyclewright as cw
+    from cyclewright.cli.studyfile import PARAMS
+    from cyclewright.cycles.graph import functional_graph
+
+    api = {
+        "count": cw.count,
+        "sweep": cw.sweep,
+        "scan": cw.scan,
+        "census": cw.census,
+        "floor": cw.floor,
+        "compare": cw.compare,
+        "records": cw.records,
+        "graph": functional_graph,
+    }
+    assert set(api) == set(PARAMS)
+    renamed = {"from": "start", "next": "next_types"}
+    checked = 0
+    for kind, keys in PARAMS.items():
+        sig = inspect.signature(api[kind]).parameters
+        for key, (check, default) in keys.items():
+            p = sig.get(renamed.get(key, key))
+            if p is None or p.default is inspect.Parameter.empty:
+                continue
+            value = check(default) if isinstance(default, str) else default
+            assert value == p.default, (kind, key, value, p.default)
+            checked += 1
+    assert checked >= 20

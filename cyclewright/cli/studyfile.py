@@ -47,6 +47,7 @@ from pathlib import Path
 from cyclewright.cycles.compare import COMPARE_DEFAULTS
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES
+from cyclewright.cycles.sweep import DEFAULT_ODD
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
 
@@ -162,7 +163,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "limit": (_int(0, 10**8), DEFAULT_LIMIT),
     },
     "sweep": {
-        "odd": (_range_text, "1..40"),
+        "odd": (_range_text, f"{DEFAULT_ODD.start}..{DEFAULT_ODD.stop - 1}"),
         "extra_lengths": (_int(0, 50), 0),
         "side": (SIDE, DEFAULT_SIDE),
         "limit": (_int(0, 10**8), DEFAULT_SWEEP_LIMIT),
@@ -195,8 +196,8 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "records": {
         "to": (_int(1, 2**62), 10**5),
         "from": (_int(1, 2**62), 1),
-        "side": (SIDE, "positive"),
-        "max_steps": (_int(1, 10**6), 1000),
+        "side": (SIDE, DEFAULT_SIDE),
+        "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
         "plot": (_bool, True),
     },
     "graph": {

@@ -51,7 +51,11 @@ __all__ = [
     "critical_lengths",
     "Sweep",
     "sweep",
+    "DEFAULT_ODD",
 ]
+
+#: The odd steps ``x`` a sweep covers by default (study files read it too).
+DEFAULT_ODD = range(1, 101)
 
 
 # ------------------------------------------------------------------ sweep
@@ -380,7 +384,7 @@ class Sweep(Presentable):
 
 def sweep(
     m: Map | str,
-    odd: Iterable[int] = range(1, 101),
+    odd: Iterable[int] = DEFAULT_ODD,
     extra_lengths: int = 0,
     side: Side = DEFAULT_SIDE,
     *,
