@@ -186,4 +186,4 @@ def test_demo_runs(tmp_path):
     assert (tmp_path / "demo-out" / "report.md").is_file()
     assert list(here.iterdir()) == []
     # the highlights are columns of the comparison's own overview (one table, one place)
-    assert "highlights from this run's data files" in " ".join(out.stdout.split())
+    assert "Highlights (from this run's data files" in " ".join(out.stdout.split())

@@ -219,27 +219,30 @@ def test_compare_rows_agree_with_the_individual_commands(tmp_path):
 
 def test_overview_is_a_view_of_the_table(cmp):
     # common practice, no source: the condensed view re-presents the full table's figures
-    full = cmp.table().records()
+    rows = cmp.rows()
     view = cmp.overview().records()
-    assert [r["map"] for r in view] == [r["map"] for r in full] == ["3x+1", "5x+1"]
-    for f, v in zip(full, view, strict=True):
-        assert v["cycles <= K primitive / all"] == (
+    assert [r["map"] for r in view] == [r["map"] for r in rows] == ["3x+1", "5x+1"]
+    K, N, X = 16, 2000, 8
+    for f, v in zip(rows, view, strict=True):
+        assert v[f"cycles of length <= {K} other than 0: primitive / all"] == (
             f["census_primitive_cycles"],
             f["census_cycles"],
         )
-        assert v["minima"] == ", ".join(map(str, f["census_minima"]))
-        assert v["floor + / -"] == (f["floor_positive_length"], f["floor_negative_length"])
-        assert v["necklaces / candidates / heuristic at x"] == (
-            f["necklaces_at_x"],
-            f["candidates_at_x"],
-            f["heuristic_at_x"],
+        assert v["cycle minima"] == ", ".join(map(str, f["census_minima"]))
+        assert v[f"least length of a further cycle, + / -, given 1..{N} verified"] == (
+            f["floor_positive_length"],
+            f["floor_negative_length"],
         )
-        assert v["drift per step"].startswith(f["drift_exact"])
+        assert v[f"necklaces at x = {X}"] == f["necklaces_at_x"]
+        assert v[f"candidates at x = {X}"] == f["candidates_at_x"]
+        assert v["drift per step, exact form"] == f["drift_exact"]
     # Lagarias 1985 survey (from memory): 3x+1 cycles up to length 16 have minima 1, -1, -5, -17
-    assert view[0]["minima"] == "1, -1, -5, -17"
+    assert view[0]["cycle minima"] == "1, -1, -5, -17"
     labels = cmp.overview().labels
-    assert labels["minima"] == "certified" and labels["floor + / -"] == "proved"
-    assert labels["rho"] == "rounded"  # a float is never labelled exact
+    assert labels["cycle minima"] == "certified"
+    assert labels[f"least length of a further cycle, + / -, given 1..{N} verified"] == "proved"
+    assert labels["drift per step"] == "rounded"  # a float is never labelled exact
+    assert labels[f"necklaces/|D| at x = {X}"] == "heuristic"
 
 
 def test_compare_command_prints_the_results_overview(monkeypatch):
@@ -265,7 +268,7 @@ def test_compare_command_prints_the_results_overview(monkeypatch):
     )
     assert res.exit_code == 0, res.output
     assert len(shown) == 1
-    assert "Maps side by side (census K = 6" in " ".join(res.output.split())
+    assert "Maps side by side (census length K = 6" in " ".join(res.output.split())
     # Lagarias 1985 survey (from memory): up to length 6 the 3x+1 minima are 1, -1, -5
     assert "1, -1, -5" in res.output
 

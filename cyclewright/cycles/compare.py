@@ -638,7 +638,10 @@ def overview_table(rows: Sequence[dict], max_length: int, to: int, odd: int) -> 
             CERTIFIED,
             lambda r: Parts((r["census_primitive_cycles"], r["census_cycles"])),
         ),
-        "cycle minima": (CERTIFIED, lambda r: ", ".join(map(str, r["census_minima"] or [])) or None),
+        "cycle minima": (
+            CERTIFIED,
+            lambda r: ", ".join(map(str, r["census_minima"] or [])) or None,
+        ),
         f"share of 1..{N} unresolved": (ROUNDED, lambda r: r["unresolved_share"]),
         "largest value reached": ("largest_peak", lambda r: r["largest_peak"]),
         f"delay record over 1..{N}, at its start": (EXACT, _delay_text),
