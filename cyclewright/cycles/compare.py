@@ -613,7 +613,7 @@ def overview_table(rows: Sequence[dict], max_length: int, to: int, odd: int) -> 
     Examples
     --------
     >>> row = {"map": "3x+1", "drift_exact": "(1/2) ln(3/4)", "drift": -0.1438,
-    ...        "rho": 1.89, "census_primitive_cycles": 4,
+    ...        "critical_ratio": 1.585, "rho": 1.89, "census_primitive_cycles": 4,
     ...        "census_cycles": 4, "census_minima": [1, -1, -5, -17],
     ...        "unresolved_share": 0.0, "largest_peak": 9232, "delay_record": 111,
     ...        "delay_record_start": 27, "delay_record_unresolved": 0,
@@ -633,6 +633,7 @@ def overview_table(rows: Sequence[dict], max_length: int, to: int, odd: int) -> 
         "map": (None, lambda r: r["map"]),
         "drift per step, exact form": (EXACT, lambda r: r["drift_exact"]),
         "drift per step": (ROUNDED, lambda r: r["drift"]),
+        "critical ratio k/x": (ROUNDED, lambda r: r["critical_ratio"]),
         "necklace growth rate rho": (ROUNDED, lambda r: r["rho"]),
         f"cycles of length <= {K} other than 0: primitive / all": (
             CERTIFIED,
