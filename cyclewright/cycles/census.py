@@ -98,6 +98,8 @@ __all__ = [
     "NOMINAL_RATE",
     "NOMINAL_RATE_EXPANDING",
     "MAX_SCAN",
+    "MEASURE_ABOVE",
+    "scan_wall_seconds",
     "itinerary_work",
 ]
 
@@ -327,8 +329,8 @@ class CensusPlan:
     starts : int
         Starts to scan over all sides (exact).
     rate : float
-        Starts per second assumed for the estimate (heuristic: measured on
-        this machine on one chunk near the top of the range, or nominal).
+        Starts per second per worker the estimate amounts to (heuristic:
+        measured on this machine, see :func:`plan_census`, or nominal).
     rate_source : str
         How the rate was obtained.
     workers : int
@@ -369,7 +371,7 @@ class CensusPlan:
 
     def seconds_on(self, workers: int) -> float:
         """Estimated wall time on ``workers`` workers at the same per-worker rate (heuristic)."""
-        return self.starts / (self.rate * max(workers, 1)) if self.rate > 0 else math.inf
+        return scan_wall_seconds(self.starts, self.rate, workers)
 
     def to_dict(self) -> dict:
         return {
@@ -399,41 +401,38 @@ def _type_text(content) -> str:
     return f"content {list(content)}"
 
 
-#: Scans of fewer starts than this use the nominal rate instead of a measurement.
-MEASURE_ABOVE = 10**9
+#: Scans of fewer starts than this use the nominal rate instead of a measurement
+#: (they take well under a second; measuring would cost more than it tells).
+MEASURE_ABOVE = 10**8
 
 
-def _measure_scan_rate(m: Map, max_length: int, near: int, side: str = "positive") -> float:
-    """Starts per second of one worker on one chunk ending near ``near`` (a measurement, heuristic).
+def _measure_sides(m: Map, max_length: int, plans: dict, workers: int) -> tuple[float, str]:
+    """Estimated wall time of the scans of ``plans`` on ``workers`` workers, and how (heuristic).
 
-    The compiled kernels are warmed up on a few starts first, then one chunk
-    of the map's default size on the chunk grid just below ``near`` is
-    scanned in this process with ``max_cycle_length = max_length`` and no
-    store; its rate stands for the whole range.
-
-    Parameters
-    ----------
-    m : Map
-    max_length : int
-    near : int
-        The top of the range to be scanned.
-    side : str
-
-    Returns
-    -------
-    float
-        Starts per second (heuristic).
+    Per side :func:`cyclewright.cycles.scan.rate.estimate_scan`: samples on
+    the chunk grid across the range, timed on one worker after the kernels
+    and sieve tables are loaded, scaled by the sieve's exact count of visited
+    starts. The sides' one-worker times add up; the workers divide them.
     """
-    from .scan.chunks import default_chunk_size
-    from .scan.run import MAX_START
+    from .scan.rate import estimate_scan
 
-    cs = default_chunk_size(m)
-    top = min(max(near, 2 * cs), MAX_START // 2)
-    lo = (top // cs - 1) * cs + 1
-    scan(m, lo + 999, start=lo, side=side, max_cycle_length=max_length, store=False, workers=1)
-    t = time.perf_counter()
-    scan(m, lo + cs - 1, start=lo, side=side, max_cycle_length=max_length, store=False, workers=1)
-    return cs / max(time.perf_counter() - t, 1e-9)
+    one = 0.0
+    est = []
+    for s, p in plans.items():
+        if p.method != "bound-scan" or not p.scan_to:
+            continue
+        e = estimate_scan(m, p.scan_to, side=s, cap=max_length)
+        one += e.seconds
+        est.append(e)
+    starts = sum(e.starts for e in est)
+    visited = sum(e.visited for e in est) / max(starts, 1)
+    samples = sum(len(e.samples) for e in est)
+    how = (
+        f"measured on this machine: {samples} timed samples across the range"
+        f"{'s' if len(est) > 1 else ''}, one worker; the sieve leaves {visited:.2%} of the "
+        "starts to iterate"
+    )
+    return one / max(workers, 1), how
 
 
 def check_census_length(m: Map | str | None, max_length: int, method: str = "auto") -> int:
@@ -502,13 +501,18 @@ def plan_census(
     workers : int, optional
         Workers the scan will use (default: all cores).
     rate : float, optional
-        Starts per second per worker; measured on this machine (one chunk
-        near the top of the range) when not given and the scan has at
-        least :data:`MEASURE_ABOVE` starts, else nominal.
+        Starts per second per worker. When not given and the scans have at
+        least :data:`MEASURE_ABOVE` starts, each side is measured on this
+        machine (:func:`cyclewright.cycles.scan.rate.estimate_scan`: timed
+        samples across the range on the chunk grid, one worker, after the
+        kernels and sieve tables are loaded, scaled by the sieve's exact
+        count of the starts it leaves to iterate; about a second), else a
+        nominal rate is assumed. The time is ``starts / (rate * workers)``
+        (:func:`scan_wall_seconds`).
     max_scan : int, optional
         The scan limit of the census this plan is for: a side beyond it is
-        refused anyway, so the rate is not measured (nominal; measuring one
-        chunk near 10^18 takes half a minute) -- the refusal comes at once.
+        refused anyway, so the rate is not measured (nominal) -- the refusal
+        comes at once.
     progress : callable, optional
         Receives :class:`~cyclewright.cycles.progress.ProgressEvent` values
         (phase ``"plan"``).
@@ -571,25 +575,42 @@ def plan_census(
     report(progress, "plan", len(sides), len(sides), "sides")
     starts = sum(p.scan_to or 0 for p in plans.values())
     n_workers = workers or os.cpu_count() or 1
+    seconds = None
     if rate is not None:
         source = "rate given"
     elif max_scan is not None and any((p.scan_to or 0) > max_scan for p in plans.values()):
         rate = _nominal_rate(m)
         source = "nominal rate (not measured: the scan is beyond max_scan)"
     elif starts >= MEASURE_ABOVE:
-        top = max(plans.values(), key=lambda p: p.scan_to or 0)
-        report(progress, "plan", 0, None, "", "measuring the scan rate on one chunk")
+        report(progress, "plan", 0, None, "", "measuring the scan rate")
         try:
-            rate = _measure_scan_rate(m, K, top.scan_to or 1, top.side)
-            source = "measured on this machine, one worker, one chunk near the top of the range"
+            seconds, source = _measure_sides(m, K, plans, n_workers)
+            rate = starts / (seconds * n_workers) if seconds > 0 else math.inf
         except (InputError, MemoryError, OverflowError, ValueError) as exc:
             rate = _nominal_rate(m)
             source = f"nominal rate (no measurement: {str(exc).splitlines()[0][:80]})"
+            seconds = None
     else:
         rate = _nominal_rate(m)
         source = "nominal rate"
-    seconds = starts / (rate * n_workers) if starts else 0.0
+    if seconds is None:
+        seconds = scan_wall_seconds(starts, rate, n_workers)
     return CensusPlan(m, K, sides, plans, starts, float(rate), source, n_workers, seconds)
+
+
+def scan_wall_seconds(starts: int, rate: float, workers: int) -> float:
+    """Wall time of ``starts`` at ``rate`` starts per second per worker on ``workers`` (heuristic).
+
+    >>> scan_wall_seconds(1_802_109_784_640, 1.7e9, 2) / 60   # the 3x+1 census to length 8*10^6
+    8.833...
+    >>> scan_wall_seconds(0, 1e9, 2)
+    0.0
+    """
+    if not starts:
+        return 0.0
+    if rate <= 0:
+        return math.inf
+    return starts / (rate * max(workers, 1))
 
 
 def _refusal(plan: CensusPlan, max_scan: int) -> str:

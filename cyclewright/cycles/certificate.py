@@ -928,7 +928,6 @@ def _estimate(
 ) -> tuple[float, str]:
     """Estimated seconds of the fresh census, from rates measured now, and how."""
     from .census import census, itinerary_work
-    from .scan.run import scan
 
     K = doc["max_length"]
     method = _rerun_method(doc)
@@ -940,23 +939,24 @@ def _estimate(
         if p["method"] == "bound-scan" and p["scan_to"]
     ]
     if scans and method != "itineraries":
-        starts = sum(n for _s, n in scans)
-        side, N = max(scans, key=lambda t: t[1])
-        # warm up (compiled-code cache, worker start) untimed, then time growing prefixes
-        scan(m, min(N, 4096), side=side, max_cycle_length=K, store=False, workers=workers)
-        n = min(N, 1 << 20)
-        while True:
-            report(progress, "measure", 0, n, "starts", f"scan rate on the {side} side")
-            t0 = time.perf_counter()
-            scan(m, n, side=side, max_cycle_length=K, store=False, workers=workers)
-            dt = max(time.perf_counter() - t0, 1e-6)
-            report(progress, "measure", n, n, "starts", f"scan rate on the {side} side")
-            if dt >= budget or n >= N:
-                break
-            n = min(N, n * 8)
-        rate = n / dt
-        total += starts / rate
-        how.append(f"{starts:,} starts at a measured {rate:.2g} starts/s")
+        # per side: timed samples across the range on one worker, after the kernels and
+        # sieve tables are loaded, scaled by the sieve's count of visited starts
+        from .census import scan_wall_seconds
+        from .scan.rate import estimate_scan
+
+        n_workers = workers or os.cpu_count() or 1
+        one = 0.0
+        starts = 0
+        for side, N in scans:
+            report(progress, "measure", 0, None, "", f"scan rate on the {side} side")
+            e = estimate_scan(m, N, side=side, cap=K, budget=min(budget, 0.3))
+            one += e.seconds
+            starts += N
+        rate = starts / one if one > 0 else float("inf")
+        total += scan_wall_seconds(starts, rate, n_workers)
+        how.append(
+            f"{starts:,} starts at a measured {rate:.2g} starts/s per worker x {n_workers} workers"
+        )
     words = method in ("itineraries", "necklaces", "both") or (
         method == "auto" and any(p["method"] == "itineraries" for p in doc["plans"].values())
     )
