@@ -41,44 +41,95 @@ import threading
 import time
 from pathlib import Path
 
-from harness import BUILD, ROOT, parse_n
-
+HERE = Path(__file__).resolve().parent
+BUILD = HERE / "_build"
+ROOT = HERE.parent
 sys.path.insert(0, str(ROOT))
 
 DEFAULT_LENGTHS = "10^5,10^6,8*10^6"
 
 
-def _tree_rss(pid: int) -> int:
-    """Memory of a process and all its descendants (0 when it has ended).
+def parse_n(text: str) -> int:
+    t = text.strip().replace("_", "").replace(",", "")
+    if "*" in t:
+        x, y = t.split("*", 1)
+        return parse_n(x) * parse_n(y)
+    if "^" in t:
+        b, e = t.split("^")
+        return int(b) ** int(e)
+    return int(float(t)) if "e" in t.lower() else int(t)
 
-    The proportional set size (PSS: shared pages split between the processes
-    that share them) where the system reports it, else the resident set size
-    (which counts the libraries shared by the workers once per process).
-    """
-    try:
-        import psutil
-    except ImportError:  # pragma: no cover - psutil is a test dependency
-        return 0
-    try:
-        p = psutil.Process(pid)
-        procs = [p, *p.children(recursive=True)]
-    except psutil.Error:
-        return 0
-    total = 0
-    for q in procs:
+
+def _tree_pids(pid: int) -> list[int]:
+    """The process and all its descendants (from /proc: parent ids), empty when it has ended."""
+    children: dict[int, list[int]] = {}
+    for entry in os.listdir("/proc"):
+        if not entry.isdigit():
+            continue
         try:
-            info = q.memory_full_info()
-            total += getattr(info, "pss", info.rss)
-        except psutil.Error:
-            try:
-                total += q.memory_info().rss
-            except psutil.Error:
-                pass
-    return total
+            with open(f"/proc/{entry}/stat", "rb") as f:
+                stat = f.read()
+        except OSError:
+            continue
+        # pid (comm) state ppid ...: comm may hold spaces and parentheses
+        ppid = int(stat[stat.rindex(b")") + 2 :].split()[1])
+        children.setdefault(ppid, []).append(int(entry))
+    if not os.path.exists(f"/proc/{pid}"):
+        return []
+    out, todo = [], [pid]
+    while todo:
+        p = todo.pop()
+        out.append(p)
+        todo.extend(children.get(p, ()))
+    return out
+
+
+def _kib(path: str, key: str) -> int:
+    """The ``key:`` line of a /proc file in KiB (0 when the process has ended)."""
+    try:
+        with open(path) as f:
+            for line in f:
+                if line.startswith(key):
+                    return int(line.split()[1])
+    except (OSError, ValueError):
+        pass
+    return 0
+
+
+def tree_memory(pid: int) -> dict:
+    """Memory of a process tree now, in bytes.
+
+    ``pss``: the sum of the proportional set sizes (/proc/PID/smaps_rollup;
+    a page shared by n processes counts 1/n in each, so the sum is the
+    memory the tree really holds); ``rss_sum``: the sum of the resident sets
+    (shared pages counted once per process: an overcount); ``rss_max``: the
+    largest single process; ``procs``: per process (pid, name, pss).
+    """
+    procs = []
+    for p in _tree_pids(pid):
+        pss = _kib(f"/proc/{p}/smaps_rollup", "Pss:")
+        rss = _kib(f"/proc/{p}/status", "VmRSS:")
+        try:
+            with open(f"/proc/{p}/comm") as f:
+                name = f.read().strip()
+        except OSError:
+            name = "?"
+        procs.append((p, name, pss * 1024, rss * 1024))
+    return {
+        "pss": sum(x[2] for x in procs),
+        "rss_sum": sum(x[3] for x in procs),
+        "rss_max": max((x[3] for x in procs), default=0),
+        "procs": [(p, n, pss) for p, n, pss, _ in procs],
+    }
 
 
 def measured(cmd: list[str], env: dict | None = None, timeout: float | None = None) -> dict:
-    """Run ``cmd``: wall time, exit status, output, and the peak memory of its process tree."""
+    """Run ``cmd``: wall time, exit status, output, and the peak memory of its process tree.
+
+    Sampled every 0.2 s: the peak of the summed proportional set size (PSS),
+    with the processes' shares at that moment, the peak of the summed
+    resident sets and the largest single resident set.
+    """
     t0 = time.perf_counter()
     p = subprocess.Popen(
         cmd,
@@ -88,12 +139,16 @@ def measured(cmd: list[str], env: dict | None = None, timeout: float | None = No
         cwd=ROOT,
         env={**os.environ, **(env or {})},
     )
-    peak = [0]
+    peak = {"pss": 0, "rss_sum": 0, "rss_max": 0, "procs": []}
     stop = threading.Event()
 
     def poll() -> None:
         while not stop.is_set():
-            peak[0] = max(peak[0], _tree_rss(p.pid))
+            now = tree_memory(p.pid)
+            if now["pss"] > peak["pss"]:
+                peak["pss"], peak["procs"] = now["pss"], now["procs"]
+            peak["rss_sum"] = max(peak["rss_sum"], now["rss_sum"])
+            peak["rss_max"] = max(peak["rss_max"], now["rss_max"])
             stop.wait(0.2)
 
     th = threading.Thread(target=poll, daemon=True)
@@ -111,7 +166,13 @@ def measured(cmd: list[str], env: dict | None = None, timeout: float | None = No
         "rc": p.returncode,
         "out": out,
         "err": err,
-        "peak_mib": peak[0] / 2**20,
+        "peak_mib": peak["pss"] / 2**20,
+        "peak_rss_sum_mib": peak["rss_sum"] / 2**20,
+        "peak_rss_max_mib": peak["rss_max"] / 2**20,
+        "at_peak": [
+            {"pid": pid, "name": name, "pss_mib": round(pss / 2**20, 1)}
+            for pid, name, pss in peak["procs"]
+        ],
     }
 
 
@@ -137,15 +198,61 @@ def census_run(K: int, tmp: Path) -> dict:
         "seconds": round(r["seconds"], 2),
         "length_per_minute": round(K * 60 / r["seconds"]),
         "starts_per_second": starts / r["seconds"],
-        "peak_mib": round(r["peak_mib"], 1),
+        **_memory_fields(r),
         "minima": [c["minimum"] for c in doc["cycles"]],
     }
     print(
         f"census 3x+1 K = {K:,}: {starts:.3g} starts, {r['seconds']:.1f} s, "
         f"{rec['length_per_minute']:,} lengths/min, {rec['starts_per_second']:.3g} starts/s, "
-        f"peak {rec['peak_mib']:.0f} MiB, minima {rec['minima']}",
+        f"{_memory_text(rec)}, minima {rec['minima']}",
         flush=True,
     )
+    return rec
+
+
+def _memory_fields(r: dict) -> dict:
+    return {
+        "peak_mib": round(r["peak_mib"], 1),
+        "peak_rss_sum_mib": round(r["peak_rss_sum_mib"], 1),
+        "peak_rss_max_mib": round(r["peak_rss_max_mib"], 1),
+        "at_peak": r["at_peak"],
+    }
+
+
+def _memory_text(rec: dict) -> str:
+    shares = ", ".join(f"{p['name']} {p['pss_mib']:.0f}" for p in rec["at_peak"])
+    return (
+        f"peak PSS {rec['peak_mib']:.0f} MiB ({shares}); resident sets summed "
+        f"{rec['peak_rss_sum_mib']:.0f} MiB, largest process {rec['peak_rss_max_mib']:.0f} MiB"
+    )
+
+
+#: The memory probe: the census's scan at K = 8*10^6 (the cap, the sieve tables, the workers,
+#: the store) on a window of chunks at the top of its positive range, both sides.
+PROBE_K = 8_000_000
+PROBE_TO = 984_572_810_980
+
+
+def memory_probe(tmp: Path, window: int) -> dict:
+    """``scan 3x+1 --max-length 8*10^6 --side both`` on ``window`` starts below the top of the range.
+
+    The per-process memory of the K = 8*10^6 census (kernels, sieve tables,
+    step cap, chunk results, store) without its nine minutes: the same
+    command path, chunk size and workers on a window of its range.
+    """
+    cmd = [*cyclewright_cmd(), "scan", "3x+1", "--from", str(PROBE_TO - window + 1)]
+    cmd += ["--to", str(PROBE_TO), "--max-length", str(PROBE_K), "--side", "both"]
+    cmd += ["--store", str(tmp / "probe.sqlite"), "--json"]
+    r = measured(cmd)
+    if r["rc"] != 0:
+        raise SystemExit(f"memory probe failed: {r['err']}")
+    rec = {
+        "command": " ".join(cmd[len(cyclewright_cmd()) :]),
+        "starts": 2 * window,
+        "seconds": round(r["seconds"], 2),
+        **_memory_fields(r),
+    }
+    print(f"memory probe (K = 8*10^6, {2 * window:.3g} starts): {_memory_text(rec)}", flush=True)
     return rec
 
 
@@ -159,9 +266,13 @@ def family_run(tmp: Path) -> dict:
     rec = {
         "maps": len(rows),
         "seconds": round(r["seconds"], 2),
-        "peak_mib": round(r["peak_mib"], 1),
+        **_memory_fields(r),
     }
-    print(f"census 3x+k, k = 1..1000, K = 100: {rec}", flush=True)
+    print(
+        f"census 3x+k, k = 1..1000, K = 100: {rec['maps']} maps, {rec['seconds']:.1f} s, "
+        f"{_memory_text(rec)}",
+        flush=True,
+    )
     return rec
 
 
@@ -219,6 +330,14 @@ def main() -> None:
     )
     ap.add_argument("--family", action="store_true", help="also the 3x+k family census")
     ap.add_argument("--budget", type=float, default=20.0, help="seconds for the plain methods")
+    ap.add_argument(
+        "--probe",
+        default=None,
+        help="also the memory probe at K = 8*10^6 on this many starts per side (e.g. 2*10^10)",
+    )
+    ap.add_argument(
+        "--no-plain", action="store_true", help="skip the plain enumeration and itinerary method"
+    )
     args = ap.parse_args()
     BUILD.mkdir(exist_ok=True)
     lengths = [parse_n(x) for x in args.lengths.split(",") if x.strip()]
@@ -226,18 +345,23 @@ def main() -> None:
         census_run(1000, Path(tmp))  # warm-up: numba cache, sieve table
         runs = [census_run(K, Path(tmp)) for K in lengths]
         family = family_run(Path(tmp)) if args.family else None
-    plain = plain_enumeration(args.budget)
-    mitm = pruned_itineraries(args.budget)
+        probe = memory_probe(Path(tmp), parse_n(args.probe)) if args.probe else None
+    plain = {"K": 0} if args.no_plain else plain_enumeration(args.budget)
+    mitm = {} if args.no_plain else pruned_itineraries(args.budget)
     result = {
         "census_3x1_both_sides": runs,
         "family_3x_k": family,
+        "memory_probe_8e6": probe,
         "plain_enumeration": plain,
         "itinerary_method": mitm,
         "budget_seconds": args.budget,
     }
     (BUILD / "bench_census.json").write_text(json.dumps(result, indent=2) + "\n")
     print()
-    print("| K | range scanned (positive / negative) | wall | lengths per minute | peak memory |")
+    print(
+        "| K | range scanned (positive / negative) | wall | lengths per minute | "
+        "peak memory (PSS, whole tree) |"
+    )
     print("|---|---|---|---|---|")
     for r in runs:
         rng = " / ".join(f"{v:.3g}" for v in r["scan_to"].values())
@@ -247,12 +371,15 @@ def main() -> None:
         )
     if family:
         print(
-            f"family 3x+k (k = 1..1000, K = 100): {family['seconds']:.1f} s, {family['peak_mib']:.0f} MiB"
+            f"family 3x+k (k = 1..1000, K = 100): {family['seconds']:.1f} s, {_memory_text(family)}"
         )
-    print(f"plain enumeration of itineraries in {args.budget:.0f} s: largest K = {plain['K']}")
-    print(
-        f"itinerary method (meet in the middle) in {args.budget:.0f} s: largest K = {mitm.get('K')}"
-    )
+    if probe:
+        print(f"memory probe at K = 8*10^6 ({probe['command']}): {_memory_text(probe)}")
+    if not args.no_plain:
+        print(f"plain enumeration of itineraries in {args.budget:.0f} s: largest K = {plain['K']}")
+        print(
+            f"itinerary method (meet in the middle) in {args.budget:.0f} s: largest K = {mitm.get('K')}"
+        )
     if runs and plain["K"]:
         print(
             f"ratio of lengths (largest census K here / plain enumeration): {runs[-1]['K'] / plain['K']:,.0f}x"

@@ -30,6 +30,7 @@ kernel mechanism out, so that tests exercise the watch thread alone.
 
 from __future__ import annotations
 
+import gc
 import multiprocessing
 import os
 import select
@@ -237,6 +238,11 @@ class LocalExecutor:
         # the lifeline: forked workers inherit both ends and keep the read end
         lifeline = os.pipe() if ctx.get_start_method() == "fork" else None
         old = _block_stop_signals()
+        # The workers are forked: what the parent holds is shared with them page by
+        # page until written. The garbage collector's passes over the inherited
+        # objects would write to (and so copy) every page holding one, in every
+        # worker; frozen objects are never visited, so the pages stay shared.
+        gc.freeze()
         try:
             try:
                 pool = ProcessPoolExecutor(
@@ -245,8 +251,9 @@ class LocalExecutor:
                     initializer=_worker_setup,
                     initargs=(os.getpid(), lifeline),
                 )
-                pending = {pool.submit(fn, t) for t in head}
+                pending = {pool.submit(fn, t) for t in head}  # starts the n workers
             finally:
+                gc.unfreeze()
                 _restore_signals(old)  # a signal that came meanwhile is raised here
             while pending:
                 check_interrupt()

@@ -381,8 +381,11 @@ def _resolve_many(
     hist = np.empty(cap + 1, np.int64)
     st = np.zeros(3, np.int64)
     st2 = np.zeros(3, np.int64)
-    L = np.zeros(nlimbs, np.int64)
-    L2 = np.zeros(nlimbs, np.int64)
+    # Room for the largest value the cap allows (tens of MB at K = 10^7), but left
+    # unwritten: every routine writes a limb before reading it (L[0:n] and the
+    # limb a carry adds), so only the pages a value really reaches are touched.
+    L = np.empty(nlimbs, np.int64)
+    L2 = np.empty(nlimbs, np.int64)
     for k in range(starts.shape[0]):
         # the call mirrors _resolve_one's flat parameters (compiled: scalars and arrays only)
         code, steps, esc = _resolve_one(
