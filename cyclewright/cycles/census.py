@@ -99,6 +99,7 @@ __all__ = [
     "NOMINAL_RATE_EXPANDING",
     "MAX_SCAN",
     "MEASURE_ABOVE",
+    "FAMILY_STORE_ABOVE",
     "scan_wall_seconds",
     "itinerary_work",
 ]
@@ -646,6 +647,7 @@ def census(
     chunk_size: int | None = None,
     rate: float | None = None,
     on_plan: Callable[[CensusPlan], None] | None = None,
+    _store_above: int = 0,
 ) -> Census:
     """Every integer cycle of ``m`` with length at most ``max_length``, certified.
 
@@ -752,6 +754,8 @@ def census(
             need_words = False  # the automatic cross-check is skipped when too costly
     if on_plan is not None:
         on_plan(plan)
+    if store is None and plan.starts < _store_above:
+        store = False  # a family member's scan of a few thousand starts: nothing to resume
 
     found: dict[int, IntegerCycle] = {}
     store_path = None
@@ -993,6 +997,12 @@ class FamilyCensus(Presentable):
         }
 
 
+#: A family member whose scans have fewer starts than this keeps no results store
+#: unless one is named (``store=``): its scan takes milliseconds, creating and
+#: committing to a store per map took most of a family census's time.
+FAMILY_STORE_ABOVE = 10**7
+
+
 def census_family(
     template: str,
     ks: Iterable[int],
@@ -1022,6 +1032,9 @@ def census_family(
         (phase ``"family"``, unit ``"maps"``) after each member.
     **kw
         Passed to :func:`census` (``store``, ``workers``, ``max_scan``...).
+        Without ``store``, members whose scans have fewer than
+        :data:`FAMILY_STORE_ABOVE` starts keep no store (nothing to resume:
+        they take milliseconds); the others use their default store.
 
     Returns
     -------
@@ -1064,6 +1077,7 @@ def census_family(
     family = [parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}") for k in members]
     check_store_for_maps(kw.get("store"), family, "a family census")
     rows = []
+    kw.setdefault("_store_above", FAMILY_STORE_ABOVE)
     for i, m in enumerate(family, start=1):
         rows.append(census(m, max_length, side=side, **kw))
         report(progress, "family", i, len(members), "maps", m.label)

@@ -173,6 +173,73 @@ def _limb_jumps(d: int, branches, dinv: int) -> tuple:
     ``|T^j(v)| >= |v| / d^j - max|b| > 2^63`` for ``j <= J``
     (``|a v + b| >= |v| - |b|``): nothing skipped can be an event.
     """
+    best = _limb_jump_arrays(d, branches)
+    if best is None:
+        z = np.zeros(1, np.int64)
+        return (np.zeros(4, np.int64), z, z, z, z, z)
+    J, dJ, jA, jC, HA, HB = best
+    T = 64 + J * (d - 1).bit_length()  # (d - 1).bit_length() = ceil(log2 d)
+    nmin, topmin = T // 32 + 1, 1 << (T % 32)
+    jHA = np.ascontiguousarray((HA % _HASH_P).ravel(), dtype=np.int64)
+    jHB = np.ascontiguousarray((HB % _HASH_P).ravel(), dtype=np.int64)
+    jDI = np.array([pow(dinv, j, _HASH_P) for j in range(J + 1)], dtype=np.int64)
+    return (np.array([J, dJ, nmin, topmin], dtype=np.int64), jA, jC, jHA, jHB, jDI)
+
+
+def _limb_jump_arrays(d: int, branches):
+    """``(J, d^J, A_J, T^J, HA, HB)`` for :func:`_limb_jumps`, or None.
+
+    ``J`` is the largest depth (``d^J <= 4096``) such that every depth up to it
+    keeps ``|A_J(r)|`` and ``|T^J(r)|`` below ``COEFF_LIMIT`` for every residue
+    ``r < d^J``; ``A_J, T^J`` are indexed by ``r``, ``HA[r, j-1], HB[r, j-1]``
+    are the composites ``(A_j, B_j)`` of the first ``j`` steps of ``r``.
+
+    Vectorised over the residues in int64: the orbit of each ``r < d^Jmax``
+    for ``J`` steps gives the entries of ``r < d^J`` (its composites and
+    ``T^J(r)`` are those of its own orbit). A step is taken only while every
+    value is below ``2^31`` in absolute value (``|a| < 2^30``, so every product
+    fits int64); otherwise the loop over Python integers decides.
+    """
+    Jmax = 1
+    while Jmax < 16 and d ** (Jmax + 1) <= 4096:
+        Jmax += 1
+    if Jmax < 2:
+        return None
+    ma = np.array([int(a) for a, _ in branches], dtype=np.int64)
+    mb = np.array([int(b) for _, b in branches], dtype=np.int64)
+    n = d**Jmax
+    v = np.arange(n, dtype=np.int64)
+    A = np.ones(n, np.int64)
+    B = np.zeros(n, np.int64)
+    As, Bs, vs = [], [], []
+    best = None
+    for J in range(1, Jmax + 1):
+        if max(np.abs(A).max(), np.abs(B).max(), np.abs(v).max()) >= 1 << 31:
+            return _limb_jump_arrays_exact(d, branches)
+        r = v % d
+        a, b = ma[r], mb[r]
+        A, B = a * A, a * B + b * d ** (J - 1)
+        v = (a * v + b) // d
+        As.append(A)
+        Bs.append(B)
+        vs.append(v)
+        if J < 2:
+            continue
+        dJ = d**J
+        if (np.abs(A[:dJ]) >= COEFF_LIMIT).any() or (np.abs(v[:dJ]) >= COEFF_LIMIT).any():
+            break
+        best = J
+    if best is None:
+        return None
+    dJ = d**best
+    HA = np.stack([x[:dJ] for x in As[:best]], axis=1)
+    HB = np.stack([x[:dJ] for x in Bs[:best]], axis=1)
+    return best, dJ, As[best - 1][:dJ].copy(), vs[best - 1][:dJ].copy(), HA, HB
+
+
+def _limb_jump_arrays_exact(d: int, branches):
+    """:func:`_limb_jump_arrays` over Python integers (any coefficients)."""
+    br = [(int(a), int(b)) for a, b in branches]
     best = None
     for J in range(2, 17):
         dJ = d**J
@@ -184,7 +251,7 @@ def _limb_jumps(d: int, branches, dinv: int) -> tuple:
             A, B, v, pw = 1, 0, r, 1
             steps = []
             for _ in range(J):
-                a, b = branches[v % d]
+                a, b = br[v % d]
                 A, B = a * A, a * B + b * pw
                 pw *= d
                 v = (a * v + b) // d
@@ -197,17 +264,14 @@ def _limb_jumps(d: int, branches, dinv: int) -> tuple:
             break
         best = (J, dJ, rows)
     if best is None:
-        z = np.zeros(1, np.int64)
-        return (np.zeros(4, np.int64), z, z, z, z, z)
+        return None
     J, dJ, rows = best
-    T = 64 + J * (d - 1).bit_length()  # (d - 1).bit_length() = ceil(log2 d)
-    nmin, topmin = T // 32 + 1, 1 << (T % 32)
     jA = np.array([A for A, _, _ in rows], dtype=np.int64)
     jC = np.array([c for _, c, _ in rows], dtype=np.int64)
-    jHA = np.array([A % _HASH_P for _, _, st in rows for A, _ in st], dtype=np.int64)
-    jHB = np.array([B % _HASH_P for _, _, st in rows for _, B in st], dtype=np.int64)
-    jDI = np.array([pow(dinv, j, _HASH_P) for j in range(J + 1)], dtype=np.int64)
-    return (np.array([J, dJ, nmin, topmin], dtype=np.int64), jA, jC, jHA, jHB, jDI)
+    # B_j may pass int64 here; only its residue mod p is kept
+    HA = np.array([[x % _HASH_P for x, _ in st] for _, _, st in rows], dtype=np.int64)
+    HB = np.array([[y % _HASH_P for _, y in st] for _, _, st in rows], dtype=np.int64)
+    return J, dJ, jA, jC, HA, HB
 
 
 @dataclass

@@ -691,9 +691,18 @@ class ScanStore:
         try:
             conn = sqlite3.connect(str(tmp))
             try:
+                # nobody sees the temporary file: no journal and no sync per statement,
+                # one fsync of the finished file below before it is linked into place
+                conn.execute("PRAGMA journal_mode = OFF")
+                conn.execute("PRAGMA synchronous = OFF")
                 self._create(conn)
             finally:
                 conn.close()
+            fd = os.open(tmp, os.O_RDONLY)
+            try:
+                os.fsync(fd)
+            finally:
+                os.close(fd)
             try:
                 os.link(tmp, p)
             except FileExistsError:
