@@ -67,6 +67,12 @@ def test_sieve_depth_follows_the_range():
     assert [t.depth for t in _side_tools(m, "positive", 1000, 10**5)[1]] == [8, 16]
     assert [t.depth for t in _side_tools(m, "positive", 1000, 10**12)[1]] == [12, 24]
     assert [t.depth for t in _side_tools(m, "positive", 20, 10**12)[1]] == [10, 20]
+    # chunks of every size above 2^24 share one deep table (one copy in memory)
+    deep = _side_tools(m, "negative", 8 * 10**6, 2**25)[1][-1]
+    assert all(
+        _side_tools(m, "negative", 8 * 10**6, hi)[1][-1] is deep
+        for hi in (2**30, 10**12, 3 * 10**13)
+    )
     # a lower table never changes a result (sieve.py: every skipped class drops provably)
     km = KernelMap.from_map(m)
     lo, hi = 3 * 2**16, 3 * 2**16 + 50_000

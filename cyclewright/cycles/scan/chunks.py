@@ -75,14 +75,17 @@ def _side_tools(m: Map, side: str, cap: int, hi: int):
 
     mm = m if side == "positive" else m.conjugate()
     d = mm.divisor
-    need = hi >= d ** max(1, safe_depth(mm, cap) // 2)
-    limit = cap
+    deepest = safe_depth(mm, cap)
+    need = hi >= d ** max(1, deepest // 2)
+    limit = deepest
     if need:
+        # one key per table actually built: every chunk above d^deepest shares the
+        # deepest table (a key per chunk size would load a copy per magnitude)
         k = 1
-        while k < cap and d ** (k + 1) <= hi:
+        while k < deepest and d ** (k + 1) <= hi:
             k += 1
         limit = k
-    return _side_tables(m, side, limit, need)
+    return _side_tables(m, side, max(limit, 1), need)
 
 
 @functools.lru_cache(maxsize=16)
