@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import logging
 import os
 import sys
 import time
@@ -63,6 +64,7 @@ def run(n_workers: int, chunks: int) -> dict:
         processes=True,
         dashboard_address=None,
         host="127.0.0.1",
+        silence_logs=logging.CRITICAL,
     ) as cluster:
         kw = dict(
             side="negative",
@@ -97,10 +99,11 @@ def run(n_workers: int, chunks: int) -> dict:
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("--chunks", type=int, default=32, help="chunks of 2^27 starts timed")
+    ap.add_argument("--chunks", type=int, default=64, help="chunks of 2^27 starts timed")
     ap.add_argument("--workers", default="1,2", help="cluster sizes (default 1,2)")
     args = ap.parse_args()
     BUILD.mkdir(exist_ok=True)
+    logging.getLogger("distributed").setLevel(logging.CRITICAL)  # shutdown chatter
     load = os.getloadavg()[0]
     runs = [run(int(n), args.chunks) for n in args.workers.split(",")]
     rate = min(r["per_worker"] for r in runs)  # the slower per-worker rate: conservative
