@@ -5,6 +5,8 @@ Run (from the repository root, after ``make test`` created .venv)::
     .venv/bin/python benchmarks/bench_census.py --lengths 10^5            # about 10 s
     .venv/bin/python benchmarks/bench_census.py                           # 10^5, 10^6, 8*10^6
     .venv/bin/python benchmarks/bench_census.py --lengths 10^5 --family   # + 3x+k, k = 1..1000
+    .venv/bin/python benchmarks/bench_census.py --lengths 10^5 --probe 10^10 --no-plain
+    .venv/bin/python benchmarks/bench_census.py --lengths 8*10^6 --no-plain   # 9 min, both cores
 
 The default lengths need the machine alone for about half an hour
 (8*10^6 scans about 1.8e12 starts, 10^6 about 1.0e12). Measured in one run:
@@ -14,13 +16,20 @@ The default lengths need the machine alone for about half an hour
    K, the range scanned per side (the proved bound, from the continued
    fraction of log2 3), wall time, the census length reached per minute
    (``K * 60 / wall``), starts per second, and the peak memory of the whole
-   process tree (the census and its scan workers; proportional set size,
-   shared library pages split between processes, sampled every 0.2 s).
+   process tree (the census and its scan workers): the proportional set size
+   (PSS) of each process from /proc/PID/smaps_rollup, summed, sampled every
+   0.2 s, with each process's share at the peak (a page shared by n
+   processes counts 1/n in each; the summed resident sets, which count it n
+   times, and the largest single one are reported beside it).
    The kernels are compiled and the sieve table built by a warm-up census
    before anything is timed.
-2. With ``--family``: ``census "3x+k" --offsets 1..1000 --max-length 100`` (333
+2. With ``--probe N``: ``scan 3x+1 --max-length 8*10^6 --side both`` on the N
+   starts below 984,572,810,980 (the top of the K = 8*10^6 census's positive
+   range): the same cap, chunks, workers and store as that census, for its
+   memory in seconds instead of nine minutes.
+3. With ``--family``: ``census "3x+k" --offsets 1..1000 --max-length 100`` (333
    maps), wall time and peak memory.
-3. Plain enumeration of itineraries (method 2 without pruning, every word
+4. Plain enumeration of itineraries (method 2 without pruning, every word
    solved exactly) and the pruned itinerary method, each within a budget
    (default 20 s): the largest K they certify, for the ratio of lengths.
 

@@ -1,4 +1,4 @@
-"""How long a scan will take: a timed sample at the real position, scaled by the sieve (heuristic).
+"""How long a scan will take: timed samples across the range, scaled by the sieve (heuristic).
 
 Inside
 ------
@@ -7,10 +7,12 @@ Inside
   (exact, from the sieve tables; no scan).
 - :func:`scan_seconds` -- the estimate's formula: the time of a sample per
   visited start, times the visited starts of the range.
-- :class:`ScanEstimate` -- one side's estimate with the measurement it rests on.
-- :func:`estimate_scan` -- measure one side: warm the kernels and the sieve
-  tables up untimed, then time growing pieces of the real chunk grid at the
-  top of the range (one worker, in this process) until a time budget is spent.
+- :class:`ScanEstimate`, :class:`Sample` -- one side's estimate with the
+  timed pieces it rests on.
+- :func:`estimate_scan` -- measure one side: load the kernels and the sieve
+  tables untimed, then time growing pieces of the real chunk grid in
+  :data:`PARTS` places across the range (one worker, in this process) until
+  a time budget is spent.
 
 Why not simply time one chunk: the sieve of depth ``K`` skips whole residue
 classes mod ``d^K``, so the cost of a range is the cost of its *visited*
@@ -18,9 +20,11 @@ starts, and their share differs between the start of the range (below
 ``d^K`` every start is iterated) and its top; and the first call of a kernel
 in a process loads it (seconds) -- a sample that includes it, or that is much
 shorter than the sieve's period, says little about a range of 10^12 starts.
-Here the sample sits where the scan spends its time (the last chunks below
-the top), the kernels are loaded before the clock starts, and the sample's
-time per visited start is multiplied by the range's exact visited count.
+Here the samples sit on the chunk grid across the range (where the scan
+spends its time), the kernels are loaded before the clock starts, and the
+median sample's time per visited start is multiplied by the range's exact
+visited count (the median: a rare start whose orbit passes 2^63 costs a
+piece tens of milliseconds of exact arithmetic).
 
 Every figure here is a measurement of this machine at this moment (other
 processes, turbo, cache), labelled ``heuristic``; the counts of starts are
