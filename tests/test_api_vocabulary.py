@@ -52,6 +52,7 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "census": ((12,), {"store": False, "workers": 1, "side": "both"}),
     "plan_census": ((12,), {"side": "both", "rate": 1e9, "workers": 2}),
     "check_census_length": ((12,), {}),
+    "estimate_scan": ((1000,), {"max_cycle_length": 100, "budget": 0.0}),
     "itinerary_work": ((20,), {}),
     "excursions": ((50,), {"side": "both"}),
     "critical_ratio": ((), {}),

@@ -73,7 +73,7 @@ def test_visited_starts_of_a_large_range_is_the_survivor_density():
 
 def test_estimate_samples_lie_on_the_chunk_grid_across_the_range():
     to = 40 * default_chunk_size(M31) + 12345
-    e = estimate_scan(M31, to, side="negative", cap=10_000, budget=0.0)
+    e = estimate_scan(M31, to, side="negative", max_cycle_length=10_000, budget=0.0)
     assert isinstance(e, ScanEstimate) and e.starts == to and len(e.samples) == PARTS
     assert e.visited == sum(x.part_visited for x in e.samples) < e.starts // 20
     cs = default_chunk_size(M31)
@@ -84,14 +84,14 @@ def test_estimate_samples_lie_on_the_chunk_grid_across_the_range():
             sieve_levels(M31.conjugate()), x.lo, x.hi
         )
     assert e.seconds > 0 and e.rate > 0
-    small = estimate_scan(M31, 5000, cap=1000, budget=0.0)
+    small = estimate_scan(M31, 5000, max_cycle_length=1000, budget=0.0)
     assert len(small.samples) == 1 and small.samples[0].part_hi == 5000
 
 
 def _fixed(seconds_per_start: float):
     """An estimate_scan stand-in: every start costs ``seconds_per_start`` on one worker."""
 
-    def fake(m, to, *, side="positive", cap, start=1, budget=0.3, chunk_size=None):
+    def fake(m, to, *, side="positive", max_cycle_length, start=1, budget=0.3, chunk_size=None):
         n = to - start + 1
         s = Sample(start, start, 1, seconds_per_start, start, to, n)
         return ScanEstimate(side, start, to, n, n, (s,), n * seconds_per_start)

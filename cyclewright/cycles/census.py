@@ -422,7 +422,7 @@ def _measure_sides(m: Map, max_length: int, plans: dict, workers: int) -> tuple[
     for s, p in plans.items():
         if p.method != "bound-scan" or not p.scan_to:
             continue
-        e = estimate_scan(m, p.scan_to, side=s, cap=max_length)
+        e = estimate_scan(m, p.scan_to, side=s, max_cycle_length=max_length)
         one += e.seconds
         est.append(e)
     starts = sum(e.starts for e in est)

@@ -949,7 +949,7 @@ def _estimate(
         starts = 0
         for side, N in scans:
             report(progress, "measure", 0, None, "", f"scan rate on the {side} side")
-            e = estimate_scan(m, N, side=side, cap=K, budget=min(budget, 0.3))
+            e = estimate_scan(m, N, side=side, max_cycle_length=K, budget=min(budget, 0.3))
             one += e.seconds
             starts += N
         rate = starts / one if one > 0 else float("inf")

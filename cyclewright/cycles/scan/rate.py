@@ -222,12 +222,12 @@ def estimate_scan(
     to: int,
     *,
     side: str = "positive",
-    cap: int,
+    max_cycle_length: int,
     start: int = 1,
     budget: float = DEFAULT_BUDGET,
     chunk_size: int | None = None,
 ) -> ScanEstimate:
-    """Measure one side's scan of ``[start, to]`` with step cap ``cap`` on one worker (heuristic).
+    """Measure one side's scan of ``[start, to]`` in cycle-length mode on one worker (heuristic).
 
     The kernels and the side's sieve tables are loaded first (untimed, as
     the scan's own workers do before their first chunk). The range is cut
@@ -246,8 +246,8 @@ def estimate_scan(
     to : int
         Largest absolute value (``< 2^63``).
     side : {"positive", "negative"}
-    cap : int
-        The step cap (the cycle-length bound ``K`` of a census).
+    max_cycle_length : int
+        The cycle-length bound ``K`` of the census (the scan's cap).
     start : int
     budget : float
         Seconds of timed sampling.
@@ -261,7 +261,7 @@ def estimate_scan(
     Examples
     --------
     >>> from cyclewright import maps
-    >>> e = estimate_scan(maps.get("3x+1"), 10**6, cap=1000, budget=0.01)
+    >>> e = estimate_scan(maps.get("3x+1"), 10**6, max_cycle_length=1000, budget=0.01)
     >>> e.starts, e.samples[0].part_hi, len(e.samples)
     (1000000, 1000000, 1)
     """
@@ -271,6 +271,7 @@ def estimate_scan(
     m = as_map(m)
     if not 1 <= start <= to <= _INT64_MAX:
         raise ValueError(f"range [{start}, {to}] is outside [1, 2^63 - 1]")
+    cap = max_cycle_length
     cs = chunk_size or default_chunk_size(m)
     km, levels = _side_tools(m, side, cap, to)  # builds or loads the tables: untimed
     if km is not None:
