@@ -76,11 +76,12 @@ def test_estimate_samples_lie_on_the_chunk_grid_across_the_range():
     e = estimate_scan(M31, to, side="negative", max_cycle_length=10_000, budget=0.0)
     assert isinstance(e, ScanEstimate) and e.starts == to and len(e.samples) == PARTS
     assert e.visited == sum(x.part_visited for x in e.samples) < e.starts // 20
+    assert e.visited == visited_starts(sieve_levels(M31.conjugate()), 1, to)
     cs = default_chunk_size(M31)
     for x in e.samples:
         assert x.part_lo <= x.lo <= x.hi <= x.part_hi
-        assert (x.lo - 256) % cs == 0  # after the untimed first 256 starts of a grid chunk
-        assert x.hi - x.lo + 1 >= 256 and x.visited == visited_starts(
+        assert x.lo % cs in (0, 16)  # a grid chunk (the first after 16 untimed starts)
+        assert x.hi - x.lo + 1 >= 16 and x.visited == visited_starts(
             sieve_levels(M31.conjugate()), x.lo, x.hi
         )
     assert e.seconds > 0 and e.rate > 0

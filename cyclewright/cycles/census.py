@@ -403,7 +403,8 @@ def _type_text(content) -> str:
 
 
 #: Scans of fewer starts than this use the nominal rate instead of a measurement
-#: (they take well under a second; measuring would cost more than it tells).
+#: when that rate says they take under a second (measuring would cost more than
+#: it tells); slower maps are measured whatever their range.
 MEASURE_ABOVE = 10**8
 
 
@@ -503,7 +504,8 @@ def plan_census(
         Workers the scan will use (default: all cores).
     rate : float, optional
         Starts per second per worker. When not given and the scans have at
-        least :data:`MEASURE_ABOVE` starts, each side is measured on this
+        least :data:`MEASURE_ABOVE` starts or would take a second at the
+        nominal rate, each side is measured on this
         machine (:func:`cyclewright.cycles.scan.rate.estimate_scan`: timed
         samples across the range on the chunk grid, one worker, after the
         kernels and sieve tables are loaded, scaled by the sieve's exact
@@ -582,7 +584,7 @@ def plan_census(
     elif max_scan is not None and any((p.scan_to or 0) > max_scan for p in plans.values()):
         rate = _nominal_rate(m)
         source = "nominal rate (not measured: the scan is beyond max_scan)"
-    elif starts >= MEASURE_ABOVE:
+    elif starts >= MEASURE_ABOVE or scan_wall_seconds(starts, _nominal_rate(m), n_workers) >= 1:
         report(progress, "plan", 0, None, "", "measuring the scan rate")
         try:
             seconds, source = _measure_sides(m, K, plans, n_workers)

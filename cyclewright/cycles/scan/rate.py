@@ -51,7 +51,7 @@ __all__ = [
 
 #: Seconds of timed sampling per side (after the untimed warm-up).
 DEFAULT_BUDGET = 0.3
-_FIRST_PIECE = 1 << 8
+_FIRST_PIECE = 16
 _INT64_MAX = 2**63 - 1
 
 
@@ -143,7 +143,11 @@ def scan_seconds(
 
 @dataclass(frozen=True)
 class Sample:
-    """One timed piece: ``[lo, hi]``, its visited starts, its seconds, and the part it stands for."""
+    """One timed piece: ``[lo, hi]``, its visited starts, its seconds, and the part it stands for.
+
+    The last and largest piece timed in the part (the smaller ones before it
+    only find its size).
+    """
 
     lo: int
     hi: int
@@ -234,8 +238,10 @@ def estimate_scan(
     into :data:`PARTS` equal parts (one when it spans fewer than that many
     chunks); in each, pieces of the chunk of the grid nearest its middle (the
     last chunk for one part) are classified in this process, growing
-    fourfold from 256 starts, until the part's share of ``budget`` is spent,
-    1% of the range is sampled, or the chunk is done. Each part's time is the time per visited start of
+    fourfold from 16 starts, until the part's share of ``budget`` is spent,
+    1% of the range is sampled, or the chunk is done; when the sampling has
+    taken more than ``max(2 budget, 1 s)`` (slow starts: an expanding map
+    with a large cap), the remaining parts are not sampled. Each part's time is the time per visited start of
     its piece times the part's visited starts (:func:`visited_starts`,
     :func:`scan_seconds`); the estimate is their sum (a midpoint rule: the
     cost of a start grows with its size).
@@ -284,7 +290,10 @@ def estimate_scan(
     total = to - start + 1
     parts = PARTS if total >= PARTS * cs else 1
     samples = []
+    overall = 0.0
     for j in range(parts):
+        if overall > max(2 * budget, 1.0):
+            break  # slow starts (an expanding map, a large cap): the parts timed so far do
         p_lo = start + j * total // parts
         p_hi = start + (j + 1) * total // parts - 1
         if parts == 1:  # the last chunk of the grid below the top
@@ -292,24 +301,27 @@ def estimate_scan(
         else:
             lo = max(p_lo, ((p_lo + p_hi) // 2 // cs) * cs)
         end = min(p_hi, lo + cs - 1)
-        if end - lo + 1 > 2 * _FIRST_PIECE:  # untimed: the first call of each kernel
+        if j == 0 and end - lo + 1 > 2 * _FIRST_PIECE:  # untimed: any first call
+            t0 = time.perf_counter()
             run_chunk(task(lo, lo + _FIRST_PIECE - 1))
+            overall += time.perf_counter() - t0
             lo += _FIRST_PIECE
-        pos, n, spent, visited = lo, _FIRST_PIECE, 0.0, 0
+        pos, n, spent = lo, _FIRST_PIECE, 0.0
         while pos <= end:
             hi = min(end, pos + n - 1)
             t0 = time.perf_counter()
             run_chunk(task(pos, hi))
-            spent += time.perf_counter() - t0
-            visited += visited_starts(levels, pos, hi)
+            dt = time.perf_counter() - t0
+            spent += dt
+            piece = (pos, hi, visited_starts(levels, pos, hi), dt)
             pos = hi + 1
             if spent >= budget / parts or (pos - lo) * parts >= max(total // 100, 1 << 22):
                 break  # the part's share of the budget, or 1% of the range, is sampled
             n *= 4
-        samples.append(
-            Sample(lo, pos - 1, visited, spent, p_lo, p_hi, visited_starts(levels, p_lo, p_hi))
-        )
-    seconds = scan_seconds(visited_starts(levels, start, to), *_median_sample(samples), total)
-    return ScanEstimate(
-        side, start, to, total, sum(x.part_visited for x in samples), tuple(samples), seconds
-    )
+        overall += spent
+        # the last piece stands for the part: the largest, at least 3/4 of what was
+        # timed there, the least weighed by the fixed cost of a call
+        samples.append(Sample(*piece, p_lo, p_hi, visited_starts(levels, p_lo, p_hi)))
+    all_visited = visited_starts(levels, start, to)
+    seconds = scan_seconds(all_visited, *_median_sample(samples), total)
+    return ScanEstimate(side, start, to, total, all_visited, tuple(samples), seconds)
