@@ -113,15 +113,25 @@ def test_plan_uses_the_measurement_per_side(monkeypatch):
     assert q.rate_source == "nominal rate" and q.starts < census_mod.MEASURE_ABOVE
 
 
-def test_refusal_states_the_measured_estimate(monkeypatch):
-    monkeypatch.setattr(rate_mod, "estimate_scan", _fixed(1e-9))
+def test_refusal_states_the_estimate_without_measuring(monkeypatch):
+    # a side beyond max_scan is refused at once: the estimate is nominal, nothing is timed
+    def no_measurement(*a, **k):
+        raise AssertionError("a refused census must not time samples")
+
+    monkeypatch.setattr(rate_mod, "estimate_scan", no_measurement)
     with pytest.raises(InputError) as exc:
         census(M31, 16_785_920, side="both", store=False, workers=2, max_scan=10**12)
     msg = str(exc.value)
-    # 984,572,810,980 + 29,678,897,487,861 starts at 2e9/s: about 4.3 h; on 64 workers 8 min
+    # 984,572,810,980 + 29,678,897,487,861 starts at 1e9 starts/s per worker on 2 workers:
+    # about 4.3 h (scan_wall_seconds); on 64 workers about 8 min
     assert "1..29,678,897,487,861 on the negative side" in msg
-    assert "about 4.3 h here at 1e+09 starts/s per worker x 2 workers" in msg
+    assert f"about 4.3 h here at {census_mod.NOMINAL_RATE:.2g} starts/s per worker x 2" in msg
     assert "about 8 min on 64 such workers" in msg
+    # within max_scan the same plan is measured (the stand-in: 1e9 starts/s per worker)
+    monkeypatch.setattr(rate_mod, "estimate_scan", _fixed(1e-9))
+    p = plan_census(M31, 16_785_920, side="both", workers=2, max_scan=10**14)
+    assert "measured on this machine" in p.rate_source
+    assert p.seconds == pytest.approx((984_572_810_980 + 29_678_897_487_861) / 2e9)
 
 
 def test_verify_rescans_by_the_estimate(tmp_path, monkeypatch):
