@@ -50,23 +50,11 @@ import threading
 import time
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-BUILD = HERE / "_build"
-ROOT = HERE.parent
+from harness import BUILD, ROOT, parse_n
+
 sys.path.insert(0, str(ROOT))
 
 DEFAULT_LENGTHS = "10^5,10^6,8*10^6"
-
-
-def parse_n(text: str) -> int:
-    t = text.strip().replace("_", "").replace(",", "")
-    if "*" in t:
-        x, y = t.split("*", 1)
-        return parse_n(x) * parse_n(y)
-    if "^" in t:
-        b, e = t.split("^")
-        return int(b) ** int(e)
-    return int(float(t)) if "e" in t.lower() else int(t)
 
 
 def _tree_pids(pid: int) -> list[int]:

@@ -29,11 +29,10 @@ import logging
 import os
 import sys
 import time
-from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-BUILD = HERE / "_build"
-sys.path.insert(0, str(HERE.parent))
+from harness import BUILD, ROOT
+
+sys.path.insert(0, str(ROOT))
 
 K = 16_785_920
 NEG_TOP = 29_678_897_487_861  # the proved bound on the negative side at K (docs/census.md)
