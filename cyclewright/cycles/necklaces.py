@@ -222,12 +222,12 @@ def necklace_count(content: Sequence[int]) -> int:
     Parameters
     ----------
     content : sequence of int
-        How many letters of each residue.
+        ``(c_0, ..., c_{d-1})``, the number of letters of each residue.
 
     Returns
     -------
     int
-        Exact.
+        The number of rotation classes, primitive or not (exact).
 
     Examples
     --------
@@ -252,12 +252,12 @@ def lyndon_count(content: Sequence[int]) -> int:
     Parameters
     ----------
     content : sequence of int
-        How many letters of each residue.
+        Letter counts per residue; a power ``u^j`` (``j >= 2``) is not counted.
 
     Returns
     -------
     int
-        Exact.
+        The number of aperiodic rotation classes (exact).
 
     Examples
     --------
@@ -443,12 +443,7 @@ def necklaces(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
     Fredricksen and Maiorana 1978; Ruskey, Savage and Wang 1992; Sawada 2003
     (see the module docstring).
     """
-    content = tuple(content)
-    if sum(content) < 1:
-        raise InputError("the content is empty: the length k must be at least 1")
-    n = sum(content)
-    for a, _p, _B in _search(content, None, len(content)):
-        yield tuple(a[1 : n + 1])
+    return _words_of(content, primitive_only=False)
 
 
 def lyndon_words(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
@@ -457,7 +452,7 @@ def lyndon_words(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
     Parameters
     ----------
     content : sequence of int
-        How many letters of each residue.
+        The letter counts; the Lyndon words are the necklaces of period ``k``.
 
     Returns
     -------
@@ -473,13 +468,20 @@ def lyndon_words(content: Sequence[int]) -> Iterator[tuple[int, ...]]:
     ----------
     Sawada 2003 (fixed-content generation); see the module docstring.
     """
+    return _words_of(content, primitive_only=True)
+
+
+def _words_of(content: Sequence[int], primitive_only: bool) -> Iterator[tuple[int, ...]]:
+    """The generator behind :func:`necklaces` and :func:`lyndon_words` (content checked first)."""
     content = tuple(content)
-    if sum(content) < 1:
-        raise InputError("the content is empty: the length k must be at least 1")
     n = sum(content)
-    for a, p, _B in _search(content, None, len(content)):
-        if p == n:
-            yield tuple(a[1 : n + 1])
+    if n < 1:
+        raise InputError("the content is empty: the length k must be at least 1")
+    return (
+        tuple(a[1 : n + 1])
+        for a, p, _B in _search(content, None, len(content))
+        if p == n or not primitive_only
+    )
 
 
 def necklace_numerators(
