@@ -83,7 +83,12 @@ from .progress import ProgressCallback, report
 from .scan.result import StoreUse
 from .scan.run import check_store_for_maps, scan
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
-from .wordsearch import DegenerateMap, integral_cycles_by_itinerary, itinerary_work
+from .wordsearch import (
+    DegenerateMap,
+    following_class,
+    integral_cycles_by_itinerary,
+    itinerary_work,
+)
 
 __all__ = [
     "census",
@@ -842,6 +847,7 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
     from .necklaces import contents_of_length, necklace_count
 
     plan: list[tuple[int, ...]] = []
+    identity: list[tuple[int, ...]] = []
     total = 0
     for k in range(1, K + 1):
         for content in contents_of_length(m.divisor, k):
@@ -849,6 +855,9 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
             for a, c in zip(m.multipliers, content):
                 A *= a**c
             if m.divisor**k == A:
+                # No fixed point unless B = 0; decided exactly (docs/census.md, "Types with d^k = A").
+                identity.append(content)
+                total += necklace_count(content)
                 continue
             bounds = [minimum_bound(m, dict(enumerate(content)), s) for s in sides]
             if all(b.applies and (not b.possible or not b.integer) for b in bounds):
@@ -860,6 +869,8 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
             f"{m.label}: the necklace method up to length {K} would enumerate {total} necklaces "
             f"(limit {MAX_NECKLACES}); use the itinerary method"
         )
+    for content in identity:
+        _check_identity_type(m, content)
     found: dict[int, IntegerCycle] = {}
     for content in plan:
         tc = count(m, content=dict(enumerate(content)), limit=MAX_NECKLACES)
@@ -889,6 +900,37 @@ def _census_by_necklaces(m: Map, K: int, sides: tuple[str, ...], t0: float) -> C
     return Census(
         m, K, sides, cycles, plans, zero is not None, False, time.perf_counter() - t0, None
     )
+
+
+def _check_identity_type(m: Map, content: tuple[int, ...]) -> None:
+    """A type with ``d^k = A``: refuse when it carries infinitely many cycles; else it has none.
+
+    Every word ``w`` of the type has ``T_w(n) = n + B_w / d^k``. A cycle of
+    length ``k`` with itinerary ``w`` needs ``B_w = 0``; then every integer
+    following ``w`` (a class ``s mod N``, or none: :func:`following_class`)
+    is a periodic point of period dividing ``k``, so one such integer means
+    infinitely many cycles of length ``<= k``. Checking the necklaces
+    (least rotations, powers included) suffices: an integer fixed by ``T^k``
+    that follows a rotation ``v u`` of ``u v`` reaches, ``|v|`` steps later, a
+    point that follows ``u v`` and is fixed by it.
+
+    Raises
+    ------
+    InputError
+        Naming the word, when some integer follows a word with ``B = 0``.
+    """
+    from .necklaces import necklace_numerators
+
+    for word, B, _p in necklace_numerators(m.branches, m.divisor, content):
+        if B == 0:
+            cls = following_class(m, word)
+            if cls is not None:
+                s, N = cls
+                raise InputError(
+                    f"{m.label}: the itinerary {''.join(map(str, word)) if m.divisor <= 10 else word} has "
+                    f"d^k = A and B = 0, and the integers {s} mod {N} follow it, so each of them "
+                    f"lies on a cycle of length at most {sum(content)}: infinitely many cycles"
+                )
 
 
 def _human_seconds(s: float) -> str:
