@@ -71,6 +71,7 @@ _EXPORTS = {
     "minimum_bound": "cycles.minimum_bound",
     "MinimumBound": "cycles.minimum_bound",
     "linear_form_bound": "cycles.linear_forms",
+    "certified_linear_form_bound": "cycles.linear_forms",
     "LinearFormBound": "cycles.linear_forms",
     "largest_bound_up_to": "cycles.largest_bound",
     "bound_for_length": "cycles.largest_bound",

@@ -40,6 +40,7 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "resolve_content": (((13, 8),), {}),
     "minimum_bound": (((13, 8),), {"side": "both"}),
     "linear_form_bound": (((13, 8),), {}),
+    "certified_linear_form_bound": (((13, 8),), {}),
     "candidates_from_linear_form": (((13, 8),), {}),
     "largest_bound_up_to": ((30,), {"side": "both"}),
     "bound_for_length": ((13,), {}),

@@ -31,8 +31,12 @@ def test_count_json_check_values(capsys):
     assert doc["labels"]["heuristic"] == "heuristic"
     assert doc["heuristic"] == "99/1631"
     assert doc["min_bound"]["label"] == "proved"
-    assert doc["linear_form"]["source"] == "Rhin 1987"
-    assert doc["linear_form"]["from_memory"] is True
+    # Khinchin, Continued Fractions, Theorems 16-17: over x <= 8 the least |k ln 2 - x ln 3|
+    # is at the convergent 8/5 of log_2 3 (no recalled constant, so certified)
+    assert doc["linear_form"]["source"] == "best approximations (continued fraction)"
+    assert doc["linear_form"]["from_memory"] is False
+    assert doc["labels"]["linear_form"] == doc["linear_form"]["label"] == "certified"
+    assert "|8 ln 2 - 5 ln 3|" in doc["linear_form"]["constants"]
 
 
 def test_count_table_3x5(capsys):

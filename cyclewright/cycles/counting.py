@@ -33,10 +33,10 @@ of ``|D|`` not above the largest cycle-minimum numerator over the type,
 the integer cycles of the type are at most ``candidates`` (distinct cycles
 have distinct minima).
 
-Labels: counts, ``D``, enumerated figures ``exact``; the minimum bound,
-candidates from it and the linear-forms bound ``proved``; ``Λ`` intervals
-``certified`` (interval arithmetic); ``necklaces/|D|`` and fitted rates
-``heuristic``.
+Labels: counts, ``D``, enumerated figures ``exact``; the minimum bound and
+candidates from it ``proved``; ``Λ`` intervals and the best-approximation
+lower bound for ``|Λ|`` ``certified`` (interval arithmetic on the certified
+continued fraction); ``necklaces/|D|`` and fitted rates ``heuristic``.
 
 References
 ----------
@@ -64,7 +64,12 @@ from .intervals import Interval, _log_form
 from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
 from .limits import MAX_TYPE_LENGTH, check_range
-from .linear_forms import LinearFormBound, _linear_form_bound, candidates_from_linear_form
+from .linear_forms import (
+    LinearFormBound,
+    _best_approximation_form,
+    _linear_form_bound,
+    candidates_from_linear_form,
+)
 from .minimum_bound import MinimumBound, _bound_of_content
 from .necklaces import (
     _search,
@@ -180,7 +185,11 @@ class TypeCount(OfContent, Presentable):
     log_form : Interval
         ``Λ = k ln d - ln A``, certified.
     linear_form : LinearFormBound
-        Proved lower bound for ``|Λ|``.
+        Lower bound for ``|Λ|``: ``certified`` from the continued fraction's
+        best approximations (valid for every type with the same bases and at
+        most as many factors of the second one; no recalled constant) wherever
+        ``Λ`` has two independent bases, else the published bounds (``proved``,
+        from memory).
     candidates_linear_forms : int or None
         The bound on ``|minimum|`` obtained from the linear-forms bound alone (proved).
     labels : dict
@@ -300,9 +309,8 @@ class TypeCount(OfContent, Presentable):
                 f"{lf.lower_text()} ({lf.source}{', from memory' if lf.from_memory else ''})"
                 if lf.applies
                 else f"not available: {lf.reason}",
-                PROVED.value if lf.applies else "-",
+                lab["linear_form"] if lf.applies else "-",
             ),
-            *self._best_approximation_rows(),
             (
                 "|min| bound from |Λ| bound",
                 Magnitude(self.candidates_linear_forms)
@@ -318,32 +326,6 @@ class TypeCount(OfContent, Presentable):
             {},
             self.enumeration_note,
         )
-
-    def _best_approximation_rows(self) -> list[tuple]:
-        """For ``d^k`` against ``a^x``: the least ``|Λ|`` over every type with at most this ``x``.
-
-        From the certified continued fraction alone (best approximations),
-        so no recalled constant is involved; None for other maps.
-        """
-        from .continued_fractions import best_approximation_bound
-
-        m = self.map
-        x = self.odd
-        if x is None or x < 1 or m.branches[0].multiplier != 1:
-            return []
-        a = abs(m.branches[1].multiplier)
-        try:
-            lo, k0, x0 = best_approximation_bound(a, m.divisor, x)
-        except InputError:
-            return []
-        return [
-            (
-                f"|Λ| lower bound, every type with x <= {x}",
-                f">= {_down4(lo)} (attained at k = {k0}, x = {x0}; best approximations "
-                "of the continued fraction, no recalled constant)",
-                PROVED.value,
-            )
-        ]
 
     @staticmethod
     def table_columns() -> tuple[str, ...]:
@@ -706,7 +688,11 @@ def _count_content(
     bound_side = side if side in ("positive", "negative") else (side_hint or "positive")
     mb = _bound_of_content(m, c, bound_side)
     lam = _log_form(d, tuple(m.branches), c, 64)
-    lf = _linear_form_bound(d, tuple(m.branches), c)
+    # |Λ| from below: certified by best approximations wherever Λ has two independent
+    # bases (no recalled constant); the published constants (from memory) only elsewhere
+    lf = _best_approximation_form(d, tuple(m.branches), c) or _linear_form_bound(
+        d, tuple(m.branches), c
+    )
     cand_lf = candidates_from_linear_form(m, _as_mapping(c), bound_side)[0]
     labels = {
         "words": EXACT.value,
@@ -717,7 +703,7 @@ def _count_content(
         "min_bound": PROVED.value,
         "candidates_bound": PROVED.value,
         "candidates_linear_forms": PROVED.value,
-        "linear_form": PROVED.value,
+        "linear_form": lf.label,
         "log_form": CERTIFIED.value,
         "heuristic": HEURISTIC.value,
     }

@@ -3,7 +3,9 @@
 - ``exact``: computed exactly (integers, rationals, closed formulas such as
   ``(1/2) ln(3/4)``), or an exact statement such as ``> 2^62`` for a value
   known to pass ``2^62``.
-- ``certified``: the outcome of an exhaustive search, with its method and range.
+- ``certified``: the outcome of an exhaustive search, with its method and range,
+  or an enclosure computed in interval arithmetic (``Λ``; the least
+  ``|k ln p - x ln q|`` over ``x <= X`` from the certified continued fraction).
 - ``proved``: a theorem's bound, evaluated rigorously. When the bound rests
   on a published constant quoted from memory, the figure's text says which
   theorem and that the constant is from memory.

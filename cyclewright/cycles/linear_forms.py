@@ -29,7 +29,7 @@ from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .intervals import _iv_to_interval, _ivprec, resolve_content
-from .labels import PROVED
+from .labels import CERTIFIED, PROVED
 from .minimum_bound import _setup
 from .sides import DEFAULT_SIDE, Side
 
@@ -38,6 +38,7 @@ __all__ = [
     "LAURENT_C2",
     "LinearFormBound",
     "linear_form_bound",
+    "certified_linear_form_bound",
     "candidates_from_linear_form",
 ]
 
@@ -335,25 +336,68 @@ def _log_base_exact(n: int, base: int) -> int:
 
 @lru_cache(maxsize=4096)
 def _best_approximation_form(d: int, branches: tuple, content: tuple[int, ...]):
-    """For ``Λ = k ln d - x ln |a|`` (branch 0 ``n/d``): the least ``|Λ|`` over every ``x' <= x``.
+    """A certified lower bound for ``|Λ|``, uniform over a finite range, with no recalled constant.
 
-    From the certified continued fraction of ``log_d |a|`` alone (best
-    approximations; :func:`~cyclewright.cycles.continued_fractions.best_approximation_bound`):
-    a statement about a finite range of ``x`` needs no recalled constant.
-    None when the map or type is not of that shape.
+    ``Λ = sum_p e_p ln p`` over primes (``|a_r|`` for a negative multiplier).
+    With one prime, or every ``e_p`` of one sign, ``|Λ| = sum |e_p| ln p``.
+    With two primes ``p < q`` of opposite signs, ``|Λ| = |b_p ln p - b_q ln q|``
+    and the least ``|k' ln p - x' ln q|`` over every ``k'`` and ``1 <= x' <= b_q``
+    (:func:`~cyclewright.cycles.continued_fractions.best_approximation_bound`:
+    the convergent of ``log_p q`` with the largest denominator ``<= b_q``)
+    bounds ``|Λ|`` from below and every type with at most ``b_q`` factors
+    ``q``; when ``d`` and every multiplier used are powers of two independent
+    bases, the same with those bases. Each figure is enclosed in interval
+    arithmetic: ``certified``. None with three or more independent logarithms
+    or ``Λ = 0``.
     """
     from mpmath import iv, libmp
 
     from .continued_fractions import best_approximation_bound
 
-    if len(content) != 2 or tuple(branches[0])[0] != 1 or content[1] < 1:
+    e = _prime_exponents(d, branches, content)
+    if not e:
         return None
-    a = abs(tuple(branches[1])[0])
-    if a < 2:
-        return None
+    form = " ".join(
+        f"{'+' if v > 0 else '-'} {abs(v)} ln {p}" for p, v in sorted(e.items())
+    ).lstrip("+ ")
+    if form.startswith("- "):
+        form = "-" + form[2:]
+    if len(e) == 1 or len({v > 0 for v in e.values()}) == 1:
+        with _ivprec(128) as iv2:
+            tot = iv2.mpf(0)
+            for p, v in e.items():
+                tot += abs(v) * iv2.log(iv2.mpf(p))
+            lo = _iv_to_interval(iv2.log(tot)).lo
+        return LinearFormBound(
+            form,
+            True,
+            lo,
+            "elementary",
+            "|Λ| = sum |e_p| ln p (no cancellation), in interval arithmetic",
+            False,
+            label=CERTIFIED.value,
+        )
+    if len(e) == 2:
+        (p1, v1), (p2, v2) = sorted(e.items())
+        base_d, b_d, base_a, b_a = p1, abs(v1), p2, abs(v2)
+    else:
+        used = sorted({abs(a) for (a, _b), c in zip(branches, content) if c and abs(a) != 1})
+        base = _common_base(used)
+        if base is None or _common_base([base, d]) is not None:
+            return None
+        k = sum(content)
+        ea = sum(
+            c * _log_base_exact(abs(a), base)
+            for (a, _b), c in zip(branches, content)
+            if c and abs(a) != 1
+        )
+        if not ea or d**k == base**ea:
+            return None
+        base_d, b_d, base_a, b_a = d, k, base, ea
+        form = f"{k} ln {d} - {ea} ln {base}"
     try:
-        lo, k0, x0 = best_approximation_bound(a, d, content[1])
-    except InputError:
+        lo, k0, x0 = best_approximation_bound(base_a, base_d, b_a)
+    except InputError:  # pragma: no cover - independent bases have an irrational ratio
         return None
     old = iv.prec
     iv.prec = 128
@@ -362,16 +406,71 @@ def _best_approximation_form(d: int, branches: tuple, content: tuple[int, ...]):
         log_lower = Fraction(*map(int, libmp.to_rational(lg._mpi_[0])))
     finally:
         iv.prec = old
-    form = f"{sum(content)} ln {d} - {content[1]} ln {a}"
     return LinearFormBound(
         form,
         True,
         log_lower,
         "best approximations (continued fraction)",
-        f"|k ln {d} - x ln {a}| >= |{k0} ln {d} - {x0} ln {a}| for every k and x <= {content[1]} "
-        "(the convergent with the largest denominator <= x; Legendre, Lagrange); no recalled constant",
+        f"|k ln {base_d} - x ln {base_a}| >= |{k0} ln {base_d} - {x0} ln {base_a}| for every k and "
+        f"x <= {b_a} (the convergent of log_{base_d} {base_a} with the largest denominator <= {b_a}; "
+        f"Legendre, Lagrange); here k = {b_d}, x = {b_a}; no recalled constant",
         False,
+        label=CERTIFIED.value,
     )
+
+
+def certified_linear_form_bound(m: Map | str, content_or_type) -> LinearFormBound:
+    """A certified lower bound for ``|Λ| = |k ln d - ln |A||``, from the continued fraction alone.
+
+    The bound holds for this type and for every form with the same two bases
+    and at most as many factors of the second base (a finite range), so it is
+    uniform in ``k``; it needs no published constant. Where no such bound
+    exists (three or more independent logarithms, ``Λ = 0``) the result says
+    it does not apply; :func:`linear_form_bound` gives the published bounds for
+    statements about every ``x``.
+
+    Parameters
+    ----------
+    m : Map or str
+        The map, or its name, alias or ``ax+b`` shorthand.
+    content_or_type : (k, x) for two-branch maps, or a content
+        See :func:`~cyclewright.cycles.intervals.resolve_content`.
+
+    Returns
+    -------
+    LinearFormBound
+        Labelled ``certified`` (interval arithmetic on the best approximation).
+
+    Examples
+    --------
+    >>> from cyclewright import maps
+    >>> lf = certified_linear_form_bound(maps.get("3x+1"), (13, 8))
+    >>> lf.source, lf.lower_text(), lf.label    # |8 ln 2 - 5 ln 3| = 0.0521...
+    ('best approximations (continued fraction)', '5.21e-2', 'certified')
+    >>> certified_linear_form_bound(maps.get("5x+1"), (7, 3)).from_memory
+    False
+
+    References
+    ----------
+    Khinchin, *Continued Fractions*, Theorems 16-17 (best approximations of the
+    second kind are the convergents); see
+    :func:`~cyclewright.cycles.continued_fractions.best_approximation_bound`.
+    """
+    m = as_map(m)
+    content = resolve_content(m, content_or_type)
+    got = _best_approximation_form(m.divisor, tuple(m.branches), content)
+    if got is None:
+        return LinearFormBound(
+            "k ln d - ln |A|",
+            False,
+            None,
+            "-",
+            "-",
+            False,
+            "Λ = 0, or three or more independent logarithms (no two-base best approximation)",
+            label=CERTIFIED.value,
+        )
+    return got
 
 
 def candidates_from_linear_form(
@@ -404,7 +503,7 @@ def candidates_from_linear_form(
     st = _setup(m, content, side)
     lf = _best_approximation_form(m.divisor, tuple(m.branches), content) or _linear_form_bound(
         m.divisor, tuple(m.branches), content
-    )
+    )  # the published constants (from memory) only where no certified bound exists
     if not st.applies or not lf.applies:
         return None, lf
     if not st.S or st.D == 0 or (st.D > 0) != st.growth:

@@ -256,7 +256,9 @@ class Sweep(Presentable):
         "heuristic": HEURISTIC.value,
         "heuristic_log10": HEURISTIC.value,
         "lambda": CERTIFIED.value,
-        "lambda_lower": PROVED.value,
+        # best approximations of the continued fraction, in interval arithmetic (every
+        # type whose published bound applies has two independent bases, so has this one)
+        "lambda_lower": CERTIFIED.value,
         "rho": ROUNDED.value,
         "rho_exact": EXACT.value,
         "fitted_rate": HEURISTIC.value,
@@ -359,9 +361,8 @@ class Sweep(Presentable):
             "'bound below necklaces from x': from this x on, within the swept range, the "
             "proved candidate bound stays below the necklace count, so almost no itinerary "
             "of those types closes. 'linear forms from x': the same with a bound on |Λ| uniform "
-            "in k: best approximations of the continued fraction (no recalled constant) for "
-            "maps n/d with one other multiplier, else published constants (Rhin 1987; "
-            "Laurent 2008, Corollary 2) quoted from memory.",
+            "in k: best approximations of the continued fraction (certified, no recalled "
+            "constant) wherever Λ has two independent bases.",
         )
 
     def to_dict(self) -> dict:
