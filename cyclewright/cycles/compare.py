@@ -22,8 +22,10 @@ Inside
 Labels: drift, critical ratio and ρ are given as closed forms
 (``drift_exact``... labelled ``exact``) beside their float values (labelled
 ``rounded``); the drift is the mean log change per step under the residue
-Markov chain (:meth:`cyclewright.maps.Map.drift_exact`); ρ assumes every
-itinerary is realized and says so (``rho_assumes``); census lists
+Markov chain (:meth:`cyclewright.maps.Map.drift_exact`); ρ is the growth
+rate of the realizable necklaces (:func:`~cyclewright.cycles.realizable.realizable_rho`:
+all of them when every multiplier is prime to ``d``), None where that is not
+computed, and ``rho_assumes`` says which; census lists
 ``certified`` (primitive and all cycles counted apart); scan counts ``exact``
 and their shares as fractions (``exact``) and floats (``rounded``); the
 largest peak ``exact``, or a lower bound (``> 2^k``, ``proved``) when a walk
@@ -66,6 +68,7 @@ from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
 from .presentation import Parts, Presentable, Table
 from .progress import ProgressCallback, report
+from .realizable import realizable_rho
 from .scan.result import StoreUse
 from .sweep import critical_lengths, rho, rho_exact, sweep
 
@@ -127,6 +130,7 @@ ROW_COLUMNS = (
     "x",
     "k",
     "necklaces_at_x",
+    "realizable_necklaces_at_x",
     "candidates_at_x",
     "heuristic_at_x",
     "integer_cycles_at_x",
@@ -194,13 +198,19 @@ def critical_ratio(m: Map | str) -> tuple[float, str] | None:
     return math.log(a) / math.log(m.divisor), f"log_{m.divisor} {a}"
 
 
-def _rho_assumes(m: Map) -> str:
-    """What the necklace growth rate assumes about itineraries."""
+def _rho_assumes(m: Map) -> str | None:
+    """What the necklace growth rate counts (None where no rate is defined)."""
+    if rho(m) is None:
+        return None
     if m.multipliers_prime_to_divisor():
-        return "every itinerary is realized (true: every multiplier is prime to d)"
+        return "every itinerary is realizable (every multiplier is prime to d): rho counts them all"
+    r, _exact, note = realizable_rho(m)
+    if r is not None:
+        return f"realizable necklaces only ({note})"
+    every = rho_exact(m).split(" (assumes")[0]
     return (
-        "every itinerary is realized, which fails here: a multiplier shares a factor with d, "
-        "so some residue sequences never occur; rho over-counts the itineraries"
+        f"realizable necklaces not counted in closed form ({note}); rho of every itinerary, "
+        f"{every} = {rho(m):.6f}, is only an upper bound for their growth"
     )
 
 
@@ -456,7 +466,8 @@ class MapProfile:
 
         m = self.map
         cr = critical_ratio(m)
-        r = rho(m)
+        # the growth rate of the realizable necklaces (all of them for multipliers prime to d)
+        r, r_exact, _note = realizable_rho(m) if rho(m) is not None else (None, None, "")
         c = self.census
         counts = self.extras.get("scan_counts", {}).get("positive")
         total = sum(counts.values()) if counts else 0
@@ -471,8 +482,8 @@ class MapProfile:
             "critical_ratio": cr[0] if cr else None,
             "critical_ratio_exact": cr[1] if cr else None,
             "rho": r,
-            "rho_exact": rho_exact(m),
-            "rho_assumes": _rho_assumes(m) if r is not None else None,
+            "rho_exact": r_exact,
+            "rho_assumes": _rho_assumes(m),
             "census_length": c.max_length if c else None,
             "census_cycles": len([x for x in c.cycles if x.minimum != 0]) if c else None,
             "census_primitive_cycles": len(
@@ -518,12 +529,10 @@ class MapProfile:
         row["x"] = tc.odd if tc is not None else None
         row["k"] = tc.length if tc is not None else None
         row["necklaces_at_x"] = tc.necklaces if tc is not None else None
+        row["realizable_necklaces_at_x"] = tc.realizable_necklaces if tc is not None else None
         row["candidates_at_x"] = tc.candidates if tc is not None else None
-        heur = (
-            Fraction(tc.necklaces, abs(tc.denominator))
-            if tc is not None and tc.denominator
-            else None
-        )
+        # realizable necklaces / |D| where they were counted (TypeCount.heuristic)
+        heur = tc.heuristic if tc is not None and tc.denominator else None
         row["heuristic_at_x"] = float(heur) if heur is not None else None
         row["heuristic_at_x_exact"] = heur
         row["integer_cycles_at_x"] = (
@@ -550,6 +559,7 @@ class MapProfile:
             "floor_positive_length": PROVED.value,
             "floor_negative_length": PROVED.value,
             "necklaces_at_x": EXACT.value,
+            "realizable_necklaces_at_x": EXACT.value,
             "candidates_at_x": (EXACT.value if tc is not None and tc.enumerated else PROVED.value),
             "heuristic_at_x": HEURISTIC.value,
             "heuristic_at_x_exact": HEURISTIC.value,
@@ -654,13 +664,10 @@ def overview_table(rows: Sequence[dict], max_length: int, to: int, odd: int) -> 
         f"candidates at x = {X}": ("candidates_at_x", lambda r: r["candidates_at_x"]),
         f"necklaces/|D| at x = {X}": (HEURISTIC, lambda r: r["heuristic_at_x"]),
     }
-    over = [r["map"] for r in rows if "fails" in (r.get("rho_assumes") or "")]
     note = _TABLE_NOTE
-    if over:
-        note += (
-            f" rho over-counts for {', '.join(over)}: it assumes every itinerary is "
-            "realized, but a multiplier shares a factor with d, so some never occur."
-        )
+    for r in rows:  # a multiplier sharing a factor with d: what rho counts, or why it is absent
+        if (r.get("rho_assumes") or "").startswith("realizable"):
+            note += f" {r['map']}: rho counts {r['rho_assumes']}."
     title = (
         f"Maps side by side (census length K = {K}, starts 1..N with N = {N} on both sides, "
         f"counting at x = {X})"

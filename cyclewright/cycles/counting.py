@@ -192,6 +192,14 @@ class TypeCount(OfContent, Presentable):
         from memory).
     candidates_linear_forms : int or None
         The bound on ``|minimum|`` obtained from the linear-forms bound alone (proved).
+    followed_words : int or None
+        Words of the content followed by some integer (exact; equal to
+        ``words`` when every multiplier is prime to ``d``; None when the walk
+        would exceed the limit). :mod:`cyclewright.cycles.realizable`.
+    realizable_necklaces, realizable_primitive_necklaces : int or None
+        Necklaces (and Lyndon words) whose rational cycle is realized: the
+        itineraries that could close (exact; None above the limit). When
+        known, ``heuristic`` is ``realizable_necklaces / |D|``.
     labels : dict
         Field name to label.
     """
@@ -216,6 +224,9 @@ class TypeCount(OfContent, Presentable):
     log_form: Interval
     linear_form: LinearFormBound
     candidates_linear_forms: int | None
+    followed_words: int | None = None
+    realizable_necklaces: int | None = None
+    realizable_primitive_necklaces: int | None = None
     labels: dict = field(default_factory=dict, compare=False)
 
     @property
@@ -230,9 +241,15 @@ class TypeCount(OfContent, Presentable):
         return b.integer if b.applies else None
 
     @property
+    def heuristic_counts_every_itinerary(self) -> bool:
+        """True when ``heuristic`` counts necklaces no integer or rational cycle can follow."""
+        return not self.map.multipliers_prime_to_divisor() and self.realizable_necklaces is None
+
+    @property
     def heuristic_log10(self) -> float:
-        """``log10(necklaces / |D|)`` as a float (for display and plots)."""
-        return _log10(self.necklaces) - _log10(abs(self.denominator))
+        """``log10(heuristic)`` as a float (for display and plots)."""
+        num = self.heuristic.numerator * abs(self.denominator) // self.heuristic.denominator
+        return _log10(num) - _log10(abs(self.denominator))
 
     def type_text(self) -> str:
         if len(self.content) == 2:
@@ -268,6 +285,19 @@ class TypeCount(OfContent, Presentable):
             ("words", self.words, lab["words"]),
             ("necklaces", self.necklaces, lab["necklaces"]),
             ("primitive necklaces", self.primitive_necklaces, lab["primitive_necklaces"]),
+        ]
+        if not self.map.multipliers_prime_to_divisor():
+            for name, value in (
+                ("words followed by an integer", self.followed_words),
+                ("realizable necklaces", self.realizable_necklaces),
+                ("realizable primitive necklaces", self.realizable_primitive_necklaces),
+            ):
+                rows.append(
+                    (name, "not counted (above the limit)", "-")
+                    if value is None
+                    else (name, value, EXACT.value)
+                )
+        rows += [
             ("denominator D", self.denominator, lab["denominator"]),
             ("min bound (|min| <=)", bound, lab["min_bound"]),
         ]
@@ -301,8 +331,17 @@ class TypeCount(OfContent, Presentable):
             ]
         l10 = self.heuristic_log10
         heur = f"{10**l10:.6g}" if -6 < l10 < 9 else f"10^{l10:.4f}"
+        over = self.heuristic_counts_every_itinerary
         rows += [
-            ("heuristic necklaces/|D|", heur, HEURISTIC.value),
+            (
+                "heuristic necklaces/|D|"
+                if self.map.multipliers_prime_to_divisor()
+                else "heuristic necklaces/|D| (every itinerary: over-counts)"
+                if over
+                else "heuristic realizable necklaces/|D|",
+                heur,
+                HEURISTIC.value,
+            ),
             ("Λ = k ln d - ln |A|", str(self.log_form), CERTIFIED.value),
             (
                 "|Λ| lower bound",
@@ -369,6 +408,9 @@ class TypeCount(OfContent, Presentable):
             "words": self.words,
             "necklaces": self.necklaces,
             "primitive_necklaces": self.primitive_necklaces,
+            "followed_words": self.followed_words,
+            "realizable_necklaces": self.realizable_necklaces,
+            "realizable_primitive_necklaces": self.realizable_primitive_necklaces,
             "denominator": self.denominator,
             "side": self.side,
             "min_bound": b.integer if b.applies else None,
@@ -408,6 +450,9 @@ class TypeCount(OfContent, Presentable):
             "words": self.words,
             "necklaces": self.necklaces,
             "primitive_necklaces": self.primitive_necklaces,
+            "followed_words": self.followed_words,
+            "realizable_necklaces": self.realizable_necklaces,
+            "realizable_primitive_necklaces": self.realizable_primitive_necklaces,
             "A": self.A,
             "denominator": self.denominator,
             "side": self.side,
@@ -741,12 +786,34 @@ def _count_content(
         cand = mb.integer if mb.applies else None
         labels["candidates"] = PROVED.value  # None when no bound applies (nothing claimed)
         note = f"not enumerated: {neck} necklaces exceed the limit {limit}"
-    if not m.multipliers_prime_to_divisor():
-        note += (
-            "; necklaces, words and necklaces/|D| count every itinerary, but a multiplier shares "
-            "a factor with d, so some itineraries are followed by no integer (they over-count); "
-            "the integer cycles are exact"
-        )
+    if m.multipliers_prime_to_divisor():
+        followed, real_neck, real_prim = words, neck, prim
+    else:
+        from .realizable import followed_word_count, realizable_necklace_counts
+
+        followed = followed_word_count(m, c, limit=max(limit, 1) * (kk + 1))
+        rc = realizable_necklace_counts(m, c, limit=limit)
+        real_neck = rc.necklaces if rc is not None else None
+        real_prim = rc.primitive_necklaces if rc is not None else None
+        if real_neck is None:
+            note += (
+                "; a multiplier shares a factor with d, so some itineraries are followed by no "
+                "integer: words, necklaces and necklaces/|D| count every itinerary (they "
+                "over-count) and the realizable ones were not counted (above the limit)"
+            )
+        else:
+            note += (
+                "; a multiplier shares a factor with d: words and necklaces count every "
+                "itinerary, the realizable rows only those that can occur, and the heuristic "
+                "uses the realizable necklaces"
+            )
+    labels.update(
+        {
+            "followed_words": EXACT.value,
+            "realizable_necklaces": EXACT.value,
+            "realizable_primitive_necklaces": EXACT.value,
+        }
+    )
     return TypeCount(
         map=m,
         content=c,
@@ -764,10 +831,13 @@ def _count_content(
         candidates=cand,
         integer_cycles=cycles,
         unrealized=unrealized,
-        heuristic=Fraction(neck, abs(D)),
+        heuristic=Fraction(real_neck if real_neck is not None else neck, abs(D)),
         log_form=lam,
         linear_form=lf,
         candidates_linear_forms=cand_lf,
+        followed_words=followed,
+        realizable_necklaces=real_neck,
+        realizable_primitive_necklaces=real_prim,
         labels=labels,
     )
 

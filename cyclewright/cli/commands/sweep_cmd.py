@@ -165,7 +165,7 @@ def _print_human(s, max_rows: int, csv_path, plot_path) -> None:
         )
     con.print(
         "proved candidate bound below the necklace count for every row from x = "
-        f"{_opt(s.crossover_x)}; using only a bound on |Λ| uniform in k (best approximations of the "
+        f"{_opt(s.crossover_x)}; using only a linear-forms bound on |Λ| uniform in k (best approximations of the "
         "continued fraction, certified, no recalled constant): from x = "
         f"{_opt(s.crossover_x_linear_forms)} (within x <= {hi})"
     )
