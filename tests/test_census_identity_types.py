@@ -118,3 +118,51 @@ def test_the_class_is_what_following_class_says():
     s, N = following_class(m, (0, 0))
     brute = {n for n in range(9) if n % 3 == 0 and m.step(n) % 3 == 0}
     assert brute == {n for n in range(9) if n % N == s}
+
+
+def _random_divisor3_maps(count: int, seed: int) -> list[Map]:
+    """Valid divisor-3 maps with a multiplier ±3 or ±9 (the maps that meet d^k = A types)."""
+    import random
+
+    rng = random.Random(seed)
+    out = []
+    while len(out) < count:
+        mults = [rng.choice([-9, -3, 3, 9])] + [
+            rng.choice([-7, -5, -4, -2, -1, 1, 2, 4, 5, 7]) for _ in range(2)
+        ]
+        rng.shuffle(mults)
+        branches = []
+        for r, a in enumerate(mults):
+            b = -a * r + 3 * rng.randint(-4, 4)  # a r + b ≡ 0 (mod 3)
+            branches.append((a, b))
+        out.append(Map(3, branches))
+    return out
+
+
+@pytest.mark.parametrize("m", _random_divisor3_maps(24, 10), ids=lambda m: m.key[:40])
+def test_random_divisor3_maps_agree_with_brute_force(m):
+    # common practice, no source: brute force over every word up to length 5; a refusal
+    # must name a class whose members really are periodic (iterated here)
+    K = 5
+    results: dict = {}
+    message = ""
+    for method in ("necklaces", "itineraries"):
+        try:
+            c = census(m, K, method=method, side="both", store=False, workers=1)
+            results[method] = {x.minimum: x.length for x in c.cycles}
+        except InputError as exc:
+            assert "d^k = A and B = 0" in str(exc)
+            results[method] = "refused"
+            message = message or str(exc)
+    assert (results["necklaces"] == "refused") == (results["itineraries"] == "refused")
+    if results["necklaces"] == "refused":
+        s, N, k = (
+            int(v)
+            for v in re.search(r"integers (-?\d+) mod (\d+) follow.*most (\d+)", message).groups()
+        )
+        v = s + 5 * N
+        for _ in range(k):
+            v = m.step(v)
+        assert v == s + 5 * N
+    else:
+        assert results["necklaces"] == results["itineraries"] == _brute_force(m, K)

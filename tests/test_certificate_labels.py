@@ -120,6 +120,7 @@ COMMANDS = [
     ["solve", "3x+5", "11100", "--json"],
     ["count", "3x+1", "--length", "13", "--odd", "8", "--json"],
     ["count", "3x+1", "--length", "4", "--odd", "2", "--json"],
+    ["count", "3x+1-undivided", "--length", "20", "--odd", "7", "--json"],
     ["sweep", "3x+1", "--odd", "1..6", "--json"],
     ["floor", "3x+1", "--verified-to", "2^40", "--json"],
     ["scan", "3x+1", "--to", "1000", "--no-store", "--json"],
