@@ -82,3 +82,22 @@ def test_published_constants_stay_marked_from_memory():
         assert lf.from_memory and lf.label == "proved"
         # and the certified bound for the same type is at least as strong
         assert certified_linear_form_bound(maps.get(name), t).log_lower >= lf.log_lower
+
+
+def test_count_cli_accepts_a_negative_multiplier(tmp_path):
+    # common practice, no source: n/2 on even n, (-3n+1)/2 on odd n; D = 2^5 - (-3)^3 = 59,
+    # and |A| = 27 enters Λ = 5 ln 2 - 3 ln 3 (best approximations: certified)
+    import json
+
+    from conftest import run_cli
+
+    f = tmp_path / "neg.toml"
+    f.write_text(
+        "[neg3]\ndivisor = 2\nbranches.0 = { multiplier = 1, offset = 0 }\n"
+        "branches.1 = { multiplier = -3, offset = 1 }\n"
+    )
+    res = run_cli("count", "neg3", "--maps", str(f), "--length", "5", "--odd", "3", "--json")
+    assert res.returncode == 0, res.stderr
+    doc = json.loads(res.stdout)
+    assert doc["denominator"] == 59 and doc["labels"]["linear_form"] == "certified"
+    assert doc["linear_form"]["form"] == "5 ln 2 - 3 ln 3"
