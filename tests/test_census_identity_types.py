@@ -10,10 +10,9 @@ for the refusals, by iterating members of the class the message names.
 from __future__ import annotations
 
 import re
-from fractions import Fraction
-from itertools import product
 
 import pytest
+from brute import brute_force_cycles
 
 from cyclewright.cycles.census import census
 from cyclewright.cycles.errors import InputError
@@ -24,44 +23,11 @@ from cyclewright.maps import Map
 def _brute_force(m: Map, K: int) -> dict[int, int]:
     """Minimum -> length of every integer cycle of length <= K, trying every word.
 
-    common practice, no source: a cycle of length p has as itinerary a word w of
-    length p with T_w(n) = n; for d^p != A the only candidate is B/(d^p - A); for
-    d^p = A the candidates are every integer following w, so such a map has to be
-    finite here (asserted: no identity word with B = 0 that an integer follows,
-    found by trying every start below d^p).
+    common practice, no source (tests/brute.py): for d^p != A the only candidate is
+    B/(d^p - A); a word with d^p = A and B = 0 that some start below d^p follows would
+    make the answer infinite, and is asserted absent.
     """
-    d = m.divisor
-    out: dict[int, int] = {}
-    for k in range(1, K + 1):
-        for word in product(range(d), repeat=k):
-            A, B = Fraction(1), Fraction(0)
-            for r in word:
-                a, b = m.branches[r]
-                A, B = A * Fraction(a, d), (B * a + b) / d
-            if A == 1:
-                if B == 0:
-                    for n in range(-(d**k), d**k):
-                        v = n
-                        for r in word:
-                            if v % d != r:
-                                break
-                            v = m.step(v)
-                        else:
-                            raise AssertionError(f"{word}: {n} follows an identity word")
-                continue
-            x = B / (1 - A)
-            if x.denominator != 1:
-                continue
-            v, orbit = int(x), []
-            for r in word:
-                if v % d != r:
-                    break
-                orbit.append(v)
-                v = m.step(v)
-            else:
-                if len(set(orbit)) == k:  # a primitive word: period k
-                    out[min(orbit, key=lambda q: (abs(q), q))] = k
-    return out
+    return brute_force_cycles(m, K, check_identity=True)
 
 
 FINITE = [

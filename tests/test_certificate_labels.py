@@ -9,10 +9,9 @@ censused exactly.
 from __future__ import annotations
 
 import json
-from fractions import Fraction
-from itertools import product
 
 import pytest
+from brute import brute_force_cycles
 from conftest import run_cli
 
 from cyclewright import maps
@@ -25,38 +24,8 @@ from cyclewright.maps import Map
 
 
 def _brute_force_cycles(m: Map, K: int) -> dict[int, int]:
-    """Every integer cycle of length <= K by trying every word (minimum -> length).
-
-    Independent of the program's search: for each word the rational fixed
-    point of the composite map ``x -> (A x + B)/d^k`` is computed with
-    Fractions, kept when it is an integer whose orbit follows the word.
-    """
-    d = m.divisor
-    out: dict[int, int] = {}
-    for k in range(1, K + 1):
-        for word in product(range(d), repeat=k):
-            A, B = Fraction(1), Fraction(0)
-            for r in word:
-                a, b = m.branches[r]
-                A, B = A * Fraction(a, d), (B * a + b) / d
-            if A == 1:
-                continue
-            x = B / (1 - A)
-            if x.denominator != 1:
-                continue
-            x = int(x)
-            orbit, v = [], x
-            for r in word:
-                if v % d != r:
-                    break
-                orbit.append(v)
-                v = m.step(v)
-            else:
-                if v == x:
-                    period = next(p for p in range(1, k + 1) if k % p == 0 and m_iter(m, x, p) == x)
-                    least = min(orbit, key=lambda q: (abs(q), q))
-                    out[least] = period
-    return out
+    """Every integer cycle of length <= K by trying every word (tests/brute.py)."""
+    return brute_force_cycles(m, K)
 
 
 def m_iter(m: Map, x: int, n: int) -> int:

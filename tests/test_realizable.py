@@ -14,6 +14,7 @@ from fractions import Fraction
 from itertools import product
 
 import pytest
+from brute import follows, word_map
 
 from cyclewright import maps
 from cyclewright.cycles.counting import count
@@ -67,23 +68,8 @@ def _brute_realizable(m: Map, c: tuple[int, ...]) -> tuple[int, int]:
     for w in product(range(d), repeat=k):
         if tuple(w.count(r) for r in range(d)) != c:
             continue
-        A, B = Fraction(1), Fraction(0)
-        for r in w:
-            a, b = m.branches[r]
-            A, B = A * Fraction(a, d), (a * B + b) / d
-        if A == 1:
-            continue
-        x = B / (1 - A)
-        ok = True
-        for r in w:
-            try:
-                if m.residue_of(x) != r:
-                    ok = False
-                    break
-            except ValueError:  # a denominator sharing a factor with d
-                ok = False
-                break
-            x = m.step_rational(x)
+        A, B = word_map(m, w)
+        ok = A != 1 and follows(m, B / (1 - A), w)
         if ok:
             real.add(min(w[i:] + w[:i] for i in range(k)))
     prim = sum(1 for w in real if all(w[i:] + w[:i] != w for i in range(1, k)))

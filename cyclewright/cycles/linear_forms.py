@@ -143,6 +143,32 @@ def _prime_exponents(d: int, branches: tuple, content: tuple[int, ...]) -> dict[
     return {p: v for p, v in e.items() if v}
 
 
+def _form_text(e: dict[int, int]) -> str:
+    """``Λ`` written over its primes, e.g. ``13 ln 2 - 8 ln 3``."""
+    form = " ".join(
+        f"{'+' if v > 0 else '-'} {abs(v)} ln {p}" for p, v in sorted(e.items())
+    ).lstrip("+ ")
+    return "-" + form[2:] if form.startswith("- ") else form
+
+
+def _elementary(e: dict[int, int], form: str, label: str) -> LinearFormBound:
+    """One prime, or every exponent of one sign: ``|Λ| = sum |e_p| ln p`` in interval arithmetic."""
+    with _ivprec(128) as iv:
+        tot = iv.mpf(0)
+        for p, v in e.items():
+            tot += abs(v) * iv.log(iv.mpf(p))
+        lo = _iv_to_interval(iv.log(tot)).lo
+    return LinearFormBound(
+        form,
+        True,
+        lo,
+        "elementary",
+        "|Λ| = sum |e_p| ln p (no cancellation), in interval arithmetic",
+        False,
+        label=label,
+    )
+
+
 def _laurent_log_lower(p1: int, b1: int, p2: int, b2: int) -> Fraction:
     """Laurent 2008, Corollary 2 with D = 1 for Λ = b2 ln p2 - b1 ln p1 (p1, p2 > 1 integers)."""
     C, c038, ten = LAURENT_C2
@@ -221,28 +247,11 @@ def _linear_form_bound(d: int, branches: tuple, content: tuple[int, ...]) -> Lin
                 "k ln d - ln A", False, None, "-", "-", False, "a multiplier used is negative"
             )
     e = _prime_exponents(d, branches, content)
-    form = " ".join(
-        f"{'+' if v > 0 else '-'} {abs(v)} ln {p}" for p, v in sorted(e.items())
-    ).lstrip("+ ")
-    if form.startswith("- "):
-        form = "-" + form[2:]
     if not e:
         return LinearFormBound("0", False, None, "-", "-", False, "Λ = 0 (D = 0)")
-    signs = {v > 0 for v in e.values()}
-    if len(e) == 1 or len(signs) == 1:
-        with _ivprec(128) as iv:
-            tot = iv.mpf(0)
-            for p, v in e.items():
-                tot += abs(v) * iv.log(iv.mpf(p))
-            lo = _iv_to_interval(iv.log(tot)).lo
-        return LinearFormBound(
-            form,
-            True,
-            lo,
-            "elementary",
-            "|Λ| = sum |e_p| ln p (no cancellation)",
-            False,
-        )
+    form = _form_text(e)
+    if len(e) == 1 or len({v > 0 for v in e.values()}) == 1:
+        return _elementary(e, form, PROVED.value)
     if len(e) == 2:
         (p1, v1), (p2, v2) = sorted(e.items())
         b1, b2 = abs(v1), abs(v2)
@@ -357,26 +366,9 @@ def _best_approximation_form(d: int, branches: tuple, content: tuple[int, ...]):
     e = _prime_exponents(d, branches, content)
     if not e:
         return None
-    form = " ".join(
-        f"{'+' if v > 0 else '-'} {abs(v)} ln {p}" for p, v in sorted(e.items())
-    ).lstrip("+ ")
-    if form.startswith("- "):
-        form = "-" + form[2:]
+    form = _form_text(e)
     if len(e) == 1 or len({v > 0 for v in e.values()}) == 1:
-        with _ivprec(128) as iv2:
-            tot = iv2.mpf(0)
-            for p, v in e.items():
-                tot += abs(v) * iv2.log(iv2.mpf(p))
-            lo = _iv_to_interval(iv2.log(tot)).lo
-        return LinearFormBound(
-            form,
-            True,
-            lo,
-            "elementary",
-            "|Λ| = sum |e_p| ln p (no cancellation), in interval arithmetic",
-            False,
-            label=CERTIFIED.value,
-        )
+        return _elementary(e, form, CERTIFIED.value)
     if len(e) == 2:
         (p1, v1), (p2, v2) = sorted(e.items())
         base_d, b_d, base_a, b_a = p1, abs(v1), p2, abs(v2)
