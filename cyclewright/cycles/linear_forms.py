@@ -424,9 +424,10 @@ def certified_linear_form_bound(m: Map | str, content_or_type) -> LinearFormBoun
     Parameters
     ----------
     m : Map or str
-        The map, or its name, alias or ``ax+b`` shorthand.
-    content_or_type : (k, x) for two-branch maps, or a content
-        See :func:`~cyclewright.cycles.intervals.resolve_content`.
+        Any map of the family (a catalog name resolves to it).
+    content_or_type : tuple or mapping
+        The type ``(k, x)`` of a two-branch map, or the content ``(c_0, ...,
+        c_{d-1})`` (:func:`~cyclewright.cycles.intervals.resolve_content`).
 
     Returns
     -------
