@@ -172,8 +172,9 @@ ROW_HEADINGS = {
     "x": "odd steps x",
     "k": "length k at x",
     "necklaces_at_x": "necklaces at x",
+    "realizable_necklaces_at_x": "realizable necklaces at x",
     "candidates_at_x": "candidates at x",
-    "heuristic_at_x": "necklaces/|D| at x",
+    "heuristic_at_x": "necklaces/|D| at x (realizable ones where counted)",
     "integer_cycles_at_x": "integer cycles at x",
 }
 
