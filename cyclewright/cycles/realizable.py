@@ -281,6 +281,11 @@ def realizable_rho(m: Map | str) -> tuple[float | None, str | None, str]:
     - ``4 | a``: the next ``v_2(a)`` letters after a 1 are forced; not
       computed (None; ``ρ`` of every itinerary is then only an upper bound).
 
+    Parameters
+    ----------
+    m : Map or str
+        The map, or its name, alias or ``ax+b`` shorthand.
+
     Returns
     -------
     (float or None, str or None, str)
