@@ -180,3 +180,42 @@ def test_latex_on_other_commands(capsys):
     assert "$19$" in out and "$23$" in out
     code, _, err = run(capsys, "count", "3x+1", "--length", "13", "--odd", "8", "--latex", "--json")
     assert code == 2 and err.startswith("error:")
+
+
+def test_records_command_renders_the_results_own_overview(capsys):
+    """The terminal and LaTeX views are the result's overview tables, nothing rebuilt."""
+    import cyclewright as cw
+
+    r = cw.records("3x+1", 1000, workers=1, store=False)
+    tables = r.overview(3)
+    assert [t.title for t in tables] == [
+        "Records (exact; mean rounded, model mean heuristic)",
+        "positive: record holders (start:value, exact)",
+        "positive: basins (exact)",
+    ]
+    holders = dict(tables[1].rows)
+    # OEIS A006877 (delay record holders 649, 703, 871) and A006884 (path records end 703)
+    assert holders["steps to the cycle (delay)"] == "649:92 703:108 871:113 (+17 earlier)"
+    assert holders["largest value (peak)"].split()[-3] == "703:125252"
+    assert tables[2].rows == ((1, 1000, "100.00%"),)
+    code, out, _ = run(
+        capsys, "records", "3x+1", "--to", "1000", "--workers", "1", "--show", "3", "--no-store"
+    )
+    assert code == 0
+    for t in tables:
+        assert t.title in out
+    assert "649:92 703:108 871:113 (+17 earlier)" in out
+    code, out, _ = run(
+        capsys,
+        "records",
+        "3x+1",
+        "--to",
+        "1000",
+        "--workers",
+        "1",
+        "--show",
+        "3",
+        "--no-store",
+        "--latex",
+    )
+    assert code == 0 and out.count("\\begin{tabular}") == len(tables)

@@ -79,6 +79,7 @@ from cyclewright.maps.mapfile import digits_problem, parsing_digit_limit, read_l
 
 from .errors import InputError
 from .files import atomic_write
+from .presentation import Table
 from .progress import ProgressCallback, report
 
 __all__ = [
@@ -359,6 +360,30 @@ class Verification:
     def exit_status(self) -> int:
         """:data:`EXIT_HOLDS`, :data:`EXIT_FAILS` or :data:`EXIT_NOT_RUN`."""
         return {"holds": EXIT_HOLDS, "fails": EXIT_FAILS}.get(self.status, EXIT_NOT_RUN)
+
+    @property
+    def verdict(self) -> str:
+        """The outcome in one sentence."""
+        if self.status == "holds":
+            return "certificate holds: every claim re-derived"
+        if self.status == "fails":
+            return f"certificate does NOT hold ({len(self.problems)} problem(s))"
+        return (
+            "certificate holds for every check that ran; the checks marked NOT CHECKED did not run"
+        )
+
+    def table(self) -> Table:
+        """Every check and its outcome, the verdict as the note."""
+        rows = [(c, "holds") for c in self.checks]
+        rows += [(c, "not checked") for c in self.not_run]
+        rows += [(p, "FAILED") for p in self.problems]
+        return Table(
+            f"Checks of the certificate {self.path}",
+            ("claim re-derived", "outcome"),
+            tuple(rows),
+            {},
+            self.verdict,
+        )
 
     def to_dict(self) -> dict:
         return {

@@ -69,7 +69,7 @@ from cyclewright.maps import Map
 from cyclewright.maps.registry import as_map
 
 from .errors import InputError
-from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION
+from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION, ROUNDED
 from .limits import DEFAULT_MAX_STEPS
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
@@ -426,6 +426,100 @@ class RangeRecords(Presentable):
         )
         return [self.table(), holders, basins]
 
+    def overview(self, show: int = 5, one_row_per_holder: bool = False) -> list[Table]:
+        """The condensed view a terminal or a LaTeX page shows.
+
+        The summary with its means rounded, per side the last ``show`` record
+        holders of each kind (the count of earlier ones in the cell), and the
+        basins with their shares of the resolved starts. Every figure comes
+        from :meth:`table` and :meth:`record_rows`; nothing is recomputed.
+
+        Parameters
+        ----------
+        show : int
+            How many of the last record holders of each kind to list.
+        one_row_per_holder : bool
+            List each holder in a row of its own (start and value as numbers,
+            as a page wants them) instead of one cell of ``start:value`` pairs
+            per kind (as a terminal wants them).
+
+        Returns
+        -------
+        list of Table
+            The summary, then per side its record holders and its basins.
+
+        Examples
+        --------
+        >>> r = records("3x+1", 30, workers=1, store=False)
+        >>> dict(r.overview(2)[1].rows)["stopping time (glide)"]
+        '7:7 27:59 (+2 earlier)'
+        """
+        base = self.table()
+
+        def rounded(v, digits):
+            return None if v is None else round(float(v), digits)
+
+        summary = Table(
+            "Records (exact; mean rounded, model mean heuristic)",
+            base.columns,
+            tuple(
+                tuple(
+                    rounded(v, 3) if c == "mean" else rounded(v, 2) if c == "model mean" else v
+                    for c, v in zip(base.columns, row, strict=True)
+                )
+                for row in base.rows
+            ),
+            {**base.labels, "mean": ROUNDED.value, "model mean": HEURISTIC.value},
+            "mean: exact over the resolved starts, shown rounded (exact fractions in --json); "
+            "model mean: drift / random-walk model (heuristic)",
+        )
+        n = max(show, 0)
+        tables = [summary]
+        for sd in self.sides.values():
+            rows, earlier = [], []
+            for k in self.kinds:
+                recs = list(sd.records.get(k, ()))
+                shown = recs[-n:] if n else []
+                if one_row_per_holder:
+                    rows.extend((KIND_TITLES[k], x.start, x.value) for x in shown)
+                    cell = ""
+                else:
+                    cell = " ".join(f"{_brief(x.start)}:{_brief(x.value)}" for x in shown)
+                if len(recs) > len(shown):
+                    earlier.append(f"{KIND_TITLES[k]} {len(recs) - len(shown)}")
+                    cell += f" (+{len(recs) - len(shown)} earlier)"
+                if not one_row_per_holder:
+                    rows.append((KIND_TITLES[k], cell.strip()))
+            if one_row_per_holder:
+                holders = Table(
+                    f"{sd.side}: the last {n} record holders of each kind",
+                    ("record of", "start", "value"),
+                    tuple(rows),
+                    {"start": EXACT.value, "value": EXACT.value},
+                    ("earlier holders, in --json: " + "; ".join(earlier)) if earlier else "",
+                )
+            else:
+                holders = Table(
+                    f"{sd.side}: record holders (start:value, exact)",
+                    ("record of", "holders"),
+                    tuple(rows),
+                    {"holders": EXACT.value},
+                    "every holder with all digits in --json and --csv",
+                )
+            tables.append(holders)
+            tables.append(
+                Table(
+                    f"{sd.side}: basins (exact)",
+                    ("cycle minimum", "starts", "share"),
+                    tuple(
+                        (cmin, cnt, f"{100 * cnt / sd.starts:.2f}%")
+                        for cmin, cnt in sd.basins.items()
+                    ),
+                    {"starts": EXACT.value, "share": ROUNDED.value},
+                )
+            )
+        return tables
+
     def to_pandas(self):
         """The record holders as a pandas DataFrame (pandas is optional; never installed by us)."""
         try:
@@ -449,6 +543,13 @@ class RangeRecords(Presentable):
                 f"delay record {h.value if h else None} at {h.start if h else None}"
             )
         return f"RangeRecords({self.map.label}, {self.start}..{self.to}; " + "; ".join(parts) + ")"
+
+
+def _brief(v: int) -> str:
+    """An integer for a cell of holders: all digits up to 12, else its ends and digit count."""
+    t = str(v)
+    digits = len(t.lstrip("-"))
+    return t if digits <= 12 else f"{t[: len(t) - digits + 4]}...{t[-4:]} ({digits} digits)"
 
 
 # --------------------------------------------------------------------------- heuristic

@@ -7,7 +7,7 @@ import sys
 import click
 
 from cyclewright.cycles.errors import InputError
-from cyclewright.cycles.records import KIND_TITLES, records
+from cyclewright.cycles.records import records
 
 from ..errors import BadInput
 from ..files import atomic_write, check_figure_path, check_output
@@ -31,7 +31,7 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, latex_table, make_table, short, stdout_console, write_csv
+from ..render import emit_json, latex_output, show_table, stdout_console, write_csv
 
 _EPILOG = """\b
 Examples:
@@ -167,76 +167,11 @@ def csv_rows(r):
     return cols, rows
 
 
-_HEAD = [
-    "side",
-    "record of",
-    "holder",
-    "value",
-    "records",
-    "mean (exact)",
-    "model mean",
-    "unresolved",
-]
-
-
-def _summary(r):
-    rows = []
-    for row in r.summary_rows():
-        rows.append(
-            [
-                row["side"],
-                KIND_TITLES[row["kind"]],
-                row["holder"],
-                row["value"],
-                row["records"],
-                None if row["mean"] is None else round(float(row["mean"]), 3),
-                None if row["model_mean"] is None else round(row["model_mean"], 2),
-                row["unresolved"],
-            ]
-        )
-    return rows
-
-
 def latex_text(r, show_n: int) -> str:
-    """The summary, record-holder and basin tables as LaTeX."""
-    note = [r.caution]
-    parts = [
-        latex_table(
-            ["side", "record of", "holder", "value", "records", "mean", "model mean", "labels"],
-            [row[:7] + ["exact; model heuristic"] for row in _summary(r)],
-            caption=f"{r.map.label}: records over starts {r.start} to {r.to} "
-            f"(step cap {r.max_steps}; means over resolved starts, rounded)",
-            label=f"tab:records-{_slug(r.map.label)}",
-            notes=note,
-        )
-    ]
-    rows = []
-    for sd in r.sides.values():
-        for k in r.kinds:
-            for rec in list(sd.records.get(k, ()))[-show_n:]:
-                rows.append([sd.side, KIND_TITLES[k], rec.start, rec.value, "exact"])
-    parts.append(
-        latex_table(
-            ["side", "record of", "start", "value", "label"],
-            rows,
-            caption=f"{r.map.label}: the last {show_n} record holders of each kind",
-        )
-    )
-    brows = [
-        [sd.side, cmin, n, "exact"] for sd in r.sides.values() for cmin, n in sd.basins.items()
-    ]
-    parts.append(
-        latex_table(
-            ["side", "cycle minimum", "starts in its basin", "label"],
-            brows,
-            caption=f"{r.map.label}: basin sizes over the range",
-        )
-    )
-    return "\n\n".join(parts)
-
-
-def _slug(text: str) -> str:
-    return "".join(c if c.isalnum() else "-" for c in text).strip("-").lower()
+    """The result's own overview tables (:meth:`RangeRecords.overview`) as LaTeX."""
+    with latex_output(True):
+        parts = [show_table(t).text for t in r.overview(show_n, one_row_per_holder=True)]
+    return "\n\n".join(parts + [f"% caution: {r.caution}"])
 
 
 def _print(r, show_n: int) -> None:
@@ -247,36 +182,13 @@ def _print(r, show_n: int) -> None:
         f"({' and '.join(r.sides)}), step cap {r.max_steps}: exact"
         + ("" if not r.unresolved else f" ({r.unresolved:,} unresolved, see below)")
     )
-    con.print(
-        make_table(
-            "Records (exact; model mean heuristic)",
-            _HEAD,
-            _summary(r),
-            caption="mean: exact over the resolved starts, shown rounded (exact fractions in --json); "
-            "model mean: drift / random-walk model (heuristic)",
-        )
-    )
-    for sd in r.sides.values():
-        rows = []
-        for k in r.kinds:
-            recs = list(sd.records.get(k, ()))
-            shown = recs[-show_n:]
-            rows.append(
-                [
-                    KIND_TITLES[k],
-                    " ".join(f"{short(x.start, 12)}:{short(x.value, 12)}" for x in shown)
-                    + (f" (+{len(recs) - len(shown)} earlier)" if len(recs) > len(shown) else ""),
-                ]
-            )
-        con.print(
-            make_table(
-                f"{sd.side}: record holders (start:value, exact)", ["record of", "holders"], rows
-            )
-        )
-        brows = [[cmin, n, f"{100 * n / sd.starts:.2f}%"] for cmin, n in sd.basins.items()]
-        con.print(
-            make_table(f"{sd.side}: basins (exact)", ["cycle minimum", "starts", "share"], brows)
-        )
+    tables = r.overview(show_n)
+    con.print(show_table(tables[0]))
+    for sd, (holders, basins) in zip(
+        r.sides.values(), zip(tables[1::2], tables[2::2], strict=True), strict=True
+    ):
+        con.print(show_table(holders))
+        con.print(show_table(basins))
         if sd.unresolved:
             first = ", ".join(str(x) for x in sd.unresolved_first[:20])
             con.print(

@@ -15,7 +15,7 @@ from cyclewright.cycles.certificate import (
 from ..errors import BadInput
 from ..options import json_option, latex_tables, workers_option
 from ..progress import with_progress
-from ..render import emit_json, latex_mode, make_table, stdout_console
+from ..render import emit_json, latex_mode, show_table, stdout_console
 
 __all__ = ["COMMANDS"]
 
@@ -62,17 +62,7 @@ def verify_cmd(path, rescan, minutes, workers, as_json):
     if as_json:
         emit_json(v.to_dict())
     elif latex_mode():  # one table of the checks, the verdict as its note
-        rows = [[c, "holds"] for c in v.checks]
-        rows += [[c, "not checked"] for c in v.not_run]
-        rows += [[p, "FAILED"] for p in v.problems]
-        stdout_console().print(
-            make_table(
-                f"Checks of the certificate {path}",
-                ["claim re-derived", "outcome"],
-                rows,
-                caption=_verdict(v),
-            )
-        )
+        stdout_console().print(show_table(v.table()))
     else:
         con = stdout_console()
         for c in v.checks:
@@ -81,17 +71,9 @@ def verify_cmd(path, rescan, minutes, workers, as_json):
             con.print(f"NOT CHECKED: {c}", highlight=False, markup=False)
         for p in v.problems:
             con.print(f"FAILED: {p}", highlight=False, markup=False)
-        con.print(_verdict(v), highlight=False)
+        con.print(v.verdict, highlight=False)
     if v.exit_status:
         raise SystemExit(v.exit_status)
-
-
-def _verdict(v) -> str:
-    if v.status == "holds":
-        return "certificate holds: every claim re-derived"
-    if v.status == "fails":
-        return f"certificate does NOT hold ({len(v.problems)} problem(s))"
-    return "certificate holds for every check that ran; the checks marked NOT CHECKED did not run"
 
 
 COMMANDS = [verify_cmd]
