@@ -216,3 +216,27 @@ def test_study_defaults_are_the_api_defaults():
             assert value == p.default, (kind, key, value, p.default)
             checked += 1
     assert checked >= 20
+
+
+def test_study_limits_are_the_api_limits():
+    # common practice, no source: a limit is declared once (cyclewright/cycles/limits.py);
+    # a study key takes the same upper limit as the API and the command line
+    from cyclewright.cli.studyfile import PARAMS
+    from cyclewright.cycles import limits
+
+    shared = {
+        ("count", "length"): limits.MAX_TYPE_LENGTH,
+        ("sweep", "extra_lengths"): limits.MAX_EXTRA_LENGTHS,
+        ("scan", "max_steps"): limits.MAX_STEP_CAP,
+        ("census", "max_length"): limits.MAX_CENSUS_LENGTH,
+        ("floor", "next"): limits.MAX_NEXT_TYPES,
+        ("compare", "to"): limits.MAX_COMPARE_TO,
+        ("compare", "max_steps"): limits.MAX_STEP_CAP,
+        ("records", "max_steps"): limits.MAX_STEP_CAP,
+        ("graph", "to"): limits.MAX_GRAPH_STARTS,
+    }
+    for (kind, key), hi in shared.items():
+        check = PARAMS[kind][key][0]
+        assert check(hi) == hi, (kind, key)
+        with pytest.raises(ValueError):
+            check(hi + 1)

@@ -47,6 +47,13 @@ from pathlib import Path
 from cyclewright.cycles.compare import COMPARE_DEFAULTS
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES
+from cyclewright.cycles.limits import (
+    MAX_COMPARE_TO,
+    MAX_EXTRA_LENGTHS,
+    MAX_GRAPH_STARTS,
+    MAX_NEXT_TYPES,
+    MAX_TYPE_LENGTH,
+)
 from cyclewright.cycles.sweep import DEFAULT_ODD
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
@@ -158,13 +165,13 @@ KEY_ALIASES = {"k": "offsets"}
 # kind -> key -> (checker, default); "maps" and "kind" are common to all kinds
 PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "count": {
-        "length": (_int(1, 100_000), None),
+        "length": (_int(1, MAX_TYPE_LENGTH), None),
         "odd": (_int(0, 100_000), None),
         "limit": (_int(0, 10**8), DEFAULT_LIMIT),
     },
     "sweep": {
         "odd": (_range_text, f"{DEFAULT_ODD.start}..{DEFAULT_ODD.stop - 1}"),
-        "extra_lengths": (_int(0, 50), 0),
+        "extra_lengths": (_int(0, MAX_EXTRA_LENGTHS), 0),
         "side": (SIDE, DEFAULT_SIDE),
         "limit": (_int(0, 10**8), DEFAULT_SWEEP_LIMIT),
     },
@@ -184,24 +191,24 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "floor": {
         "verified_to": (_int(1, 10**MAX_START_DIGITS), 2**40),
         "side": (SIDE, DEFAULT_SIDE),
-        "next": (_int(0, 50), DEFAULT_NEXT_TYPES),
+        "next": (_int(0, MAX_NEXT_TYPES), DEFAULT_NEXT_TYPES),
     },
     "compare": {  # the defaults are compare()'s own
         "max_length": (_int(1, MAX_CENSUS_LENGTH), COMPARE_DEFAULTS["max_length"]),
-        "to": (_int(1, 2**62), COMPARE_DEFAULTS["to"]),
+        "to": (_int(1, MAX_COMPARE_TO), COMPARE_DEFAULTS["to"]),
         "odd": (_int(1, 100_000), COMPARE_DEFAULTS["odd"]),
-        "max_steps": (_int(1, 10**6), COMPARE_DEFAULTS["max_steps"]),
+        "max_steps": (_int(1, MAX_STEP_CAP), COMPARE_DEFAULTS["max_steps"]),
         "plot": (_bool, True),
     },
     "records": {
         "to": (_int(1, 2**62), 10**5),
         "from": (_int(1, 2**62), 1),
         "side": (SIDE, DEFAULT_SIDE),
-        "max_steps": (_int(1, 10**6), DEFAULT_MAX_STEPS),
+        "max_steps": (_int(1, MAX_STEP_CAP), DEFAULT_MAX_STEPS),
         "plot": (_bool, True),
     },
     "graph": {
-        "to": (_int(1, 10**6), 200),
+        "to": (_int(1, MAX_GRAPH_STARTS), 200),
         "side": (SIDE, DEFAULT_SIDE),
         "plot": (_bool, True),
         "ceiling": (_int(1, 10**MAX_START_DIGITS), DEFAULT_CEILING),
