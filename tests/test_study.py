@@ -232,7 +232,8 @@ def test_study_limits_are_the_api_limits():
         ("floor", "next"): limits.MAX_NEXT_TYPES,
         ("compare", "to"): limits.MAX_COMPARE_TO,
         ("compare", "max_steps"): limits.MAX_STEP_CAP,
-        ("records", "max_steps"): limits.MAX_STEP_CAP,
+        ("records", "max_steps"): limits.MAX_RECORDS_STEP_CAP,
+        ("records", "to"): limits.MAX_RECORDS_TO,
         ("graph", "to"): limits.MAX_GRAPH_STARTS,
     }
     for (kind, key), hi in shared.items():

@@ -52,6 +52,8 @@ from cyclewright.cycles.limits import (
     MAX_EXTRA_LENGTHS,
     MAX_GRAPH_STARTS,
     MAX_NEXT_TYPES,
+    MAX_RECORDS_STEP_CAP,
+    MAX_RECORDS_TO,
     MAX_TYPE_LENGTH,
 )
 from cyclewright.cycles.sweep import DEFAULT_ODD
@@ -201,10 +203,10 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "plot": (_bool, True),
     },
     "records": {
-        "to": (_int(1, 2**62), 10**5),
-        "from": (_int(1, 2**62), 1),
+        "to": (_int(1, MAX_RECORDS_TO), 10**5),
+        "from": (_int(1, MAX_RECORDS_TO), 1),
         "side": (SIDE, DEFAULT_SIDE),
-        "max_steps": (_int(1, MAX_STEP_CAP), DEFAULT_MAX_STEPS),
+        "max_steps": (_int(1, MAX_RECORDS_STEP_CAP), DEFAULT_MAX_STEPS),
         "plot": (_bool, True),
     },
     "graph": {

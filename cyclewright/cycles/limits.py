@@ -154,6 +154,13 @@ MAX_WORKERS = 64
 #: finishes anyway.
 MAX_STEP_CAP = 10**9
 
+#: Largest step cap per start of ``records``: its kernels keep per-start step
+#: counts and its tables in 32-bit fields sized for this cap.
+MAX_RECORDS_STEP_CAP = 10**6
+
+#: Largest end of a ``records`` range (its compiled walk holds starts as int64).
+MAX_RECORDS_TO = 2**63 - 1
+
 #: Most chunks one scan is cut into (``chunk_size``): each chunk costs about a
 #: millisecond of bookkeeping and one store row.
 MAX_CHUNKS = 10_000

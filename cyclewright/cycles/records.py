@@ -70,7 +70,7 @@ from cyclewright.maps.registry import as_map
 
 from .errors import InputError
 from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION, ROUNDED
-from .limits import DEFAULT_MAX_STEPS
+from .limits import DEFAULT_MAX_STEPS, MAX_RECORDS_STEP_CAP, MAX_RECORDS_TO, check_range
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
@@ -98,7 +98,6 @@ KIND_TITLES = {
     "peak": "largest value (peak)",
     "full_peak": "largest value, undivided path",
 }
-_MAX_START = 2**63 - 1
 _TABLE_CONTRACTING = 2**20
 _TABLE_EXPANDING = 2**10
 _REC_BUF = 512
@@ -1207,12 +1206,8 @@ def records(
         raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
     if to < start:
         raise InputError(f"empty range: {start}..{to}")
-    if to > _MAX_START:
-        raise InputError(f"to = {to} is beyond 2^63 - 1")
-    if max_steps < 1:
-        raise InputError(f"max_steps must be at least 1, got {max_steps}")
-    if max_steps > 10**6:
-        raise InputError(f"max_steps must be at most 10^6, got {max_steps}")
+    check_range(to, "to", maximum=MAX_RECORDS_TO, why="the compiled walk holds starts as int64")
+    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_RECORDS_STEP_CAP)
     t0 = time.perf_counter()
     sides = tuple(sides_of(side))
     csize = chunk_size or _chunk_size(m)
