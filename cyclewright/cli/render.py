@@ -36,6 +36,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from fractions import Fraction
 from pathlib import Path
 
+from cyclewright.cycles.limits import int_digits
 from cyclewright.cycles.presentation import Parts
 
 __all__ = [
@@ -82,19 +83,6 @@ def unlimited_digits():
 
 
 _LOG10_2 = math.log10(2)
-
-
-def int_digits(n: int) -> int:
-    """Decimal digits of ``|n|`` (1 for 0), without converting to text.
-
-    >>> int_digits(0), int_digits(9), int_digits(10), int_digits(-(10**5000))
-    (1, 1, 2, 5001)
-    """
-    n = abs(n)
-    if n < 10:
-        return 1
-    d = int((n.bit_length() - 1) * _LOG10_2) + 1
-    return d + 1 if n >= 10**d else d
 
 
 def _log10(n: int) -> float:
