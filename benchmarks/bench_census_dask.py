@@ -34,20 +34,12 @@ from harness import BUILD, ROOT
 
 sys.path.insert(0, str(ROOT))
 
+from cyclewright.cycles.presentation import duration_text  # noqa: E402 (after the path)
+
 K = 16_785_920
 NEG_TOP = 29_678_897_487_861  # the proved bound on the negative side at K (docs/census.md)
 POS_TOP = 984_572_810_980
 CHUNK = 2**27
-
-
-def human(s: float) -> str:
-    if s < 120:
-        return f"{s:.0f} s"
-    if s < 7200:
-        return f"{s / 60:.0f} min"
-    if s < 2 * 86400:
-        return f"{s / 3600:.1f} h"
-    return f"{s / 86400:.1f} days"
 
 
 def run(n_workers: int, chunks: int) -> dict:
@@ -115,7 +107,7 @@ def main() -> None:
     )
     print("| workers N | " + " | ".join(str(n) for n in table) + " |")
     print("|---|" + "---|" * len(table))
-    print("| wall time | " + " | ".join(human(s) for s in table.values()) + " |")
+    print("| wall time | " + " | ".join(duration_text(s) for s in table.values()) + " |")
     out = {"runs": runs, "rate_per_worker": rate, "load_average": load, "extrapolation": table}
     (BUILD / "bench_census_dask.json").write_text(json.dumps(out, indent=2) + "\n")
 

@@ -78,7 +78,7 @@ from .limits import (
     check_workers,
     limits_lifted,
 )
-from .presentation import Presentable, Table
+from .presentation import Presentable, Table, duration_text
 from .progress import ProgressCallback, report
 from .scan.result import StoreUse
 from .scan.run import check_store_for_maps, scan
@@ -369,7 +369,7 @@ class CensusPlan:
                 out.append(f"{s} side: {p.method} ({p.reason})")
         if self.starts:
             out.append(
-                f"{self.starts:,} starts in all: about {_human_seconds(self.seconds)} at "
+                f"{self.starts:,} starts in all: about {duration_text(self.seconds)} at "
                 f"{self.rate:.2g} starts/s per worker x {self.workers} workers "
                 f"({self.rate_source}; estimate, heuristic)"
             )
@@ -631,10 +631,10 @@ def _refusal(plan: CensusPlan, max_scan: int) -> str:
     return (
         f"{plan.map.label}: a census up to length {plan.max_length:,} needs a scan of "
         f"{' and '.join(parts)} ({plan.starts:.3g} starts, about "
-        f"{_human_seconds(plan.seconds)} here at {plan.rate:.2g} starts/s per worker x "
+        f"{duration_text(plan.seconds)} here at {plan.rate:.2g} starts/s per worker x "
         f"{plan.workers} workers, heuristic); the {'/'.join(over)} side is beyond the limit of "
         f"{max_scan:,} starts. Raise --max-scan to run it here, or spread it over a cluster "
-        f"with --executor dask --scheduler ADDRESS (about {_human_seconds(plan.seconds_on(64))} "
+        f"with --executor dask --scheduler ADDRESS (about {duration_text(plan.seconds_on(64))} "
         f"on 64 such workers)"
     )
 
@@ -931,20 +931,6 @@ def _check_identity_type(m: Map, content: tuple[int, ...]) -> None:
                     f"d^k = A and B = 0, and the integers {s} mod {N} follow it, so each of them "
                     f"lies on a cycle of length at most {sum(content)}: infinitely many cycles"
                 )
-
-
-def _human_seconds(s: float) -> str:
-    if s < 1:
-        return "< 1 s"
-    if s < 120:
-        return f"{s:.0f} s"
-    if s < 7200:
-        return f"{s / 60:.0f} min"
-    if s < 2 * 86400:
-        return f"{s / 3600:.1f} h"
-    if s < 2 * 365 * 86400:
-        return f"{s / 86400:.0f} days"
-    return f"{s / (365 * 86400):.0f} years"
 
 
 # --------------------------------------------------------------------- families

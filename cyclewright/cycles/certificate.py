@@ -79,7 +79,7 @@ from cyclewright.maps.mapfile import digits_problem, parsing_digit_limit, read_l
 
 from .errors import InputError
 from .files import atomic_write
-from .presentation import Table
+from .presentation import Table, duration_text
 from .progress import ProgressCallback, report
 
 __all__ = [
@@ -1006,16 +1006,6 @@ def _estimate(
     return total, "; ".join(how) or "nothing to scan"
 
 
-def _human(s: float) -> str:
-    if s < 120:
-        return f"{s:.0f} s"
-    if s < 7200:
-        return f"{s / 60:.0f} min"
-    if s < 2 * 86400:
-        return f"{s / 3600:.1f} h"
-    return f"{s / 86400:.0f} days"
-
-
 def _rederive(
     doc: dict, m: Map, v: Verification, workers: int | None, progress: ProgressCallback | None
 ) -> None:
@@ -1177,7 +1167,7 @@ def _verify(doc, v, rescan, workers, minutes, progress, estimator) -> None:
         v.estimate_seconds = round(est, 3)
         if est > limit:
             v.not_run.append(
-                f"cycle list, bounds and method NOT re-derived: estimated {_human(est)} ({how}), "
+                f"cycle list, bounds and method NOT re-derived: estimated {duration_text(est)} ({how}), "
                 f"above the limit of {minutes:g} min; run with --rescan to re-derive them"
             )
             return

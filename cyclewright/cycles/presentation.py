@@ -26,7 +26,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field, replace
 
-__all__ = ["Table", "Presentable", "Magnitude", "Parts"]
+__all__ = ["Table", "Presentable", "Magnitude", "Parts", "duration_text"]
 
 
 class Magnitude(int):
@@ -166,6 +166,25 @@ class Table:
         return replace(
             first, title=title or first.title, columns=columns, rows=tuple(rows), labels=labels
         )
+
+
+def duration_text(s: float) -> str:
+    """A duration in seconds as people say it, for estimates and messages.
+
+    >>> duration_text(0.2), duration_text(90), duration_text(5400), duration_text(3e5)
+    ('< 1 s', '90 s', '90 min', '3 days')
+    """
+    if s < 1:
+        return "< 1 s"
+    if s < 120:
+        return f"{s:.0f} s"
+    if s < 7200:
+        return f"{s / 60:.0f} min"
+    if s < 2 * 86400:
+        return f"{s / 3600:.1f} h"
+    if s < 2 * 365 * 86400:
+        return f"{s / 86400:.0f} days"
+    return f"{s / (365 * 86400):.0f} years"
 
 
 def _html_cell(v) -> str:
