@@ -79,7 +79,7 @@ from .necklaces import (
     type_content,
     word_count,
 )
-from .presentation import Magnitude, Presentable, Table
+from .presentation import Magnitude, Presentable, Table, duration_text
 from .progress import ProgressCallback, report
 from .solver import cycle_representative
 
@@ -600,20 +600,6 @@ def _fmt_bytes(n: float) -> str:
     return f"{n:.3g} ZiB"
 
 
-def _fmt_seconds(s: float) -> str:
-    if s == float("inf"):
-        return "over 10^290 years"
-    if s < 120:
-        return f"{s:.3g} s"
-    if s < 7200:
-        return f"{s / 60:.3g} min"
-    if s < 2 * 86400:
-        return f"{s / 3600:.3g} h"
-    if s < 2 * 3.15e7:
-        return f"{s / 86400:.3g} days"
-    return f"{s / 3.15e7:.3g} years"
-
-
 def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
     """Worst-case memory (bytes) and rough time (seconds) to enumerate ``necklaces`` of length ``k``.
 
@@ -760,12 +746,12 @@ def _count_content(
             raise InputError(
                 f"enumerating {_sci(neck)} necklaces (allowed by the limit {_fmt_count(limit)}) could need up to "
                 f"{_fmt_bytes(mem)} to list integer cycles (budget {_fmt_bytes(budget)}) and about "
-                f"{_fmt_seconds(secs)}; lower the limit"
+                f"{duration_text(secs)}; lower the limit"
             )
         if secs > _MAX_SECONDS:
             raise InputError(
                 f"enumerating {_sci(neck)} necklaces of length {kk} (allowed by the limit "
-                f"{_fmt_count(limit)}) would take about {_fmt_seconds(secs)}; lower the limit"
+                f"{_fmt_count(limit)}) would take about {duration_text(secs)}; lower the limit"
             )
         smallest, largest, cycles, unrealized = _enumerate(m, c, D, neck, progress)
         cand = largest // abs(D) if largest is not None else 0

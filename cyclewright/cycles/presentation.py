@@ -173,7 +173,11 @@ def duration_text(s: float) -> str:
 
     >>> duration_text(0.2), duration_text(90), duration_text(5400), duration_text(3e5)
     ('< 1 s', '90 s', '90 min', '3 days')
+    >>> duration_text(float("inf"))
+    'over 10^290 years'
     """
+    if s == float("inf"):  # a float product that overflowed: longer than floats count
+        return "over 10^290 years"
     if s < 1:
         return "< 1 s"
     if s < 120:
