@@ -52,6 +52,7 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "floor": ((100,), {"side": "both"}),
     "scan": ((300,), {"store": False, "workers": 1, "side": "both"}),
     "functional_graph": ((40,), {"side": "both"}),
+    "check_graph_plot": ((40,), {"side": "both"}),
     "integral_cycles_by_itinerary": ((10,), {}),
     "words_table": ((3,), {}),
     "census": ((12,), {"store": False, "workers": 1, "side": "both"}),

@@ -486,5 +486,5 @@ def test_sweep_and_records_figures(tmp_path):
     plot_comparison(cmp, cmp.sweeps(), tmp_path / "c.svg")
     root, texts = _svg_texts(tmp_path / "c.svg")
     assert texts.count("x (odd steps)") == 2 and "log10 of the count" in texts
-    assert "share of starts; drift (ln per step)" in texts
+    assert "share; drift (ln per step)" in texts
     assert _inches(root) <= 7.5  # a page's text width

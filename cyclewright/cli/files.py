@@ -6,14 +6,15 @@ import os
 from collections.abc import Callable
 from pathlib import Path
 
+from cyclewright.cycles.figures import FIGURE_FORMATS as _FORMATS
 from cyclewright.cycles.files import atomic_write as _atomic_write
 
 from .errors import BadInput
 
 __all__ = ["check_output", "check_figure_path", "atomic_write", "save_figure", "FIGURE_FORMATS"]
 
-#: Figure formats chosen by the file's extension.
-FIGURE_FORMATS = ("png", "svg", "pdf")
+#: Figure formats chosen by the file's extension (the API's own list).
+FIGURE_FORMATS = _FORMATS
 
 
 def check_output(path: str | None, option: str, force: bool = False) -> Path | None:
@@ -72,28 +73,9 @@ def check_figure_path(path: str | None, option: str, force: bool = False) -> Pat
 
 def save_figure(fig, path: str | os.PathLike) -> Path:
     """Save a matplotlib figure atomically, in the format its extension names (PNG, SVG or PDF),
-    without run-dependent metadata, and close it."""
-    import matplotlib
-    import matplotlib.pyplot as plt
+    at exactly its size, without run-dependent metadata
+    (:func:`cyclewright.cycles.figures.save_figure`)."""
+    from cyclewright.cycles.figures import save_figure as _save
 
-    fmt = figure_format(path)
-    meta = {
-        "png": {"Software": None},
-        "svg": {"Creator": None, "Date": None},
-        "pdf": {"Creator": None, "Producer": None, "CreationDate": None},
-    }[fmt]
-    # text stays text: SVG labels are searchable and editable, PDF fonts are embedded
-    # as TrueType (Type 42) rather than Type 3, which journals refuse; the bounding box
-    # takes in legends placed outside the axes
-    rc = {"svg.fonttype": "none", "pdf.fonttype": 42, "ps.fonttype": 42}
-    try:
-        with matplotlib.rc_context(rc):
-            return atomic_write(
-                path,
-                lambda fh: fig.savefig(
-                    fh, format=fmt, metadata=meta, bbox_inches="tight", pad_inches=0.03
-                ),
-                binary=True,
-            )
-    finally:
-        plt.close(fig)
+    figure_format(path)  # an unknown format: the command line's one-line error
+    return _save(fig, path)

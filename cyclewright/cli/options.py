@@ -12,6 +12,8 @@ Inside
   integer expressions (``10^30``, ``5*2^60``, ``1_000_000``, ``-17``) and
   inclusive ranges of them (``1..10^2``), both on :mod:`cyclewright.cli.numbers`.
 - :class:`CeilingType` -- an integer expression or ``none``.
+- :class:`WidthType` -- a figure width: ``single``, ``double`` or inches
+  (:func:`cyclewright.cycles.figures.figure_width`).
 - :data:`CONCEPTS` -- concept (the option's destination) -> its one flag.
 - decorators: :func:`map_argument`, :func:`side_option`,
   :func:`max_steps_option`, :func:`length_option`, :func:`max_length_option`,
@@ -19,7 +21,8 @@ Inside
   :func:`all_offsets_option`, :func:`store_options`, :func:`ceiling_option`,
   :func:`limit_option`, :func:`show_option`, :func:`to_option`,
   :func:`from_option`, :func:`workers_option`, :func:`executor_options`,
-  :func:`out_option`, :func:`csv_option`, :func:`plot_option`, :func:`force_option`,
+  :func:`out_option`, :func:`csv_option`, :func:`plot_option`, :func:`width_option`,
+  :func:`plot_options` (``--plot`` with ``--width``), :func:`force_option`,
   :func:`maps_option`, :func:`json_option`, :func:`latex_option`,
   :func:`latex_tables` (``--latex`` for commands printing rich tables).
 - :func:`resolve_map`, :func:`catalog_for`, :func:`resolve_store`,
@@ -39,6 +42,8 @@ from pathlib import Path
 import click
 
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
+from cyclewright.cycles.figures import DEFAULT_WIDTH as DEFAULT_WIDTH_NAME
+from cyclewright.cycles.figures import WIDTH_HELP as FIGURE_WIDTH_HELP
 from cyclewright.cycles.limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
 from cyclewright.cycles.sides import DEFAULT_SIDE
 from cyclewright.cycles.sides import SIDES as _ACTUAL_SIDES
@@ -89,6 +94,9 @@ __all__ = [
     "out_option",
     "csv_option",
     "plot_option",
+    "width_option",
+    "plot_options",
+    "WidthType",
     "force_option",
     "maps_option",
     "json_option",
@@ -203,6 +211,26 @@ class CeilingType(IntExpr):
         if value is None or (isinstance(value, str) and value.strip().lower() == "none"):
             return None
         return super().convert(value, param, ctx)
+
+
+class WidthType(click.ParamType):
+    """A figure width: ``single``, ``double``, or inches (``4.5``, ``89mm``); kept as written,
+    checked with :func:`cyclewright.cycles.figures.figure_width`."""
+
+    name = "width"
+
+    def convert(self, value, param, ctx):
+        from cyclewright.cycles.errors import InputError
+        from cyclewright.cycles.figures import figure_width
+
+        try:
+            figure_width(value)
+        except InputError as exc:
+            raise BadInput(f"{_name(param, ctx)}: {exc}") from None
+        return value
+
+    def __repr__(self) -> str:
+        return "WidthType()"
 
 
 class SharedOption(click.Option):
@@ -470,6 +498,22 @@ plot_option = _shared(
     metavar="FILE",
     help="Write the plot to FILE (format from the extension, e.g. .png).",
 )
+
+width_option = _shared(
+    "--width",
+    "width",
+    type=WidthType(),
+    default=DEFAULT_WIDTH_NAME,
+    show_default=True,
+    metavar="single|double|INCHES",
+    help=f"Width of the --plot figure: {FIGURE_WIDTH_HELP}; height and fonts follow.",
+)
+
+
+def plot_options(f):
+    """``--plot FILE`` and ``--width``: every command that draws a figure takes both."""
+    return plot_option(width_option(f))
+
 
 force_option = _shared(
     "--force",

@@ -6,7 +6,9 @@ Inside
   (``exact``, ``certified``, ``proved``, ``heuristic``, ``rounded``); it is written as CSV,
   JSON and LaTeX (booktabs) beside the report and shown in the Markdown with
   links to them.
-- :class:`Figure` -- a PNG written by a plot function, with a caption.
+- :class:`Figure` -- a figure written by a plot function in one or more
+  formats (PNG, SVG, PDF), with a caption: the report embeds its PNG or
+  SVG (at the figure's width in report.html) and links every file.
 - :class:`Section` -- text, tables and figures under one heading.
 - :class:`Report` -- sections plus the standing caution about heuristic
   figures; :meth:`Report.write` produces ``report.md`` and ``report.html``.
@@ -127,12 +129,45 @@ class Table:
         return "\n".join(lines)
 
 
+#: Formats a page shows as an image (the others are linked).
+EMBEDDED_FORMATS = (".png", ".svg")
+
+
 @dataclass
 class Figure:
-    """A plot already written to ``path`` (PNG), shown with a caption."""
+    """A plot already written, in one or more formats, shown with a caption.
 
-    path: Path
+    ``paths`` holds one file per format (the same figure); ``width`` is its
+    width in inches (report.html shows it at that size), or None.
+    """
+
+    paths: list[Path] | Path
     caption: str
+    width: float | None = None
+
+    def __post_init__(self) -> None:
+        if isinstance(self.paths, (str, Path)):
+            self.paths = [Path(self.paths)]
+        self.paths = [Path(p) for p in self.paths]
+
+    @property
+    def shown(self) -> Path | None:
+        """The file a page embeds: the first PNG or SVG; None when there is neither."""
+        return next((p for p in self.paths if p.suffix.lower() in EMBEDDED_FORMATS), None)
+
+    @property
+    def path(self) -> Path:
+        """The embedded file, else the first one."""
+        return self.shown or self.paths[0]
+
+    def markdown(self) -> str:
+        """The image (PNG or SVG), its caption and links to every format."""
+        out = []
+        if self.shown is not None:
+            out += [f"![{self.caption}]({self.shown.name})", ""]
+        files = ", ".join(f"[{p.suffix.lstrip('.').upper()}]({p.name})" for p in self.paths)
+        out += [f"*{self.caption}* (figure files: {files})", ""]
+        return "\n".join(out)
 
 
 @dataclass
@@ -182,16 +217,18 @@ class Report:
             for t in s.tables:
                 out.append(t.markdown(link_stem=t.name))
             for f in s.figures:
-                out.append(f"![{f.caption}]({Path(f.path).name})")
-                out.append("")
-                out.append(f"*{f.caption}*")
-                out.append("")
+                out.append(f.markdown())
         return "\n".join(out).rstrip() + "\n"
 
     def html(self, markdown_text: str | None = None) -> str:
         import markdown as md
 
         body = md.markdown(markdown_text or self.markdown(), extensions=["tables"])
+        for f in (f for s in self.sections for f in s.figures):
+            if f.shown is not None and f.width:
+                # shown at the figure's own size (CSS inches), never wider than the page
+                src = html.escape(f.shown.name, quote=True)
+                body = body.replace(f'src="{src}"', f'src="{src}" style="width:{f.width:g}in"', 1)
         style = (
             "body{font-family:sans-serif;max-width:70em;margin:2em auto;padding:0 1em;line-height:1.4}"
             "table{border-collapse:collapse;margin:0.5em 0}th,td{border:1px solid #bbb;padding:0.2em 0.5em;"

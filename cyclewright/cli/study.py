@@ -3,7 +3,8 @@
 Inside
 ------
 - :func:`run_study` -- run a validated :class:`~cli.studyfile.Study` and write
-  ``report.md``, ``report.html``, the PNG plots, CSV, JSON and LaTeX for
+  ``report.md``, ``report.html``, the figures (PNG by default; the study
+  file's ``[report]`` chooses PNG, SVG and/or PDF and the width), CSV, JSON and LaTeX for
   every table, census certificates and ``study.json`` (versions and parameters)
   into the output directory. The scan stores live in ``DIR/stores/`` (one
   per map definition), so a re-run reuses them and writes identical data
@@ -30,6 +31,7 @@ import shutil
 from collections.abc import Callable, Sequence
 from pathlib import Path
 
+from cyclewright.cycles.figures import DEFAULT_WIDTH, figure_width
 from cyclewright.cycles.files import atomic_write
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
 from cyclewright.cycles.presentation import Table as ResultTable
@@ -45,8 +47,18 @@ __all__ = ["run_study", "ANALYSES", "StudyContext"]
 class StudyContext:
     """Where a study writes, and the store directory its scans share."""
 
-    def __init__(self, out: Path, workers: int | None, say: Callable[[str], None]):
+    def __init__(
+        self,
+        out: Path,
+        workers: int | None,
+        say: Callable[[str], None],
+        figures: Sequence[str] = ("png",),
+        width: str | float = DEFAULT_WIDTH,
+    ):
         self.out = out
+        #: the formats every figure is written in, and the figures' width
+        self.figures = tuple(figures)
+        self.width = width
         self.stores = out / "stores"
         self.workers = workers
         self.say = say
@@ -72,6 +84,16 @@ class StudyContext:
             stem, i = f"{base}-{i}", i + 1
         self.names.add(stem)
         return stem
+
+    def add_figure(self, sec: Section, name: Sequence[str], draw: Callable, caption: str) -> None:
+        """Draw one figure in every format of the study (``draw(path, width=...)``) and add it."""
+        stem = self.name(*name)
+        paths = []
+        for fmt in self.figures:
+            path = self.out / f"{stem}.{fmt}"
+            draw(path, width=self.width)
+            paths.append(path)
+        sec.figures.append(Figure(paths, caption, figure_width(self.width)))
 
     def add_stacked(
         self, sec: Section, name: Sequence[str], tables: Sequence, title: str | None = None
@@ -147,14 +169,12 @@ def _sweep(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             continue
         for s in got if isinstance(got, PerSide) else [got]:
             sec.tables.append(Table.of(ctx.name("sweep", m.label, s.side), s.table()))
-            png = ctx.out / f"{ctx.name('sweep-plot', m.label, s.side)}.png"
-            plot_sweep(s, str(png))
-            sec.figures.append(
-                Figure(
-                    png,
-                    f"{m.label}, {s.side} side: necklaces (exact), proved bound, "
-                    f"heuristic necklaces/|D| and integer cycles along the critical line",
-                )
+            ctx.add_figure(
+                sec,
+                ("sweep-plot", m.label, s.side),
+                lambda path, s=s, **kw: plot_sweep(s, path, **kw),
+                f"{m.label}, {s.side} side: necklaces (exact), proved bound, "
+                f"heuristic necklaces/|D| and integer cycles along the critical line",
             )
             summary.append(
                 s.summary_table().with_column("side", s.side).with_column("map", m.label)
@@ -280,15 +300,14 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             t = prof.predictions.table()
             sec.tables.append(Table.of(ctx.name("predictions", prof.map.label), t))
     if p["plot"]:
-        png = ctx.out / f"{ctx.name('compare-plot')}.png"
-        plot_comparison(cmp, cmp.sweeps(), png)
-        sec.figures.append(
-            Figure(
-                png,
-                "Per map: necklaces (exact), candidates (proved/exact), necklaces/|D| "
-                "(heuristic) and integer cycles along the critical line; last panel: share "
-                "of starts unresolved and drift per step",
-            )
+        sweeps = cmp.sweeps()
+        ctx.add_figure(
+            sec,
+            ("compare-plot",),
+            lambda path, **kw: plot_comparison(cmp, sweeps, path, **kw),
+            "Per map: necklaces (exact), candidates (proved/exact), necklaces/|D| "
+            "(heuristic) and integer cycles along the critical line; last panel: share "
+            "of starts unresolved and drift per step",
         )
     sec.cautions.append(HEURISTIC_CAUTION)
     return sec
@@ -296,6 +315,7 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
 
 def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
     from cyclewright.cycles.graph import functional_graph
+    from cyclewright.cycles.graph_figure import plot_node_limit
 
     p = spec.params
     sec = Section(f"Functional graph of the starts 1..{p['to']} ({p['side']})")
@@ -304,13 +324,20 @@ def _graph(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         ctx.say(f"graph {m.label}")
         g = functional_graph(m, p["to"], side=p["side"], ceiling=p["ceiling"])
         rows.append(g.table().with_column("map", m.label))
-        if p["plot"] and g.graph.number_of_nodes() <= 2000:
-            png = ctx.out / f"{ctx.name('graph-plot', m.label)}.png"
-            g.plot(png)
-            sec.figures.append(
-                Figure(
-                    png, f"{m.label}: the orbits of 1..{p['to']} ({p['side']}), cycles highlighted"
-                )
+        nodes, limit = g.graph.number_of_nodes(), plot_node_limit(ctx.width)
+        if p["plot"] and nodes > limit:
+            sec.paragraphs.append(
+                f"{m.label}: no figure: the graph has {nodes} nodes, and a figure "
+                f"{figure_width(ctx.width):g} in wide draws at most {limit} legibly."
+            )
+        elif p["plot"]:
+            ctx.add_figure(
+                sec,
+                ("graph-plot", m.label),
+                g.plot,
+                f"{m.label}: every value on the orbits of the starts 1..{p['to']} ({p['side']}), "
+                "placed by its steps to the cycle and its size, coloured by the cycle it "
+                "reaches (exact)",
             )
     ctx.add_stacked(sec, ("graph-basins",), rows)
     return sec
@@ -342,14 +369,12 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         if r.unresolved:
             sec.cautions.append(f"{m.label}: {r.caution}")
         if p["plot"]:
-            png = ctx.out / f"{ctx.name('records-plot', m.label)}.png"
-            plot_records(r, png)
-            sec.figures.append(
-                Figure(
-                    png,
-                    f"{m.label}: steps to the cycle and stopping times over "
-                    f"{p['from']}..{p['to']} (counts exact; model heuristic)",
-                )
+            ctx.add_figure(
+                sec,
+                ("records-plot", m.label),
+                lambda path, r=r, **kw: plot_records(r, path, **kw),
+                f"{m.label}: steps to the cycle and stopping times over "
+                f"{p['from']}..{p['to']} (counts exact; model heuristic)",
             )
     ctx.add_stacked(sec, ("records",), summaries, "Record holders and mean step counts")
     ctx.add_stacked(sec, ("records-basins",), basins, "Basin sizes")
@@ -562,7 +587,9 @@ def run_study(
     if not isinstance(previous, dict) or previous.get("study") != params["study"]:
         previous = {}
     _write_json(sj, {**params, "status": "running", "files": previous.get("files", {})})
-    ctx = StudyContext(out_dir, workers, say or (lambda _m: None))
+    ctx = StudyContext(
+        out_dir, workers, say or (lambda _m: None), figures=study.figures, width=study.width
+    )
     ctx.stores.mkdir(exist_ok=True)
     report = Report(study.title, intro=[study.description] if study.description else [])
     report.sections.append(_catalogue_section(ctx, study))

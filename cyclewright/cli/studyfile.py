@@ -19,6 +19,10 @@ Schema
     branches.1 = { multiplier = 4, offset = -1 }
     branches.2 = { multiplier = 4, offset = 1 }
 
+    [report]                                 # optional
+    figures = ["png", "svg", "pdf"]          # formats of every figure [default: png]
+    width = "single"                         # single, double or inches [default: single]
+
     [[analysis]]
     kind = "sweep"                           # see ANALYSES for the kinds and their keys
     maps = ["3x+1"]                          # optional; default: every map of the study
@@ -28,6 +32,12 @@ Numbers and ranges are written as on the command line (``to = "10^9"``,
 ``odd = "1..10^2"``; :mod:`cyclewright.cli.numbers`), keys carry the option
 names (``max_steps`` for ``--max-steps``, ``offsets`` for ``--offsets``) and
 the defaults are the command line's (:mod:`cyclewright.cli.options`).
+
+``[report]`` sets the figures of every analysis: ``figures`` is one format
+or a list of them (``png``, ``svg``, ``pdf``; each figure is written once in
+each), ``width`` is the figures' width as the command line's ``--width``
+takes it (``single``, ``double``, inches such as ``4.5`` or ``"89mm"``); the
+defaults are :data:`REPORT_PARAMS`'s, the width the plotting functions' own.
 
 Every error names the file, the table and the key, e.g.
 ``demo.toml: [[analysis]] #2 (census): key 'max_length': must be an integer >= 1, got 0``.
@@ -46,6 +56,8 @@ from pathlib import Path
 
 from cyclewright.cycles.compare import COMPARE_DEFAULTS
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
+from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.figures import DEFAULT_WIDTH, FIGURE_FORMATS, figure_width
 from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES
 from cyclewright.cycles.limits import (
     MAX_COMPARE_TO,
@@ -78,6 +90,7 @@ __all__ = [
     "load_study",
     "parse_study",
     "PARAMS",
+    "REPORT_PARAMS",
     "MAX_STUDY_FILE_BYTES",
     "MAX_ANALYSES",
 ]
@@ -161,6 +174,44 @@ def _str(v) -> str:
 
 SIDE = _choice(*SIDES)
 
+
+def _formats(v) -> tuple[str, ...]:
+    """One figure format or a list of them, each once (``png``, ``svg``, ``pdf``)."""
+    items = [v] if isinstance(v, str) else v
+    if not isinstance(items, list) or not items:
+        raise ValueError(
+            f"must be a format or a list of formats ({', '.join(FIGURE_FORMATS)}), got {_shown(v)}"
+        )
+    out: list[str] = []
+    for item in items:
+        fmt = item.lower().lstrip(".") if isinstance(item, str) else item
+        if fmt not in FIGURE_FORMATS:
+            raise ValueError(
+                f"must name formats among {', '.join(FIGURE_FORMATS)}, got {_shown(item)}"
+            )
+        if fmt in out:
+            raise ValueError(f"names {fmt} twice")
+        out.append(fmt)
+    return tuple(out)
+
+
+def _width(v) -> str | float:
+    """A figure width as ``--width`` takes it, kept as written (a number stays a number)."""
+    if isinstance(v, bool) or not isinstance(v, (str, int, float)):
+        raise ValueError(f'must be "single", "double" or inches, got {_shown(v)}')
+    try:
+        figure_width(v)
+    except InputError as exc:
+        raise ValueError(str(exc).removeprefix("the figure width ")) from None
+    return v
+
+
+#: ``[report]`` keys -> (checker, default); the width is the plotting functions' default.
+REPORT_PARAMS: dict[str, tuple[Callable, object]] = {
+    "figures": (_formats, "png"),
+    "width": (_width, DEFAULT_WIDTH),
+}
+
 #: Old key names still read (they are renamed before validation).
 KEY_ALIASES = {"k": "offsets"}
 
@@ -243,6 +294,9 @@ class Study:
     analyses: list[AnalysisSpec]
     store: str | None = None
     raw: dict = field(default_factory=dict, repr=False)
+    #: ``[report]``: the figure formats and the figures' width
+    figures: tuple[str, ...] = ("png",)
+    width: str | float = DEFAULT_WIDTH
 
     def to_dict(self) -> dict:
         return {
@@ -255,6 +309,7 @@ class Study:
                 {"kind": a.kind, "maps": [m.label for m in a.maps], "params": a.params}
                 for a in self.analyses
             ],
+            "report": {"figures": list(self.figures), "width": self.width},
         }
 
 
@@ -271,12 +326,23 @@ def parse_study(
     data: Mapping, *, origin: str, base_dir: Path | None = None, path: Path | None = None
 ) -> Study:
     """Validate parsed study data (see the module docstring for the schema)."""
-    allowed_top = {"study", "maps", "analysis"}
+    allowed_top = {"study", "maps", "analysis", "report"}
     for key in data:
         if key not in allowed_top:
             raise StudyError(
-                f"{origin}: key {key!r}: unknown top-level table (allowed: study, maps, analysis)"
+                f"{origin}: key {key!r}: unknown top-level table "
+                "(allowed: study, maps, analysis, report)"
             )
+    rt = data.get("report", {})
+    if not isinstance(rt, Mapping):
+        raise StudyError(f"{origin}: [report]: must be a table")
+    _only(rt, set(REPORT_PARAMS), origin, "[report]")
+    report = {}
+    for key, (check, default) in REPORT_PARAMS.items():
+        try:
+            report[key] = check(rt.get(key, default))
+        except ValueError as exc:
+            raise StudyError(f"{origin}: [report]: key {key!r}: {exc}") from None
     st = data.get("study")
     if not isinstance(st, Mapping):
         raise StudyError(f"{origin}: [study]: missing (it needs at least a title)")
@@ -401,7 +467,17 @@ def parse_study(
                 f"{where}: key 'from': the range {params['from']}..{params['to']} is empty"
             )
         specs.append(AnalysisSpec(i, kind, amaps, params))
-    return Study(path, title.strip(), description, study_maps, specs, store, dict(data))
+    return Study(
+        path,
+        title.strip(),
+        description,
+        study_maps,
+        specs,
+        store,
+        dict(data),
+        figures=report["figures"],
+        width=report["width"],
+    )
 
 
 def _only(table: Mapping, allowed: set[str], origin: str, where: str) -> None:

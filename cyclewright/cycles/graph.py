@@ -43,7 +43,6 @@ References
 
 from __future__ import annotations
 
-import math
 import os
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -55,7 +54,9 @@ import networkx as nx
 from cyclewright.maps import Map, as_map
 
 from .errors import InputError
+from .figures import DEFAULT_WIDTH
 from .files import atomic_write
+from .graph_figure import PLOT_NODE_LIMIT
 from .integer_cycle import IntegerCycle, cycle_from_element
 from .labels import EXACT, labels_field
 from .limits import (
@@ -86,7 +87,6 @@ __all__ = [
 
 #: Most starts of one graph (the API's limit, :data:`~cyclewright.cycles.limits.MAX_GRAPH_STARTS`).
 MAX_STARTS = MAX_GRAPH_STARTS
-PLOT_NODE_LIMIT = 2_000
 
 ESCAPED = -1
 UNRESOLVED = -2
@@ -351,91 +351,35 @@ class FunctionalGraph(Presentable):
         text = self.dot_text()
         return _atomic_write(path, lambda p: Path(p).write_text(text))
 
-    def plot(self, path: str | os.PathLike, *, labels: bool | None = None, seed: int = 1) -> Path:
-        """Draw the graph to an image file (PNG, SVG, PDF by extension), for small graphs.
+    def plot(self, path: str | os.PathLike, *, width: str | float = DEFAULT_WIDTH) -> Path:
+        """Draw the graph to ``path`` (PNG, SVG or PDF by extension), ``width`` wide.
 
-        Nodes are coloured by basin (grey: beyond the ceiling or unresolved);
-        cycle nodes are outlined. Uses matplotlib's Agg canvas directly, so it
-        never changes the caller's backend. Positions are a spring layout
-        (deterministic for a given ``seed``); they are for looking only.
+        Each value is placed by its steps to the cycle (x) and its size on a
+        log scale (y); edges run one column to the left, a cycle's own edges
+        form a closed loop left of step 0; colours are the basins, with the legend under
+        the axes and the map and range in the title
+        (:func:`cyclewright.cycles.graph_figure.draw_functional_graph`).
+
+        Parameters
+        ----------
+        path : str or path
+        width : str or float
+            ``"single"`` (one column, 3.4 in; default), ``"double"`` (7.0 in)
+            or inches (:func:`cyclewright.cycles.figures.figure_width`).
+
+        Returns
+        -------
+        Path
+
+        Raises
+        ------
+        InputError
+            An unknown format, or a graph with more nodes than the width
+            draws legibly (:func:`cyclewright.cycles.graph_figure.plot_node_limit`).
         """
-        n = self.graph.number_of_nodes()
-        _fmt(path)  # an unknown format is refused before any drawing
-        if n > PLOT_NODE_LIMIT:
-            raise InputError(
-                f"the graph has {n} nodes; plotting is for at most {PLOT_NODE_LIMIT} "
-                f"(export GraphML/GEXF for larger graphs)"
-            )
-        from matplotlib.backends.backend_agg import FigureCanvasAgg
-        from matplotlib.figure import Figure
+        from .graph_figure import draw_functional_graph
 
-        g = self.graph
-        side = max(7.0, min(24.0, 0.8 * n**0.5))
-        fig = Figure(figsize=(side, side))
-        FigureCanvasAgg(fig)
-        ax = fig.add_subplot(1, 1, 1)
-        ax.set_axis_off()
-        pos = _layout(g, seed)
-        palette = [
-            "#1f77b4",
-            "#ff7f0e",
-            "#2ca02c",
-            "#d62728",
-            "#9467bd",
-            "#8c564b",
-            "#e377c2",
-            "#17becf",
-            "#bcbd22",
-        ]
-        colors = []
-        for v in g.nodes:
-            b = g.nodes[v]["basin"]
-            colors.append("#bbbbbb" if b < 0 else palette[b % len(palette)])
-        edgecolors = ["black" if g.nodes[v]["on_cycle"] else "none" for v in g.nodes]
-        size = 300 if n <= 60 else (80 if n <= 400 else 20)
-        nx.draw_networkx_edges(g, pos, ax=ax, arrows=n <= 400, width=0.6, alpha=0.6)
-        nx.draw_networkx_nodes(
-            g, pos, ax=ax, node_color=colors, edgecolors=edgecolors, node_size=size
-        )
-        if labels if labels is not None else n <= 150:
-            nx.draw_networkx_labels(g, pos, ax=ax, font_size=7 if n > 60 else 9)
-        mins = ", ".join(str(c.minimum) for c in self.cycles[:8])
-        ax.set_title(
-            f"{self.map.label}, {self.side} starts {self.start}..{self.to}: "
-            f"cycles with minima {mins}; escaped {self.escaped}, unresolved {self.unresolved}",
-            fontsize=9,
-        )
-        return _atomic_write(path, lambda p: fig.savefig(p, dpi=100, format=_fmt(path)))
-
-
-def _layout(g: nx.DiGraph, seed: int) -> dict:
-    """Spring layout per weakly connected component, components on a grid (largest first)."""
-    comps = sorted(nx.weakly_connected_components(g), key=lambda c: (-len(c), min(c, key=abs)))
-    if not comps:
-        return {}
-    cols = math.ceil(math.sqrt(len(comps)))
-    biggest = len(comps[0])
-    pos = {}
-    for i, comp in enumerate(comps):
-        sub = g.subgraph(comp)
-        radius = 0.45 * math.sqrt(len(comp) / biggest)
-        if len(comp) == 1:
-            local = {next(iter(comp)): (0.0, 0.0)}
-        else:
-            local = nx.spring_layout(sub, seed=seed, method="force", scale=radius)
-        cx, cy = i % cols, -(i // cols)
-        for v, (x, y) in local.items():
-            pos[v] = (cx + float(x), cy + float(y))
-    return pos
-
-
-def _fmt(path: str | os.PathLike) -> str:
-    ext = Path(path).suffix.lower().lstrip(".")
-    if ext not in ("png", "svg", "pdf"):
-        raise InputError(
-            f"cannot tell the image format of {str(path)[-60:]!r}: use .png, .svg or .pdf"
-        )
-    return ext
+        return draw_functional_graph(self, path, width=width)
 
 
 def _dot_id(text: str) -> str:

@@ -25,7 +25,7 @@ from ..options import (
     max_steps_option,
     odd_option,
     offsets_option,
-    plot_option,
+    plot_options,
     power_text,
     resolve_map,
     resolve_store,
@@ -102,7 +102,7 @@ _HELP = (
 @offsets_option
 @all_offsets_option
 @csv_option
-@plot_option
+@plot_options
 @store_options
 @workers_option
 @executor_options
@@ -119,6 +119,7 @@ def compare_cmd(
     all_offsets,
     csv_path,
     plot_path,
+    width,
     store,
     no_store,
     workers,
@@ -152,7 +153,7 @@ def compare_cmd(
     if plot_path:
         from ..plots import plot_comparison
 
-        plot_comparison(cmp, cmp.sweeps(), plot_path)
+        plot_comparison(cmp, cmp.sweeps(), plot_path, width=width)
     if as_json:
         emit_json(cmp.to_dict())
         return

@@ -2,15 +2,13 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
-from cyclewright.cycles.graph import PLOT_NODE_LIMIT, check_graph, functional_graph
+from cyclewright.cycles.graph import check_graph, functional_graph
+from cyclewright.cycles.graph_figure import check_graph_plot
 
 from ..errors import BadInput
-from ..files import check_output
-from ..numbers import quote
+from ..files import check_figure_path, check_output
 from ..options import (
     ceiling_option,
     force_option,
@@ -20,7 +18,7 @@ from ..options import (
     map_argument,
     maps_option,
     max_steps_option,
-    plot_option,
+    plot_options,
     resolve_map,
     side_option,
     to_option,
@@ -28,15 +26,13 @@ from ..options import (
 from ..progress import with_progress
 from ..render import emit_json, short, show_table, stdout_console
 
-#: File name endings --plot understands (the format follows the ending).
-PLOT_SUFFIXES = (".png", ".svg", ".pdf")
-
 
 @click.command(
     "graph",
     epilog=(
         "\b\nExamples:\n  cyclewright graph 3x+1 --to 1000 --side both\n"
-        "  cyclewright graph 3x+13 --to 400 --graphml g.graphml --plot g.png\n"
+        "  cyclewright graph 3x+13 --to 400 --graphml g.graphml --plot g.pdf\n"
+        "  cyclewright graph 3x+1 --to 1000 --plot g.svg --width double\n"
         "  cyclewright graph 5x+1 --to 200 --ceiling 10^12 --json\n"
         "\b\n'escaped' counts starts whose orbit passed the ceiling: an exact count,\n"
         "not a proof that those orbits diverge."
@@ -51,7 +47,7 @@ PLOT_SUFFIXES = (".png", ".svg", ".pdf")
 @click.option("--graphml", type=click.Path(dir_okay=False), help="Write the graph as GraphML.")
 @click.option("--gexf", type=click.Path(dir_okay=False), help="Write the graph as GEXF.")
 @click.option("--dot", type=click.Path(dir_okay=False), help="Write the graph as DOT (Graphviz).")
-@plot_option
+@plot_options
 @force_option
 @maps_option
 @json_option
@@ -67,6 +63,7 @@ def graph_cmd(
     gexf,
     dot,
     plot_path,
+    width,
     force,
     map_files,
     as_json,
@@ -81,26 +78,20 @@ def graph_cmd(
     m = resolve_map(map_spec, map_files)
     # the API's limits (range, starts, step cap, ceiling), refused before anything is built
     n_to, n_from, steps, ceil = check_graph(to, start, side, max_steps, ceiling)
-    total = (n_to - n_from + 1) * (2 if side == "both" else 1)
-    if plot_path is not None and total > PLOT_NODE_LIMIT:
-        raise BadInput(
-            f"{total} starts give at least {total} nodes; --plot draws at most "
-            f"{PLOT_NODE_LIMIT} (use a smaller range, or --graphml/--gexf); nothing was done"
-        )
-    if plot_path is not None and Path(plot_path).suffix.lower() not in PLOT_SUFFIXES:
-        raise BadInput(
-            f"--plot: cannot tell the format of {quote(plot_path)}; "
-            f"name the file with one of {', '.join(PLOT_SUFFIXES)}"
-        )
     outputs = {
         "graphml": check_output(graphml, "--graphml", force),
         "gexf": check_output(gexf, "--gexf", force),
         "dot": check_output(dot, "--dot", force),
-        "plot": check_output(plot_path, "--plot", force),
+        "plot": check_figure_path(plot_path, "--plot", force),
     }
     names = [p for p in outputs.values() if p is not None]
     if len({p.resolve() for p in names}) != len(names):
         raise BadInput("two outputs name the same file")
+    if plot_path is not None:
+        # a graph too big to draw legibly at this width is refused before it is built
+        check_graph_plot(
+            m, n_to, start=n_from, side=side, max_steps=steps, ceiling=ceil, width=width
+        )
 
     result = with_progress(
         functional_graph,
@@ -112,11 +103,6 @@ def graph_cmd(
         ceiling=ceil,
     )
     nodes = result.graph.number_of_nodes()
-    if outputs["plot"] is not None and nodes > PLOT_NODE_LIMIT:
-        raise BadInput(
-            f"the graph has {nodes} nodes; --plot draws at most {PLOT_NODE_LIMIT} "
-            f"(use a smaller range, or --graphml/--gexf); nothing was written"
-        )
     written = {}
     if outputs["graphml"] is not None:
         written["graphml"] = str(result.write_graphml(outputs["graphml"]))
@@ -125,7 +111,7 @@ def graph_cmd(
     if outputs["dot"] is not None:
         written["dot"] = str(result.write_dot(outputs["dot"]))
     if outputs["plot"] is not None:
-        written["plot"] = str(result.plot(outputs["plot"]))
+        written["plot"] = str(result.plot(outputs["plot"], width=width))
 
     if as_json:
         emit_json({**result.to_dict(), "written": written})

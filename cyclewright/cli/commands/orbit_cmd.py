@@ -17,7 +17,7 @@ from ..options import (
     maps_option,
     max_steps_option,
     parse_int,
-    plot_option,
+    plot_options,
     resolve_map,
     show_option,
 )
@@ -33,13 +33,13 @@ from ..render import emit_json, latex_mode, short, show_table, stdout_console
 @max_steps_option
 @ceiling_option
 @show_option
-@plot_option
+@plot_options
 @force_option
 @maps_option
 @json_option
 @latex_tables
 def orbit_cmd(
-    map_spec, start, max_steps, ceiling, show, plot_path, force, map_files, as_json
+    map_spec, start, max_steps, ceiling, show, plot_path, width, force, map_files, as_json
 ) -> None:
     """Follow N under MAP: stopping time, the cycle entered, peak (exact); --plot draws it.
 
@@ -60,7 +60,7 @@ def orbit_cmd(
     if plot_path:
         from ..plots import plot_orbit
 
-        plot_orbit(o, plot_path)
+        plot_orbit(o, plot_path, width=width)
     if as_json:
         emit_json(o.to_dict(max_values=None))
         return

@@ -21,7 +21,7 @@ from ..options import (
     map_argument,
     maps_option,
     max_steps_option,
-    plot_option,
+    plot_options,
     resolve_map,
     resolve_store,
     show_option,
@@ -62,7 +62,7 @@ left out of every record and distribution. Model means are heuristic.
 @workers_option
 @executor_options
 @csv_option
-@plot_option
+@plot_options
 @latex_option
 @show_option
 @force_option
@@ -80,6 +80,7 @@ def records_cmd(
     scheduler,
     csv_path,
     plot_path,
+    width,
     as_latex,
     show,
     force,
@@ -125,7 +126,7 @@ def records_cmd(
     if plot_path:
         from ..plots import plot_records
 
-        plot_records(r, plot_path)
+        plot_records(r, plot_path, width=width)
     if csv_path == "-":
         return
     if as_json:

@@ -17,8 +17,9 @@ from ..studyfile import StudyError, load_study
     epilog=(
         "\b\nExamples:\n  cyclewright study cyclewright/scenarios/demo.toml --out demo-out\n"
         "  cyclewright study cyclewright/scenarios/family.toml --out family-out --workers 2\n"
-        "\b\nThe output directory gets report.md and report.html, PNG plots, CSV and JSON for every\n"
-        "table, census certificates, study.json (versions, parameters) and stores/ (scan results,\n"
+        "\b\nThe output directory gets report.md and report.html, the figures (PNG, SVG and/or PDF\n"
+        "at the width the study file's [report] table names), CSV and JSON for every table,\n"
+        "census certificates, study.json (versions, parameters) and stores/ (scan results,\n"
         "reused by a re-run, which reproduces the data files byte for byte)."
     ),
 )

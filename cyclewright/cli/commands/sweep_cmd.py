@@ -25,7 +25,7 @@ from ..options import (
     map_argument,
     maps_option,
     odd_range_option,
-    plot_option,
+    plot_options,
     resolve_map,
     show_option,
     side_option,
@@ -64,7 +64,7 @@ __all__ = ["COMMANDS"]
 @side_option
 @limit_option
 @csv_option
-@plot_option
+@plot_options
 @force_option
 @show_option
 @maps_option
@@ -78,6 +78,7 @@ def sweep_cmd(
     limit,
     csv_path,
     plot_path,
+    width,
     force,
     show,
     map_files,
@@ -118,7 +119,7 @@ def sweep_cmd(
         else:
             atomic_write(csv_path, lambda fh: write_csv(fh, cols, rows))
     if plot_path:
-        plot_sweep(sweeps[0], plot_path)
+        plot_sweep(sweeps[0], plot_path, width=width)
     if as_json:
         emit_json(got.to_dict())
         return
