@@ -2,6 +2,7 @@
 
 Inside
 ------
+- :func:`functional_graph_figure` -- the matplotlib figure itself.
 - :func:`draw_functional_graph` -- the figure of a
   :class:`~cyclewright.cycles.graph.FunctionalGraph` (what
   :meth:`FunctionalGraph.plot <cyclewright.cycles.graph.FunctionalGraph.plot>` writes).
@@ -43,6 +44,7 @@ from .sides import DEFAULT_SIDE, Side
 
 __all__ = [
     "draw_functional_graph",
+    "functional_graph_figure",
     "check_graph_plot",
     "plot_node_limit",
     "PLOT_NODE_LIMIT",
@@ -177,7 +179,9 @@ def _depths(g) -> dict[int, int]:
     return depth
 
 
-def draw_functional_graph(fg, path: str | os.PathLike, *, width: str | float = DEFAULT_WIDTH):
+def draw_functional_graph(
+    fg, path: str | os.PathLike, *, width: str | float = DEFAULT_WIDTH
+) -> Path:
     """Write the figure of a :class:`~cyclewright.cycles.graph.FunctionalGraph` (see the module).
 
     Parameters
@@ -199,12 +203,35 @@ def draw_functional_graph(fg, path: str | os.PathLike, *, width: str | float = D
         An unknown format, or more nodes than :func:`plot_node_limit` allows
         at this width; nothing is written.
     """
+    figure_format(path)  # an unknown format is refused before any drawing
+    return save_figure(functional_graph_figure(fg, width=width), Path(path))
+
+
+def functional_graph_figure(fg, *, width: str | float = DEFAULT_WIDTH):
+    """The matplotlib figure of a :class:`~cyclewright.cycles.graph.FunctionalGraph`, unsaved.
+
+    Parameters
+    ----------
+    fg : FunctionalGraph
+    width : str or float
+        ``"single"`` (default), ``"double"`` or inches.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        One axes (x: steps to the cycle, y: the value, log scale) and one
+        figure legend under it.
+
+    Raises
+    ------
+    InputError
+        More nodes than :func:`plot_node_limit` allows at this width.
+    """
     from matplotlib.collections import LineCollection
     from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
     st = FigureStyle.of(width)
-    figure_format(path)  # an unknown format is refused before any drawing
     g = fg.graph
     n = g.number_of_nodes()
     limit = plot_node_limit(st.width)
@@ -332,4 +359,4 @@ def draw_functional_graph(fg, path: str | os.PathLike, *, width: str | float = D
         ncols=legend_cols,
         frameon=False,
     )
-    return save_figure(fig, Path(path))
+    return fig
