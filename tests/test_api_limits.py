@@ -29,14 +29,25 @@ CHILD = textwrap.dedent(
     from cyclewright.cycles.census import census_family
     from cyclewright.cycles.wordsearch import integral_cycles_by_itinerary
 
-    def no_ceiling_graph_small_budget():
-        # the node and value bound of a graph whose orbits escape without a ceiling,
-        # with the budget scaled down to 64 MiB (the mechanism, not the machine's memory)
-        graph_module.MEMORY_BUDGET = 2**26
-        try:
-            return cw.functional_graph("5x+1", 10, ceiling=None, max_steps=10**9)
-        finally:
-            graph_module.MEMORY_BUDGET = cw.cycles.limits.MEMORY_BUDGET
+    def small_budget(call):
+        # the budget scaled down to 64 MiB (the mechanism, not the machine's memory)
+        def run():
+            graph_module.MEMORY_BUDGET = 2**26
+            try:
+                return call()
+            finally:
+                graph_module.MEMORY_BUDGET = cw.cycles.limits.MEMORY_BUDGET
+        return run
+
+    # the node bound of a graph whose orbits escape without a ceiling (they stop
+    # at the value cap 30 * 10^1000, so a node's size is known before the walk)
+    no_ceiling_graph_small_budget = small_budget(
+        lambda: cw.functional_graph("5x+1", 30, ceiling=None, max_steps=10**9)
+    )
+    # the starts alone (every start is a node) beyond the budget: refused up front
+    graph_starts_over_budget = small_budget(
+        lambda: cw.functional_graph("3x+1", 400_000, ceiling=10**1000)
+    )
 
     CASES = {
         "census-K-10^30": lambda: cw.census("3x+1", 10**30),
@@ -64,6 +75,7 @@ CHILD = textwrap.dedent(
         "graph-ceiling-10^2000": lambda: cw.functional_graph("3x+1", 10, ceiling=10**2000),
         "graph-escaping-5x+1": lambda: cw.functional_graph("5x+1", 100_000),
         "graph-no-ceiling": no_ceiling_graph_small_budget,
+        "graph-starts-over-budget": graph_starts_over_budget,
         "solve-10^7-letters": lambda: cw.solve("3x+1", "1" * 10**7),
         "solve-repeat-10^6": lambda: cw.solve("3x+1", "1^1000000"),
         "itineraries-K-10^6": lambda: integral_cycles_by_itinerary("3x+1", 10**6),
@@ -119,7 +131,8 @@ EXPECTED: dict[str, tuple[str, str]] = {
     "graph-to-10^30": ("InputError", "the graph holds at most 500000 starts"),
     "graph-ceiling-10^2000": ("InputError", "the ceiling must be at most 10^1000"),
     "graph-escaping-5x+1": ("InputError", "one graph holds at most 933688 nodes"),
-    "graph-no-ceiling": ("InputError", "orbits climbing without a ceiling"),
+    "graph-no-ceiling": ("InputError", "orbits climbing towards the value cap 30000000000"),
+    "graph-starts-over-budget": ("InputError", "400,000 starts with values up to"),
     "solve-10^7-letters": ("ItineraryError", "more than 100000 letters"),
     "solve-repeat-10^6": ("ItineraryError", "more than 100000 letters"),
     "itineraries-K-10^6": ("InputError", "half-words joined (the limit)"),
@@ -209,3 +222,52 @@ def test_graph_of_an_escaping_map_small_range_still_works():
 
     g = cw.functional_graph("5x+1", 20, ceiling=10**6)
     assert g.cycle_minima() == [1, 13, 17] and g.escaped == 5
+
+
+def test_graph_without_ceiling_stops_at_the_shared_value_cap():
+    # 5x+1 from 1..10 with no ceiling and a step cap of 10^9: every walk ends in a
+    # cycle or at the value cap 10 * 10^1000 (the orbit's cap, shared), reported
+    # as escaped -- an exact count, not a proof of divergence. The cycles reached
+    # are among the known positive cycles of 5x+1, minima 1, 13, 17 (Lagarias 1985).
+    import cyclewright as cw
+    from cyclewright.cycles.limits import value_cap
+    from cyclewright.cycles.orbit import default_ceiling
+
+    g = cw.functional_graph("5x+1", 10, ceiling=None, max_steps=10**9)
+    assert g.value_cap == value_cap(10) == default_ceiling(10) == 10 * 10**1000
+    assert set(g.cycle_minima()) <= {1, 13, 17} and 1 in g.cycle_minima()
+    assert g.escaped >= 1 and g.unresolved == 0
+    beyond = [n for n, a in g.graph.nodes(data=True) if a["frontier"] == "beyond_ceiling"]
+    assert beyond and all(abs(n) > g.value_cap for n in beyond)
+    inside = [n for n, a in g.graph.nodes(data=True) if a["frontier"] == ""]
+    assert all(abs(n) <= g.value_cap for n in inside)
+    d = g.to_dict()
+    assert d["ceiling"] is None and d["value_cap"] == 10 * 10**1000
+    assert "value cap" in d["escaped_note"] and "not a proof" in d["escaped_note"]
+    # each escaping start's own orbit passes the same cap (the orbit's default)
+    for s in range(1, 11):
+        if g.basin_of(s) == "escaped":
+            assert cw.orbit("5x+1", s, max_steps=10**6, ceiling=g.value_cap).status == "escaped"
+
+
+def test_graph_bound_is_known_before_the_walk():
+    # the bound's arithmetic (common practice, no source): each step adds a node or
+    # ends the walk; a node's value is at most the frontier's a * cap + b
+    import cyclewright as cw
+    from cyclewright.cycles import limits
+    from cyclewright.cycles.graph import graph_bound
+
+    b = graph_bound("3x+1", 10, max_steps=5)
+    assert (b.starts, b.nodes, b.steps) == (10, 60, 70)
+    big = graph_bound("3x+1", 100, max_steps=10**9)
+    assert big.nodes == limits.MAX_GRAPH_NODES and big.node_bytes == limits.GRAPH_BYTES_PER_NODE
+    capped = graph_bound("5x+1", 100, ceiling=None, max_steps=10**9)
+    assert capped.cap == 100 * 10**1000
+    assert capped.node_bytes > limits.GRAPH_BYTES_PER_NODE
+    assert capped.bytes <= limits.MEMORY_BUDGET
+    assert capped.nodes == limits.MEMORY_BUDGET // capped.node_bytes
+    with cw.lift_limits():
+        assert graph_bound("3x+1", 100, max_steps=10**9).nodes == 100 * (10**9 + 1)
+    # the starts of a quick graph stay well inside the bound: it gives its result
+    g = cw.functional_graph("3x+1", 100, max_steps=10**9)
+    assert g.cycle_minima() == [1] and g.graph.number_of_nodes() <= big.nodes

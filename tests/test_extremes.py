@@ -239,3 +239,17 @@ def test_graph_of_5x1_over_a_large_range_stops_at_the_node_limit(capsys):
     code, out, err = run(["graph", "5x+1", "--to", "500000"], capsys)
     assert code == 2 and out == "" and err.count("\n") == 1
     assert f"at most {MAX_GRAPH_NODES} nodes" in err and "nothing was written" in err
+
+
+def test_graph_without_ceiling_and_a_huge_step_cap_is_bounded(capsys):
+    # every walk stops at the value cap shared with the orbit (largest start times
+    # 10^1000), reported as an escape; the quick graph of 3x+1 with the same step
+    # cap still gives its result (cycle 1 -> 2 -> 1; Lagarias 1985)
+    args = ["graph", "5x+1", "--to", "10", "--ceiling", "none", "--max-steps", "10^9"]
+    doc = run_json(args, capsys)
+    assert doc["ceiling"] is None and doc["value_cap"] == 10 * 10**1000
+    assert doc["escaped"] >= 1 and "not a proof" in doc["escaped_note"]
+    code, out, err = run(args, capsys)
+    assert code == 0 and "value cap 10 * 10^1000" in out and "not a proof" in out
+    doc = run_json(["graph", "3x+1", "--to", "100", "--max-steps", "10^9"], capsys)
+    assert [c["minimum"] for c in doc["cycles"]] == [1] and doc["escaped"] == 0

@@ -394,7 +394,10 @@ ceiling_option = _shared(
     default=power_text(DEFAULT_CEILING),
     show_default=True,
     metavar="C",
-    help="Stop an orbit once |value| exceeds C (escaped: not a proof of divergence); 'none' for no ceiling.",
+    help=(
+        "Stop an orbit once |value| exceeds C (escaped: not a proof of divergence); "
+        "'none': at the value cap, the largest start times 10^1000."
+    ),
 )
 
 limit_option = _shared(

@@ -17,13 +17,17 @@ Inside
 
 Every node ``n`` has one out-edge ``n -> T(n)``, except the *frontier*
 nodes: a value beyond the ceiling (``beyond_ceiling``) or the value where a
-walk stopped at the step cap (``unresolved``). So every node leads to
+walk stopped at the step cap (``unresolved``). With no ceiling a walk stops
+at the value cap shared with :func:`~cyclewright.cycles.orbit.orbit`
+(:func:`~cyclewright.cycles.limits.value_cap`: the largest start times
+``10^1000``), so every value held has a size known before the walk starts
+and :func:`graph_bound` bounds the graph's nodes, memory and steps up front. So every node leads to
 exactly one attracting component: a cycle or a frontier node.
 
 Figures and their labels: cycles and basin counts are ``exact`` (Python
 integers throughout, every cycle re-derived from its itinerary). The count
 of starts that *escaped* is an exact count of starts whose orbit passed the
-ceiling -- it is not a proof that those orbits diverge. Unresolved starts
+ceiling (or the value cap) -- it is not a proof that those orbits diverge. Unresolved starts
 are open cases.
 
 Node attributes (kept in every export): ``residue`` (``n mod d``),
@@ -68,9 +72,12 @@ from .limits import (
     MAX_START_DIGITS,
     MAX_STEP_CAP,
     MEMORY_BUDGET,
+    VALUE_CAP_DIGITS,
     check_range,
+    int_bytes,
     limits_lifted,
     short_int,
+    value_cap,
 )
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
@@ -81,6 +88,8 @@ __all__ = [
     "FunctionalGraph",
     "functional_graph",
     "check_graph",
+    "graph_bound",
+    "GraphBound",
     "MAX_STARTS",
     "PLOT_NODE_LIMIT",
 ]
@@ -118,7 +127,12 @@ class FunctionalGraph(Presentable):
     starts : int
         How many starts.
     escaped, unresolved : int
-        Starts whose orbit passed the ceiling / stopped at the step cap.
+        Starts whose orbit passed the ceiling (or the value cap) / stopped
+        at the step cap.
+    value_cap : int or None
+        Where a walk stopped as escaped: ``ceiling`` when given, else the
+        value cap :func:`~cyclewright.cycles.limits.value_cap` of ``to``
+        (``to * 10^1000``). Passing it is not a proof of divergence.
     """
 
     map: Map
@@ -134,6 +148,14 @@ class FunctionalGraph(Presentable):
     escaped: int
     unresolved: int
     labels: dict = labels_field(cycles=EXACT, basin=EXACT, escaped=EXACT, unresolved=EXACT)
+    value_cap: int | None = None
+
+    @property
+    def escape_text(self) -> str:
+        """What an escape passed: ``"the ceiling"`` or ``"the value cap to * 10^1000"``."""
+        if self.ceiling is not None or self.value_cap is None:
+            return "the ceiling"
+        return f"the value cap {short_int(max(self.to, 1))} * 10^{VALUE_CAP_DIGITS}"
 
     # ------------------------------------------------------------ summaries
     @property
@@ -169,7 +191,7 @@ class FunctionalGraph(Presentable):
         ]
         rows.append(
             (
-                "escaped (passed the ceiling)",
+                f"escaped (passed {self.escape_text})",
                 None,
                 None,
                 None,
@@ -213,8 +235,8 @@ class FunctionalGraph(Presentable):
                     "share",
                 )
             },
-            "each cycle verified by solving its itinerary; escaped means the orbit passed the "
-            "ceiling: an exact count, not a proof of divergence",
+            "each cycle verified by solving its itinerary; escaped means the orbit passed "
+            f"{self.escape_text}: an exact count, not a proof of divergence",
         )
 
     def cycle_minima(self, *, in_range: bool = False) -> list[int]:
@@ -256,6 +278,7 @@ class FunctionalGraph(Presentable):
             "to": self.to,
             "max_steps": self.max_steps,
             "ceiling": self.ceiling,
+            "value_cap": self.value_cap,
             "starts": self.starts,
             "nodes": self.graph.number_of_nodes(),
             "edges": self.graph.number_of_edges(),
@@ -274,7 +297,7 @@ class FunctionalGraph(Presentable):
             "unresolved": self.unresolved,
             "unresolved_share": self.unresolved_share,
             "escaped_note": (
-                "escaped counts the starts whose orbit passed the ceiling; "
+                f"escaped counts the starts whose orbit passed {self.escape_text}; "
                 "it is not a proof that those orbits diverge"
             ),
             "labels": dict(self.labels),
@@ -465,12 +488,127 @@ def check_graph(
     return to, start, max_steps, ceiling
 
 
-def _too_many_nodes(nodes: int, value_bytes: int, done: int, total: int, ceiling) -> str:
-    where = "without a ceiling" if ceiling is None else f"towards the ceiling {short_int(ceiling)}"
+@dataclass(frozen=True)
+class GraphBound:
+    """What a functional graph may hold at most, known before its walk starts.
+
+    Every value a walk keeps is at most the cap in absolute value (the
+    ceiling, or with none the value cap of the largest start), and its image
+    one step further (the frontier); so a node never takes more than
+    ``node_bytes``. Every step of a walk adds a node or ends the walk, so
+    the walk takes at most ``nodes + starts`` steps.
+
+    Attributes
+    ----------
+    starts : int
+    cap : int
+        Where a walk stops as escaped.
+    node_bytes : int
+        Most bytes of one node: its measured size with a value of a machine
+        word (:data:`~cyclewright.cycles.limits.GRAPH_BYTES_PER_NODE`) plus
+        the further digits of a value of the frontier's size.
+    nodes : int
+        Most nodes: ``starts * (max_steps + 1)``, and (unless the limits are
+        lifted) at most :data:`~cyclewright.cycles.limits.MAX_GRAPH_NODES`
+        and the memory budget over ``node_bytes``: a walk that passes it is
+        refused.
+    steps : int
+        Most steps of all walks together (``nodes + starts``).
+    """
+
+    starts: int
+    cap: int
+    node_bytes: int
+    nodes: int
+    steps: int
+
+    @property
+    def bytes(self) -> int:
+        """Most memory of the graph (``nodes * node_bytes``)."""
+        return self.nodes * self.node_bytes
+
+    def text(self) -> str:
+        """One phrase: the bound on nodes, memory and steps."""
+        return (
+            f"at most {self.nodes:,} nodes of at most {self.node_bytes:,} bytes "
+            f"(about {self.bytes // 2**20:,} MiB) and {self.steps:,} steps"
+        )
+
+
+def graph_bound(
+    m: Map | str,
+    to: int,
+    *,
+    start: int = 1,
+    side: Side = DEFAULT_SIDE,
+    max_steps: int = DEFAULT_MAX_STEPS,
+    ceiling: int | None = DEFAULT_CEILING,
+) -> GraphBound:
+    """Bound a :func:`functional_graph`'s nodes, memory and steps before it is walked.
+
+    The arguments are checked as by :func:`check_graph`. Beyond the limits,
+    refused at once with the bound (:class:`InputError`): the starts alone
+    (every start is a node) take more than the memory budget at the node
+    size the cap allows. Not checked inside
+    :func:`~cyclewright.cycles.limits.lift_limits`.
+
+    Parameters
+    ----------
+    m : Map or str
+    to, start, side, max_steps, ceiling
+        As for :func:`functional_graph`.
+
+    Returns
+    -------
+    GraphBound
+
+    Examples
+    --------
+    >>> b = graph_bound("3x+1", 100, max_steps=10**9)
+    >>> b.nodes, b.node_bytes, b.steps
+    (933688, 2300, 933788)
+    >>> graph_bound("5x+1", 100, ceiling=None).cap == 100 * 10**1000
+    True
+    >>> graph_bound("3x+1", 10, max_steps=5).nodes     # 10 walks of at most 6 values
+    60
+
+    References
+    ----------
+    None: a count of the walk's own bookkeeping (see :class:`GraphBound`).
+    """
+    m = as_map(m)
+    to, start, max_steps, ceiling = check_graph(to, start, side, max_steps, ceiling)
+    starts = (to - start + 1) * (2 if side == "both" else 1)
+    cap = ceiling if ceiling is not None else value_cap(to)
+    grow = max(abs(a) for a in m.multipliers) * cap + max(abs(b) for b in m.offsets)
+    # GRAPH_BYTES_PER_NODE was measured with values of a machine word or less
+    node_bytes = GRAPH_BYTES_PER_NODE + max(0, int_bytes(grow) - int_bytes(2**62))
+    nodes = starts * (max_steps + 1)
+    if not limits_lifted():
+        fit = min(MAX_GRAPH_NODES, MEMORY_BUDGET // node_bytes)
+        if starts > fit:
+            raise InputError(
+                f"{starts:,} starts with values up to {short_int(cap)} could need about "
+                f"{starts * node_bytes // 2**20:,} MiB ({node_bytes:,} bytes a node); one graph "
+                f"holds at most {fit:,} such nodes in {MEMORY_BUDGET // 2**20:,} MiB; lower the "
+                "ceiling or use a smaller range"
+            )
+        nodes = min(nodes, fit)
+    return GraphBound(starts, cap, node_bytes, nodes, nodes + starts)
+
+
+def _too_many_nodes(
+    nodes: int, value_bytes: int, done: int, total: int, ceiling, bound: GraphBound
+) -> str:
+    where = (
+        f"towards the value cap {short_int(bound.cap)}"
+        if ceiling is None
+        else f"towards the ceiling {short_int(ceiling)}"
+    )
     size = (nodes * GRAPH_BYTES_PER_NODE + value_bytes) // 2**20
     return (
         f"the graph reached {nodes} nodes (about {size} MiB) after {done} of {total} starts; "
-        f"one graph holds at most {MAX_GRAPH_NODES} nodes and {MEMORY_BUDGET // 2**20} MiB: "
+        f"one graph holds at most {bound.nodes} nodes and {MEMORY_BUDGET // 2**20} MiB: "
         f"orbits climbing {where} add nodes beyond the starts; lower the ceiling or the step "
         "cap, or use a smaller range; nothing was written"
     )
@@ -509,8 +647,10 @@ def functional_graph(
         New values per walk before it stops (unresolved); default
         :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`.
     ceiling : int or None
-        Stop a walk once ``|value| > ceiling``; None for no ceiling (then
-        only the step cap stops an escaping orbit); default
+        Stop a walk once ``|value| > ceiling``; None for no ceiling: a walk
+        then stops (escaped) at the value cap ``to * 10^1000`` shared with
+        :func:`~cyclewright.cycles.orbit.orbit`
+        (:func:`~cyclewright.cycles.limits.value_cap`); default
         :data:`~cyclewright.cycles.limits.DEFAULT_CEILING`.
     progress : ProgressCallback, optional
         Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
@@ -523,8 +663,8 @@ def functional_graph(
     Raises
     ------
     InputError
-        Input beyond the limits of :func:`check_graph`, refused before any
-        walk; and a graph whose nodes pass
+        Input beyond the limits of :func:`check_graph` or the bound of
+        :func:`graph_bound`, refused before any walk; and a graph whose nodes pass
         :data:`~cyclewright.cycles.limits.MAX_GRAPH_NODES` (or whose values
         pass the memory budget) while it is walked: orbits that escape add
         nodes the starts do not bound, and the walk stops there, with the
@@ -548,9 +688,13 @@ def functional_graph(
     Lagarias 1985 (cycles of 3x+1 on both sides); see the module docstring.
     """
     m = as_map(m)
+    bound = graph_bound(
+        m, to, start=start, side=side, max_steps=max_steps, ceiling=ceiling
+    )  # checks the arguments as check_graph does, and refuses beyond the budget at once
     to, start, max_steps, ceiling = check_graph(to, start, side, max_steps, ceiling)
     lifted = limits_lifted()
-    node_limit = MAX_GRAPH_NODES
+    node_limit = bound.nodes
+    cap = bound.cap
     value_bytes = 0  # the digits of the values held, beyond the fixed size of a node
 
     step = m.step
@@ -579,9 +723,11 @@ def functional_graph(
                     or value_bytes + len(succ) * GRAPH_BYTES_PER_NODE > MEMORY_BUDGET
                 ):
                     raise InputError(
-                        _too_many_nodes(len(succ) + len(frontier), value_bytes, i, total, ceiling)
+                        _too_many_nodes(
+                            len(succ) + len(frontier), value_bytes, i, total, ceiling, bound
+                        )
                     )
-            if ceiling is not None and abs(w) > ceiling:
+            if abs(w) > cap:
                 if w not in succ:
                     frontier.setdefault(w, "beyond_ceiling")
                 break
@@ -657,4 +803,5 @@ def functional_graph(
         starts=total,
         escaped=counts.get(ESCAPED, 0),
         unresolved=counts.get(UNRESOLVED, 0),
+        value_cap=cap,
     )

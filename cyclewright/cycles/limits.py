@@ -71,6 +71,9 @@ __all__ = [
     "short_int",
     "int_digits",
     "quote",
+    "VALUE_CAP_DIGITS",
+    "value_cap",
+    "int_bytes",
 ]
 
 DEFAULT_MAX_STEPS = 1_000
@@ -428,3 +431,33 @@ def check_workers(workers: int | None, what: str = "workers") -> int | None:
         why="each worker holds its own interpreter and compiled kernels",
         liftable=True,
     )
+
+
+#: Digits a walk may add to its largest start before it stops as ``escaped``
+#: when no ceiling is given: the value cap shared by the orbit and the
+#: functional graph (:func:`value_cap`). Like the step cap, passing it is
+#: never a proof of divergence.
+VALUE_CAP_DIGITS = 1000
+
+
+def value_cap(n: int) -> int:
+    """The value cap of a walk from starts up to ``|n|`` with no ceiling: ``max(|n|, 1) * 10^1000``.
+
+    Shared by :func:`~cyclewright.cycles.orbit.orbit` (``n`` its start) and
+    :func:`~cyclewright.cycles.graph.functional_graph` (``n`` its largest
+    start): a value beyond it ends the walk as ``escaped``, so the size of
+    every value held is known before the walk starts.
+
+    >>> value_cap(7) == 7 * 10**1000, value_cap(0) == 10**1000
+    (True, True)
+    """
+    return max(abs(n), 1) * 10**VALUE_CAP_DIGITS
+
+
+def int_bytes(n: int) -> int:
+    """Bytes CPython takes for an integer of ``|n|``'s size (28 plus 4 per 30 bits).
+
+    >>> int_bytes(1), int_bytes(2**60), int_bytes(10**1000)
+    (32, 40, 472)
+    """
+    return 28 + 4 * (abs(n).bit_length() // 30 + 1)

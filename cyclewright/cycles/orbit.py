@@ -51,11 +51,13 @@ from .limits import (
     DEFAULT_MAX_STEPS,
     MAX_START_DIGITS,
     MAX_STEP_CAP,
+    VALUE_CAP_DIGITS,
     check_memory,
     check_range,
     int_digits,
     limits_lifted,
     short_int,
+    value_cap,
 )
 from .presentation import Presentable, Table
 
@@ -72,17 +74,20 @@ __all__ = [
 T = TypeVar("T")
 
 #: Without an explicit ceiling an orbit stops ("escaped") once it has grown
-#: by this many decimal digits over its start.
-DEFAULT_GROWTH_DIGITS = 1000
+#: by this many decimal digits over its start (the shared
+#: :data:`~cyclewright.cycles.limits.VALUE_CAP_DIGITS`).
+DEFAULT_GROWTH_DIGITS = VALUE_CAP_DIGITS
 
 
 def default_ceiling(n: int) -> int:
     """The value cap used when no ceiling is given: ``max(|n|, 1) * 10^1000``.
 
+    The cap the functional graph uses too (:func:`~cyclewright.cycles.limits.value_cap`).
+
     >>> default_ceiling(7) == 7 * 10**1000
     True
     """
-    return max(abs(n), 1) * 10**DEFAULT_GROWTH_DIGITS
+    return value_cap(n)
 
 
 def orbit_memory_estimate(max_steps: int, ceiling: int) -> int:

@@ -34,7 +34,8 @@ from ..render import emit_json, short, show_table, stdout_console
         "  cyclewright graph 3x+13 --to 400 --graphml g.graphml --plot g.pdf\n"
         "  cyclewright graph 3x+1 --to 1000 --plot g.svg --width double\n"
         "  cyclewright graph 5x+1 --to 200 --ceiling 10^12 --json\n"
-        "\b\n'escaped' counts starts whose orbit passed the ceiling: an exact count,\n"
+        "\b\n'escaped' counts starts whose orbit passed the ceiling (with --ceiling\n"
+        "none: the value cap, the largest start times 10^1000): an exact count,\n"
         "not a proof that those orbits diverge."
     ),
 )
@@ -120,11 +121,14 @@ def graph_cmd(
     con.print(
         f"[bold]{m.label}[/bold], {side} starts {n_from}..{n_to}: {result.starts} starts, "
         f"{nodes} nodes, {result.graph.number_of_edges()} edges "
-        f"(max steps {steps}, ceiling {short(ceil)})"
+        f"(max steps {steps}, ceiling {short(ceil)}"
+        + (f"; walks stop at {result.escape_text}" if ceil is None else "")
+        + ")"
     )
     con.print(show_table(result.table()))
     con.print(
-        f"escaped (passed the ceiling; not a proof of divergence): {result.escaped} starts "
+        f"escaped (passed {result.escape_text}; not a proof of divergence): "
+        f"{result.escaped} starts "
         f"({float(result.escaped_share):.2%}); unresolved (step cap): {result.unresolved}"
     )
     for kind, path in written.items():
