@@ -85,6 +85,17 @@ CHILD = textwrap.dedent(
         "compare-K-10^9": lambda: cw.compare(["3x+1"], max_length=10**9),
         "compare-to-10^30": lambda: cw.compare(["3x+1"], to=10**30),
         "excursions-max-steps-10^30": lambda: cw.excursions("3x+1", 100, max_steps=10**30),
+        # timed on pieces of the range itself, then refused with the estimate: no
+        # machine walks 2^62 starts in 30 minutes
+        "excursions-to-2^62-1": lambda: cw.excursions("3x+1", 2**62 - 1),
+        "excursions-rate-given": lambda: cw.excursions("3x+1", 10**9, rate=1e3),
+        "records-to-2^63-1": lambda: cw.records("3x+1", 2**63 - 1, store=False),
+        "records-rate-given": lambda: cw.records(
+            "3x+1", 10**9, rate=1e3, workers=2, store=False
+        ),
+        "records-memory-step-cap-10^6": lambda: cw.records(
+            "5x+1", 1000, max_steps=10**6, store=False
+        ),
     }
 
     def alarm(*_):
@@ -142,6 +153,11 @@ EXPECTED: dict[str, tuple[str, str]] = {
     "compare-K-10^9": ("InputError", "must be at most 10^6"),
     "compare-to-10^30": ("InputError", "to (--to) must be at most 10^9"),
     "excursions-max-steps-10^30": ("InputError", "max_steps must be at most 10^9"),
+    "excursions-to-2^62-1": ("InputError", "beyond the limit of 30 min (max_minutes)"),
+    "excursions-rate-given": ("InputError", "1e+09 starts, about 12 days at 1e+03 starts/s"),
+    "records-to-2^63-1": ("InputError", "9.22e+18 starts, about"),
+    "records-rate-given": ("InputError", "x 2 workers (rate given; heuristic)"),
+    "records-memory-step-cap-10^6": ("InputError", "of memory, more than the 2.1 GB allowed"),
 }
 
 

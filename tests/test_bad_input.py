@@ -320,6 +320,15 @@ CASES: list[tuple[str, list[str]]] = [
     ("compare-to-2^62", ["compare", "3x+1", "--to", "2^62"]),
     ("compare-workers-256", ["compare", "3x+1", "--workers", "256"]),
     ("compare-csv-exists", ["compare", "3x+1", "--csv", "existing.csv"]),
+    # records
+    ("records-to-2^63-1", ["records", "3x+1", "--to", "2^63-1", "--csv", "new.csv"]),
+    ("records-both-to-2^62", ["records", "3x+1", "--to", "2^62", "--side", "both"]),
+    ("records-memory-step-cap-10^6", ["records", "5x+1", "--to", "1000", "--max-steps", "10^6"]),
+    ("records-max-minutes-0", ["records", "3x+1", "--to", "10^7", "--max-minutes", "0"]),
+    ("records-max-minutes-text", ["records", "3x+1", "--to", "100", "--max-minutes", "abc"]),
+    ("records-max-minutes-negative", ["records", "3x+1", "--to", "100", "--max-minutes", "-1"]),
+    ("records-max-minutes-inf", ["records", "3x+1", "--to", "100", "--max-minutes", "inf"]),
+    ("records-plan-empty-range", ["records", "3x+1", "--to", "10", "--from", "20", "--plan"]),
     # scan
     ("scan-to-10^5000", ["scan", "3x+1", "--to", "10^5000"]),
     ("scan-to-10^1000", ["scan", "3x+1", "--to", "10^1000"]),

@@ -35,7 +35,13 @@ from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .labels import EXACT, PROVED
-from .limits import DEFAULT_MAX_STEPS, MAX_EXCURSION_START, MAX_STEP_CAP, check_range
+from .limits import (
+    DEFAULT_MAX_STEPS,
+    MAX_EXCURSION_START,
+    MAX_RECORDS_MINUTES,
+    MAX_STEP_CAP,
+    check_range,
+)
 from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -217,6 +223,8 @@ def excursions(
     start: int = 1,
     side: Side = DEFAULT_SIDE,
     max_steps: int = DEFAULT_MAX_STEPS,
+    max_minutes: float | None = MAX_RECORDS_MINUTES,
+    rate: float | None = None,
 ) -> Excursions | PerSide[Excursions]:
     """Follow every start of ``start..to`` until it drops below its start.
 
@@ -230,12 +238,27 @@ def excursions(
     max_steps : int
         Step cap per start (default
         :data:`~cyclewright.cycles.limits.DEFAULT_MAX_STEPS`).
+    max_minutes : float or None
+        Refuse a run estimated to take longer (one process) before it
+        starts, with the estimate (default
+        :data:`~cyclewright.cycles.limits.MAX_RECORDS_MINUTES`; None: no
+        limit; lifted inside :func:`~cyclewright.cycles.limits.lift_limits`).
+        The estimate times the compiled walk on pieces of the range
+        (:func:`~cyclewright.cycles.records_plan.plan_excursions`, heuristic).
+    rate : float, optional
+        Starts per second for the estimate, instead of timing.
 
     Returns
     -------
     Excursions or PerSide of Excursions
         One :class:`Excursions`; for ``side="both"`` a
         :class:`~cyclewright.cycles.sides.PerSide` with one per side.
+
+    Raises
+    ------
+    InputError
+        A range or step cap beyond the limits, or an estimate beyond
+        ``max_minutes``: one line, before any walk.
 
     Examples
     --------
@@ -264,6 +287,14 @@ def excursions(
     check_range(max_steps, "max_steps", maximum=MAX_STEP_CAP)
     if any(abs(a) >= 2**31 or abs(b) >= 2**31 for a, b in m.branches):
         raise InputError(f"{m.label}: coefficients too large for the compiled excursion walk")
+    from .records_plan import check_plan, plan_excursions
+
+    check_plan(
+        plan_excursions(m, to, start=start, side=side, max_steps=max_steps, rate=rate),
+        max_minutes,
+        option="max_minutes",
+        more_workers=False,
+    )
     return on_sides(side, lambda s: _excursions(m, to, start, s, max_steps))
 
 

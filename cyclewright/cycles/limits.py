@@ -74,6 +74,8 @@ __all__ = [
     "VALUE_CAP_DIGITS",
     "value_cap",
     "int_bytes",
+    "MAX_RECORDS_MINUTES",
+    "QUICK_WALK_WORK",
 ]
 
 DEFAULT_MAX_STEPS = 1_000
@@ -461,3 +463,15 @@ def int_bytes(n: int) -> int:
     (32, 40, 472)
     """
     return 28 + 4 * (abs(n).bit_length() // 30 + 1)
+
+
+#: Longest estimated wall time, in minutes, of a ``records`` or ``excursions``
+#: run accepted by default (``max_minutes``, ``--max-minutes``): the run is
+#: timed on pieces of its own range first
+#: (:mod:`~cyclewright.cycles.records_plan`, heuristic) and refused with the
+#: estimate beyond it. Raised by the parameter; lifted inside :func:`lift_limits`.
+MAX_RECORDS_MINUTES = 30.0
+
+#: A ``records`` or ``excursions`` range with ``starts * max_steps^2`` at most
+#: this is not timed before it runs (well under a second of work).
+QUICK_WALK_WORK = 10**9

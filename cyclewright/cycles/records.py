@@ -70,7 +70,13 @@ from cyclewright.maps.registry import as_map
 
 from .errors import InputError
 from .labels import EXACT, HEURISTIC, HEURISTIC_CAUTION, ROUNDED
-from .limits import DEFAULT_MAX_STEPS, MAX_RECORDS_STEP_CAP, MAX_RECORDS_TO, check_range
+from .limits import (
+    DEFAULT_MAX_STEPS,
+    MAX_RECORDS_MINUTES,
+    MAX_RECORDS_STEP_CAP,
+    MAX_RECORDS_TO,
+    check_range,
+)
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, Side, parse_side, sides_of
@@ -1145,6 +1151,9 @@ def records(
     progress: ProgressCallback | None = None,
     chunk_size: int | None = None,
     store=None,
+    max_minutes: float | None = MAX_RECORDS_MINUTES,
+    rate: float | None = None,
+    on_plan=None,
 ) -> RangeRecords:
     """Records, distributions and basins of every start of ``[start, to]`` (exact).
 
@@ -1174,11 +1183,32 @@ def records(
         None: beside the map's scan store in the user data directory
         (``$CYCLEWRIGHT_DATA_DIR`` overrides); a directory or a scan store's
         file name: the records file of this map there; False: keep nothing.
+    max_minutes : float or None
+        Refuse a run estimated to take longer (wall clock, on ``workers``)
+        before it starts, with the estimate (default
+        :data:`~cyclewright.cycles.limits.MAX_RECORDS_MINUTES`; None: no
+        limit; lifted inside :func:`~cyclewright.cycles.limits.lift_limits`).
+        The estimate times this run's own chunk on pieces of the range
+        (:func:`~cyclewright.cycles.records_plan.plan_records`, heuristic);
+        the memory the exact walk of climbing starts may need is checked
+        first.
+    rate : float, optional
+        Starts per second per worker for the estimate, instead of timing.
+    on_plan : callable, optional
+        Called with the :class:`~cyclewright.cycles.records_plan.WalkPlan`
+        once every refusal check has passed, before any chunk runs.
 
     Returns
     -------
     RangeRecords
         ``chunks_reused`` of ``chunks_total`` came from the store.
+
+    Raises
+    ------
+    InputError
+        Arguments beyond the limits (docs/limits.md), the memory of the
+        exact walk beyond the budget, or an estimate beyond ``max_minutes``:
+        one line, before any work.
 
     Examples
     --------
@@ -1208,6 +1238,23 @@ def records(
         raise InputError(f"empty range: {start}..{to}")
     check_range(to, "to", maximum=MAX_RECORDS_TO, why="the compiled walk holds starts as int64")
     check_range(max_steps, "max_steps", minimum=1, maximum=MAX_RECORDS_STEP_CAP)
+    from .limits import check_workers
+    from .records_plan import check_plan, plan_records
+
+    check_workers(workers)
+    plan = plan_records(
+        m,
+        to,
+        start=start,
+        side=side,
+        max_steps=max_steps,
+        workers=workers,
+        executor=executor,
+        rate=rate,
+    )  # the memory check first, then the time: refused here, before any chunk
+    check_plan(plan, max_minutes)
+    if on_plan is not None:
+        on_plan(plan)
     t0 = time.perf_counter()
     sides = tuple(sides_of(side))
     csize = chunk_size or _chunk_size(m)

@@ -7,7 +7,9 @@ import sys
 import click
 
 from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.limits import MAX_RECORDS_MINUTES
 from cyclewright.cycles.records import records
+from cyclewright.cycles.records_plan import check_plan, plan_records
 
 from ..errors import BadInput
 from ..files import atomic_write, check_figure_path, check_output
@@ -31,7 +33,14 @@ from ..options import (
     workers_option,
 )
 from ..progress import progress_display
-from ..render import emit_json, latex_output, show_table, stdout_console, write_csv
+from ..render import (
+    emit_json,
+    latex_output,
+    show_table,
+    stderr_console,
+    stdout_console,
+    write_csv,
+)
 
 _EPILOG = """\b
 Examples:
@@ -50,6 +59,10 @@ delay: steps to that minimum; glide: first step below |s|; peak: largest
 record holder beats every start of smaller |s| in the range. Starts that do
 not close a cycle within --max-steps are unresolved: counted, listed, and
 left out of every record and distribution. Model means are heuristic.
+\b
+Before it starts, the run is timed on small pieces of its own range and
+refused, with the estimate, when that is above --max-minutes (heuristic;
+--plan shows the estimate only).
 """
 
 
@@ -68,6 +81,19 @@ left out of every record and distribution. Model means are heuristic.
 @force_option
 @maps_option
 @store_options
+@click.option(
+    "--max-minutes",
+    default=f"{MAX_RECORDS_MINUTES:g}",
+    show_default=True,
+    metavar="M",
+    help="Refuse a run whose estimated time (measured now, heuristic) is above M minutes.",
+)
+@click.option(
+    "--plan",
+    "plan_only",
+    is_flag=True,
+    help="Only print the estimate: starts, time per start measured now, wall time.",
+)
 @json_option
 def records_cmd(
     map_spec,
@@ -87,12 +113,23 @@ def records_cmd(
     map_files,
     store,
     no_store,
+    max_minutes,
+    plan_only,
     as_json,
 ) -> None:
     """Record holders (delay, glide, peak), exact distributions and basin sizes of MAP over [M, N]."""
     m = resolve_map(map_spec, map_files)
     if to < 1:
         raise BadInput(f"--to must be at least 1, got {to}")
+    try:
+        limit = float(max_minutes)
+    except ValueError:
+        raise BadInput(f"--max-minutes must be a number, got {max_minutes!r}") from None
+    if not limit >= 0 or limit == float("inf"):
+        raise BadInput(f"--max-minutes must be a number of minutes >= 0, got {max_minutes!r}")
+    if plan_only:
+        _plan(m, to, start, side, max_steps, workers, executor, limit, as_json)
+        return
     if as_json and as_latex:
         raise BadInput("--json and --latex exclude each other")
     if csv_path == "-" and (as_json or as_latex):
@@ -113,6 +150,8 @@ def records_cmd(
                 scheduler=scheduler,
                 progress=show_progress,
                 store=resolve_store(store, no_store),
+                max_minutes=limit,
+                on_plan=show_plan,
             )
     except InputError as exc:
         raise BadInput(str(exc)) from None
@@ -136,6 +175,42 @@ def records_cmd(
         print(latex_text(r, show))
         return
     _print(r, show)
+
+
+def show_plan(plan) -> None:
+    """The estimate on stderr before a run of a second or more (a short run starts at once)."""
+    if plan.seconds >= 1.0:
+        for line in plan.lines():
+            stderr_console().print(f"plan: {line}", highlight=False)
+
+
+def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> None:
+    """``--plan``: the estimate and whether the run would be refused; nothing runs."""
+    try:
+        if start < 1 or to < start:
+            raise InputError(f"empty range: {start}..{to}")
+        plan = plan_records(
+            m, to, start=start, side=side, max_steps=max_steps, workers=workers, executor=executor
+        )
+    except InputError as exc:
+        raise BadInput(str(exc)) from None
+    try:
+        check_plan(plan, limit)
+        refused = ""
+    except InputError as exc:
+        refused = str(exc)
+    if as_json:
+        emit_json({**plan.to_dict(), "max_minutes": limit, "refused": bool(refused)})
+        return
+    con = stdout_console()
+    for line in plan.lines():
+        con.print(line, highlight=False)
+    if refused:
+        con.print(
+            f"beyond --max-minutes {limit:g}: the run would be refused here; raise --max-minutes, "
+            "use more --workers, or --executor dask --scheduler ADDRESS",
+            highlight=False,
+        )
 
 
 def csv_rows(r):

@@ -1,0 +1,168 @@
+"""The time estimate of records and excursions, and their refusal before any work.
+
+The estimate's arithmetic and the refusal are checked with a fake clock or a
+given rate, so no assertion depends on the machine's speed; where the real
+kernel is timed, only the shape of the result is checked (samples inside the
+range, a positive time per start, the heuristic label). The limits and the
+rule (a refusal in one line before the work starts) are the project's own
+(docs/limits.md; common practice, no source).
+"""
+
+from __future__ import annotations
+
+import os
+
+import pytest
+
+import cyclewright as cw
+from cyclewright.cycles import limits
+from cyclewright.cycles.records_plan import (
+    QUICK_SECONDS,
+    WalkPlan,
+    check_plan,
+    is_quick,
+    measure_pieces,
+    plan_excursions,
+    plan_records,
+    records_memory,
+)
+
+
+class FakeClock:
+    """Advances by ``per_start`` seconds for every start the last piece walked."""
+
+    def __init__(self, per_start: float, fixed: float = 0.0):
+        self.now = 0.0
+        self.per_start = per_start
+        self.fixed = fixed
+        self.pieces: list[tuple[int, int]] = []
+
+    def run(self, a: int, b: int) -> None:
+        self.pieces.append((a, b))
+        self.now += self.fixed + self.per_start * (b - a + 1)
+
+    def __call__(self) -> float:
+        return self.now
+
+
+def test_quick_ranges_are_not_measured():
+    # starts * max_steps^2 <= 10^9 (the limit's arithmetic; common practice, no source)
+    assert limits.QUICK_WALK_WORK == 10**9
+    assert is_quick(1000, 1000) and not is_quick(1001, 1000)
+    assert not is_quick(1, 10**5)
+    p = plan_records("3x+1", 1000, max_steps=1000)
+    assert p.samples == () and p.seconds == 0.0 and p.source.startswith("not measured")
+
+
+def test_pieces_grow_fourfold_inside_each_part_and_stop_at_the_budget():
+    clock = FakeClock(per_start=1e-3)
+    samples = measure_pieces(clock.run, 1, 4_000_000, budget=0.3, clock=clock)
+    # one untimed piece of one start first, then pieces of 1, 4, 16, ... starts
+    assert clock.pieces[0] == (1, 1)
+    first_part = [p for p in clock.pieces[1:] if p[1] <= 1_000_000]
+    sizes = [b - a + 1 for a, b in first_part]
+    assert sizes[:4] == [1, 4, 16, 64]
+    # the budget per part (0.3 / 4 s at 1 ms a start) ends the growth
+    assert sum(sizes) * 1e-3 >= 0.3 / 4 and sizes[-1] <= 4 * sizes[-2]
+    # one sample per part, inside its part; pieces are contiguous from the part's middle
+    assert len(samples) == 4
+    for j, s in enumerate(samples):
+        assert s.part_lo == 1 + j * 1_000_000 and s.part_hi == (j + 1) * 1_000_000
+        assert s.part_lo <= s.lo <= s.hi <= s.part_hi and s.visited == s.hi - s.lo + 1
+
+
+def test_sampling_stops_early_when_the_range_is_quick():
+    clock = FakeClock(per_start=1e-9)  # 10^6 starts: a millisecond in all
+    samples = measure_pieces(clock.run, 1, 10**6, clock=clock, quick_seconds=QUICK_SECONDS)
+    assert len(samples) == 1 and samples[0].hi - samples[0].lo + 1 >= 1024
+    assert len(clock.pieces) <= 8
+
+
+def test_sampling_of_slow_starts_stops_after_its_time():
+    clock = FakeClock(per_start=0.0, fixed=2.0)  # every piece takes 2 s, whatever its size
+    samples = measure_pieces(clock.run, 1, 10**9, budget=0.3, clock=clock)
+    # one piece a part; after more than max(2 * budget, 1 s) no further part is timed
+    assert [s.hi - s.lo + 1 for s in samples] == [1]
+    assert len(clock.pieces) == 2  # the untimed first piece and one timed piece
+
+
+def test_plan_with_a_given_rate_is_starts_over_rate_and_workers():
+    p = plan_records("3x+1", 10**10, side="both", max_steps=1000, workers=4, rate=2e6)
+    assert p.starts == 2 * 10**10 and p.workers == 4 and p.samples == ()
+    assert p.seconds == pytest.approx(2 * 10**10 / (2e6 * 4))
+    assert p.seconds_on(64) == pytest.approx(2 * 10**10 / (2e6 * 64))
+    d = p.to_dict()
+    assert d["labels"] == {
+        "starts": "exact",
+        "seconds_per_start": "heuristic",
+        "seconds": "heuristic",
+    }
+    assert "heuristic" in p.lines()[1] and "x 4 workers" in p.lines()[1]
+    # every core when workers is None (local); a Dask run counts the workers given, else 1
+    assert plan_records("3x+1", 10**10, max_steps=9, workers=None, rate=1e6).workers == (
+        os.cpu_count() or 1
+    )
+    assert (
+        plan_records("3x+1", 10**10, max_steps=9, workers=None, executor="dask", rate=1e6).workers
+        == 1
+    )
+    e = plan_excursions("3x+1", 10**10, side="both", max_steps=1000, rate=1e8)
+    assert e.workers == 1 and e.seconds == pytest.approx(2 * 10**10 / 1e8)
+    with pytest.raises(cw.InputError, match="rate must be a positive number"):
+        plan_records("3x+1", 10**10, max_steps=9, rate=0.0)
+
+
+def test_check_plan_refuses_in_one_line_with_the_estimate():
+    p = plan_records("3x+1", 10**12, max_steps=1000, workers=2, rate=1e7)  # 13.9 h
+    assert check_plan(p, 14 * 60) is p and check_plan(p, None) is p
+    with pytest.raises(cw.InputError) as info:
+        check_plan(p, 30)
+    msg = str(info.value)
+    assert "\n" not in msg and "1e+12 starts" in msg and "13.9 h" in msg
+    assert "heuristic" in msg and "beyond the limit of 30 min" in msg
+    assert "--max-minutes" in msg and "--workers" in msg and "64 workers" in msg
+    with cw.lift_limits():
+        assert check_plan(p, 30) is p
+    e = plan_excursions("3x+1", 10**12, max_steps=1000, rate=1e7)
+    with pytest.raises(cw.InputError) as info:
+        check_plan(e, 30, option="max_minutes", more_workers=False)
+    assert "--workers" not in str(info.value) and "(max_minutes)" in str(info.value)
+    with pytest.raises(cw.InputError, match="max_minutes must be a number"):
+        check_plan(p, -1)
+
+
+def test_records_and_excursions_refuse_before_any_work():
+    calls = []
+    with pytest.raises(cw.InputError, match="beyond the limit of 1 min"):
+        cw.records("3x+1", 10**7, rate=1e3, max_minutes=1, store=False, on_plan=calls.append)
+    assert calls == []  # refused before the plan is handed on, before any chunk
+    with pytest.raises(cw.InputError, match="beyond the limit of 1 min"):
+        cw.excursions("3x+1", 10**7, side="both", rate=1e3, max_minutes=1)
+    # raised by the parameter, or lifted: the same range then runs
+    r = cw.records("3x+1", 2000, rate=1e3, max_minutes=60, store=False, on_plan=calls.append)
+    assert [p.starts for p in calls] == [2000] and r.sides["positive"].basins == {1: 2000}
+    with cw.lift_limits():
+        e = cw.excursions("3x+1", 30, rate=1.0, max_minutes=0)
+    # OEIS A006885: 27's trajectory peaks at 9232, i.e. 4616 for the divided map
+    assert (e.peak, e.peak_start) == (4616, 27)
+
+
+def test_records_memory_of_climbing_starts_is_checked_first():
+    # 5x+1 climbs about 0.16 bits a step (its drift, ln(5/4)/2 nats); the exact walk
+    # keeps up to 2C + 1 values, so C = 10^6 needs tens of GB: refused before timing
+    assert records_memory("5x+1", 10**6) > limits.MEMORY_BUDGET
+    assert records_memory("5x+1", 1000) < 10**6
+    assert records_memory("3x+1", 10**6) < limits.MEMORY_BUDGET  # contracting: small values
+    assert records_memory("5x+1", 10**4, workers=2) == 2 * records_memory("5x+1", 10**4)
+    with pytest.raises(cw.InputError, match="of memory, more than"):
+        cw.records("5x+1", 1000, max_steps=10**6, store=False, rate=1e9)
+
+
+def test_the_real_kernel_is_timed_on_the_range_itself():
+    # shape only: the samples sit inside the range and the time is positive
+    p = plan_records("3x+1", 10**8, side="both", max_steps=1000, budget=0.1)
+    assert isinstance(p, WalkPlan) and p.samples and p.seconds_per_start > 0
+    assert all(1 <= s.lo <= s.hi <= 10**8 for s in p.samples)
+    assert p.source.startswith("measured now") and p.starts == 2 * 10**8
+    e = plan_excursions("5x+1", 10**7, max_steps=10**4, budget=0.1)
+    assert e.samples and e.seconds_per_start > 0 and e.workers == 1
