@@ -81,6 +81,10 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "default_records_path": ((), {}),
     "start_figures": ((27,), {}),
     "glide_model": ((), {}),
+    "graph_bound": ((40,), {"side": "both"}),
+    "plan_records": ((300,), {"side": "both", "max_steps": 100, "rate": 1e6}),
+    "plan_excursions": ((300,), {"side": "both", "max_steps": 100, "rate": 1e6}),
+    "records_memory": ((1000,), {"workers": 2}),
 }
 
 # Takes several maps: the first argument is a sequence of maps.

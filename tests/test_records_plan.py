@@ -166,3 +166,27 @@ def test_the_real_kernel_is_timed_on_the_range_itself():
     assert p.source.startswith("measured now") and p.starts == 2 * 10**8
     e = plan_excursions("5x+1", 10**7, max_steps=10**4, budget=0.1)
     assert e.samples and e.seconds_per_start > 0 and e.workers == 1
+
+
+def _run(args, capsys):
+    from cyclewright.cli.app import main
+
+    with pytest.raises(SystemExit) as info:
+        main(list(args))
+    out, err = capsys.readouterr()
+    return info.value.code or 0, out, err
+
+
+def test_records_plan_option_prints_the_estimate_and_runs_nothing(capsys, tmp_path, monkeypatch):
+    import json
+
+    monkeypatch.chdir(tmp_path)
+    code, out, err = _run(["records", "3x+1", "--to", "1000", "--plan", "--json"], capsys)
+    doc = json.loads(out)
+    assert code == 0 and doc["starts"] == 1000 and doc["refused"] is False
+    assert doc["labels"]["seconds"] == "heuristic" and doc["max_minutes"] == 30
+    # any measured time is above a limit of 0 minutes: the plan says it would be refused
+    args = ["records", "3x+1", "--to", "10^7", "--plan", "--max-minutes", "0"]
+    code, out, err = _run(args, capsys)
+    assert code == 0 and "measured now" in out and "would be refused" in out
+    assert list(tmp_path.iterdir()) == []  # nothing written

@@ -90,6 +90,7 @@ __all__ = [
     "to_option",
     "from_option",
     "workers_option",
+    "plan_option",
     "executor_options",
     "out_option",
     "csv_option",
@@ -532,6 +533,16 @@ maps_option = _shared(
     type=click.Path(dir_okay=False),
     metavar="FILE",
     help="TOML file of map definitions (repeatable); its names win over the catalog.",
+)
+
+plan_option = _shared(
+    "--plan",
+    "plan_only",
+    is_flag=True,
+    help=(
+        "Only print the plan with its time estimate (heuristic) and whether the run "
+        "would be refused; nothing runs."
+    ),
 )
 
 json_option = _shared(

@@ -27,6 +27,7 @@ from ..options import (
     max_length_option,
     offsets_option,
     parse_int,
+    plan_option,
     resolve_map,
     resolve_store,
     side_option,
@@ -81,12 +82,7 @@ __all__ = ["COMMANDS"]
     help="Refuse scans longer than this.",
 )
 @executor_options
-@click.option(
-    "--plan",
-    "plan_only",
-    is_flag=True,
-    help="Only print the plan: per side the bound, the range to scan and the time estimate.",
-)
+@plan_option
 @maps_option
 @json_option
 @latex_tables

@@ -23,6 +23,7 @@ from ..options import (
     map_argument,
     maps_option,
     max_steps_option,
+    plan_option,
     plot_options,
     resolve_map,
     resolve_store,
@@ -88,12 +89,7 @@ refused, with the estimate, when that is above --max-minutes (heuristic;
     metavar="M",
     help="Refuse a run whose estimated time (measured now, heuristic) is above M minutes.",
 )
-@click.option(
-    "--plan",
-    "plan_only",
-    is_flag=True,
-    help="Only print the estimate: starts, time per start measured now, wall time.",
-)
+@plan_option
 @json_option
 def records_cmd(
     map_spec,
