@@ -39,7 +39,7 @@ from cyclewright.maps import Map, as_map
 
 from .errors import InputError
 from .figures import DEFAULT_WIDTH, WIDTHS, FigureStyle, figure_format, new_figure, save_figure
-from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS, short_int
+from .limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS, short_int, value_cap
 from .sides import DEFAULT_SIDE, Side
 
 __all__ = [
@@ -143,6 +143,7 @@ def check_graph_plot(
     starts_count = (to - start + 1) * (2 if side == "both" else 1)
     if starts_count > limit:
         raise InputError(_too_big(f"at least {starts_count}", limit, st))
+    cap = ceiling if ceiling is not None else value_cap(to)  # the walk's own cap
     step = m.step
     seen: set[int] = set()
     signs = [s for s in (1, -1) if side in ("both", "positive" if s == 1 else "negative")]
@@ -153,7 +154,7 @@ def check_graph_plot(
                 seen.add(v)
                 if len(seen) > limit:
                     raise InputError(_too_big(f"more than {limit}", limit, st))
-                if ceiling is not None and abs(v) > ceiling:
+                if abs(v) > cap:
                     break
                 if new >= steps:
                     break
