@@ -79,6 +79,16 @@ FILES_TEXT: dict[str, str] = {
     "study_kind_list.toml": "[study]\ntitle = 't'\n[maps]\nuse = ['3x+1']\n[[analysis]]\nkind = [1]\n",
     "study_analysis_str.toml": "analysis = 'x'\n[study]\ntitle = 't'\n[maps]\nuse = ['3x+1']\n",
     "study_no_title.toml": "[study]\n[maps]\nuse = ['3x+1']\n[[analysis]]\nkind = 'floor'\n",
+    # timed before the study starts and refused before anything is written
+    "study_records_time.toml": (
+        "[study]\ntitle = 't'\n[maps]\nuse = ['3x+1']\n"
+        "[[analysis]]\nkind = 'records'\nto = 1000\n"
+        "[[analysis]]\nkind = 'records'\nto = '10^7'\nmax_minutes = 0\n"
+    ),
+    "study_records_minutes.toml": (
+        "[study]\ntitle = 't'\n[maps]\nuse = ['3x+1']\n"
+        "[[analysis]]\nkind = 'records'\nto = 1000\nmax_minutes = -1\n"
+    ),
     "study_range.toml": (
         "[study]\ntitle = 't'\n[maps]\nuse = ['3x+1']\n"
         "[[analysis]]\nkind = 'sweep'\nodd = '1..1000000000'\n"
@@ -403,6 +413,8 @@ CASES: list[tuple[str, list[str]]] = [
     ("study-kind-list", ["study", "study_kind_list.toml", "--out", "o"]),
     ("study-analysis-string", ["study", "study_analysis_str.toml", "--out", "o"]),
     ("study-no-title", ["study", "study_no_title.toml", "--out", "o"]),
+    ("study-records-beyond-max-minutes", ["study", "study_records_time.toml", "--out", "o"]),
+    ("study-records-max-minutes-negative", ["study", "study_records_minutes.toml", "--out", "o"]),
     ("study-range-10^9", ["study", "study_range.toml", "--out", "o"]),
     ("study-5000-digit-integer", ["study", "study_bigint.toml", "--out", "o"]),
     ("study-inline-redefinition", ["study", "study_redef.toml", "--out", "o"]),

@@ -190,3 +190,25 @@ def test_records_plan_option_prints_the_estimate_and_runs_nothing(capsys, tmp_pa
     code, out, err = _run(args, capsys)
     assert code == 0 and "measured now" in out and "would be refused" in out
     assert list(tmp_path.iterdir()) == []  # nothing written
+
+
+def test_compare_refuses_its_records_before_any_map_is_worked_on(monkeypatch):
+    # the estimate comes first: with a slow fake rate the comparison stops before the
+    # census, excursions or scan of the first map start
+    from cyclewright.cycles import compare as compare_module
+    from cyclewright.cycles import records_plan
+
+    real = records_plan.plan_records
+
+    def slow(*args, **kw):
+        return real(*args, **{**kw, "rate": 1.0})
+
+    def no_census(*args, **kw):
+        raise AssertionError("the census ran before the refusal")
+
+    monkeypatch.setattr(records_plan, "plan_records", slow)
+    monkeypatch.setattr(compare_module, "census", no_census)
+    with pytest.raises(cw.InputError) as info:
+        cw.compare(["3x+1"], max_length=8, to=10**5, store=False, workers=1)
+    msg = str(info.value)
+    assert "of compare's records" in msg and "run records with a larger --max-minutes" in msg

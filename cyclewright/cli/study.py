@@ -65,6 +65,8 @@ class StudyContext:
         self.names: set[str] = set()
         #: per section title, what its scans read back from the stores and computed
         self.store_use: dict = {}
+        #: per (records analysis, map key): the rate its estimate measured (see _preflight)
+        self.records_rates: dict = {}
 
     def note_store_use(self, sec: Section, use: StoreUse) -> None:
         """Say in the section (and in ``study.json``) how much came from the stores."""
@@ -362,6 +364,8 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             side=p["side"],
             max_steps=p["max_steps"],
             workers=ctx.workers,
+            max_minutes=None,  # estimated and checked before the study started (_preflight)
+            rate=ctx.records_rates.get((id(spec), m.key)),
         )
         summary, _, basin = r.tables()
         summaries.append(summary.with_column("map", m.label))
@@ -559,6 +563,36 @@ def _check_out_dir(out: Path, params: dict, force: bool) -> None:
     )
 
 
+def _preflight(study: Study, workers: int | None) -> dict:
+    """Estimate every records analysis and refuse, before anything is written, one beyond its time.
+
+    Returns the measured rates, keyed by (analysis, map key), so the runs do
+    not time themselves again.
+    """
+    from cyclewright.cycles.errors import InputError
+    from cyclewright.cycles.records_plan import check_plan, plan_records
+
+    rates: dict = {}
+    for i, spec in enumerate(study.analyses, 1):
+        if spec.kind != "records":
+            continue
+        p = spec.params
+        if p["from"] > p["to"]:
+            raise InputError(f"analysis {i} (records): empty range {p['from']}..{p['to']}")
+        for m in spec.maps:
+            plan = plan_records(
+                m,
+                p["to"],
+                start=p["from"],
+                side=p["side"],
+                max_steps=p["max_steps"],
+                workers=workers,
+            )
+            check_plan(plan, p["max_minutes"], option=f"max_minutes of analysis {i}")
+            rates[(id(spec), m.key)] = plan.rate if plan.seconds_per_start > 0 else None
+    return rates
+
+
 def run_study(
     study: Study,
     out: str | os.PathLike,
@@ -574,6 +608,7 @@ def run_study(
     out_dir = Path(out)
     params = {"study": jsonable(study.to_dict())}
     _check_out_dir(out_dir, params, force)
+    rates = _preflight(study, workers)  # refusals before anything is written
     out_dir.mkdir(parents=True, exist_ok=True)
     # Mark the folder as this study's at once: a run killed midway resumes
     # here without --force (its stores keep what was finished).
@@ -590,6 +625,7 @@ def run_study(
     ctx = StudyContext(
         out_dir, workers, say or (lambda _m: None), figures=study.figures, width=study.width
     )
+    ctx.records_rates = rates
     ctx.stores.mkdir(exist_ok=True)
     report = Report(study.title, intro=[study.description] if study.description else [])
     report.sections.append(_catalogue_section(ctx, study))

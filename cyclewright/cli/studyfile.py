@@ -64,6 +64,7 @@ from cyclewright.cycles.limits import (
     MAX_EXTRA_LENGTHS,
     MAX_GRAPH_STARTS,
     MAX_NEXT_TYPES,
+    MAX_RECORDS_MINUTES,
     MAX_RECORDS_STEP_CAP,
     MAX_RECORDS_TO,
     MAX_TYPE_LENGTH,
@@ -158,6 +159,13 @@ def _range_text(v) -> range:
     if r.start < 1:
         raise ValueError(f"must start at 1 or above, got {_shown(v)}")
     return check_members(r, "the range", MAX_RANGE_MEMBERS)
+
+
+def _minutes(v) -> float:
+    """A time limit in minutes: a number >= 0 (``max_minutes`` of records)."""
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not 0 <= v < float("inf"):
+        raise ValueError(f"must be a number of minutes >= 0, got {_shown(v)}")
+    return float(v)
 
 
 def _bool(v) -> bool:
@@ -258,6 +266,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "from": (_int(1, MAX_RECORDS_TO), 1),
         "side": (SIDE, DEFAULT_SIDE),
         "max_steps": (_int(1, MAX_RECORDS_STEP_CAP), DEFAULT_MAX_STEPS),
+        "max_minutes": (_minutes, MAX_RECORDS_MINUTES),
         "plot": (_bool, True),
     },
     "graph": {

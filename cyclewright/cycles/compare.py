@@ -59,6 +59,8 @@ from .limits import (
     MAX_COMPARE_SCAN,
     MAX_COMPARE_TO,
     MAX_EXCURSION_START,
+    MAX_RECORDS_MINUTES,
+    MAX_RECORDS_STEP_CAP,
     MAX_STEP_CAP,
     MAX_TYPE_LENGTH,
     check_range,
@@ -901,6 +903,22 @@ def compare(
     # every part's limits up front: a part's refusal later becomes a note in its row
     check_compare(max_length=max_length, to=to, odd=odd, max_steps=max_steps, workers=workers)
     check_store_for_maps(store, maps_, "a comparison")
+    # the records of each map are timed up front (records_plan) and refused before any
+    # map is worked on; the runs then reuse the measured rate instead of timing again
+    from .records_plan import check_plan, plan_records
+
+    rates: dict = {}
+    for m in maps_ if max_steps <= MAX_RECORDS_STEP_CAP else ():
+        plan = plan_records(
+            m, to, side="positive", max_steps=max_steps, workers=workers, executor=executor
+        )
+        check_plan(
+            plan,
+            MAX_RECORDS_MINUTES,
+            option="of compare's records",
+            raise_it="run records with a larger --max-minutes",
+        )
+        rates[m.key] = plan.rate if plan.seconds_per_start > 0 else None
     profiles = []
     for i, m in enumerate(maps_):
 
@@ -971,6 +989,8 @@ def compare(
             workers=workers,
             executor=executor,
             scheduler=scheduler,
+            max_minutes=None,  # estimated and checked before the first map (above)
+            rate=rates.get(m.key),
         )
         tc, tnote = None, ""
         try:

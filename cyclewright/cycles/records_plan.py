@@ -487,6 +487,7 @@ def check_plan(
     *,
     option: str = "max_minutes, --max-minutes",
     more_workers: bool = True,
+    raise_it: str = "raise it",
 ) -> WalkPlan:
     """``plan`` if its wall time is at most ``max_minutes``, else :class:`InputError` (one line).
 
@@ -503,6 +504,8 @@ def check_plan(
         How the limit is named in the message.
     more_workers : bool
         Whether the run can use more workers (records: yes; excursions: no).
+    raise_it : str
+        How the limit is raised, the first way on named.
 
     Returns
     -------
@@ -537,5 +540,5 @@ def check_plan(
         f"{plan.max_steps:,}): {plan.starts:.3g} starts, about {duration_text(plan.seconds)} "
         f"at {plan.rate:.2g} starts/s per worker x {w} worker{'s' if w != 1 else ''} "
         f"({plan.source}; heuristic); beyond the limit of {max_minutes:g} min ({option}): "
-        f"raise it, {ways}or use a smaller range"
+        f"{raise_it}, {ways}or use a smaller range"
     )
