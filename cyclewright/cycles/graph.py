@@ -47,6 +47,7 @@ References
 
 from __future__ import annotations
 
+import itertools
 import os
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -607,7 +608,8 @@ def _too_many_nodes(
     )
     size = (nodes * GRAPH_BYTES_PER_NODE + value_bytes) // 2**20
     return (
-        f"the graph reached {nodes} nodes (about {size} MiB) after {done} of {total} starts; "
+        f"the graph reached {nodes} nodes (about {size} MiB once built) after {done} of {total} "
+        "starts; "
         f"one graph holds at most {bound.nodes} nodes and {MEMORY_BUDGET // 2**20} MiB: "
         f"orbits climbing {where} add nodes beyond the starts; lower the ceiling or the step "
         "cap, or use a smaller range; nothing was written"
@@ -737,43 +739,47 @@ def functional_graph(
             v = w
     report(progress, "graph", total, total, "starts")
 
-    g = nx.DiGraph()
-    g.add_nodes_from(succ)
-    g.add_nodes_from(frontier)
-    g.add_edges_from(succ.items())
-
-    # Attracting components: cycles (with an edge) and frontier sinks.
+    # Cycles and basins straight from the successor map, each node visited once:
+    # a walk from an unlabelled node ends at a labelled node, at a frontier node
+    # or at a node of its own path (a new cycle: the graph's attracting
+    # components with an edge). Labels: a raw cycle's index, or ESCAPED/UNRESOLVED.
     d = m.divisor
-    raw_cycles = []
-    for comp in nx.attracting_components(g):
-        node = next(iter(comp))
-        if node in frontier:
+    label: dict[int, int] = {
+        n: (ESCAPED if kind == "beyond_ceiling" else UNRESOLVED) for n, kind in frontier.items()
+    }
+    raw_cycles: list[list[int]] = []
+    for n0 in succ:
+        if n0 in label:
             continue
-        raw_cycles.append(comp)
-    cycles_sorted = []
-    for comp in raw_cycles:
+        path: list[int] = []
+        where: dict[int, int] = {}
+        v = n0
+        while v not in label:
+            if v in where:  # the walk closed a new cycle
+                for u in path[where[v] :]:
+                    label[u] = len(raw_cycles)
+                raw_cycles.append(path[where[v] :])
+                break
+            where[v] = len(path)
+            path.append(v)
+            v = succ[v]
+        key = label[v]
+        for u in path:
+            label.setdefault(u, key)
+    order = []
+    for i, comp in enumerate(raw_cycles):
         least = cycle_representative(list(comp))
         elems = [least]
         v = succ[least]
         while v != least:
             elems.append(v)
             v = succ[v]
-        cycles_sorted.append(tuple(elems))
-    cycles_sorted.sort(key=lambda c: (abs(c[0]), c[0]))
-
-    basin_of: dict[int, int] = {}
-    sinks: list[tuple[int, int]] = []
-    for idx, elems in enumerate(cycles_sorted):
-        sinks.append((elems[0], idx))
-    for n, kind in frontier.items():
-        sinks.append((n, ESCAPED if kind == "beyond_ceiling" else UNRESOLVED))
-    on_cycle = set()
-    for elems in cycles_sorted:
-        on_cycle.update(elems)
-    for rep, idx in sinks:
-        basin_of[rep] = idx
-        for u in nx.ancestors(g, rep):
-            basin_of[u] = idx
+        order.append((abs(least), least, i, tuple(elems)))
+    order.sort()
+    cycles_sorted = [elems for *_, elems in order]
+    new_index = {i: k for k, (_, _, i, _) in enumerate(order)}
+    basin_of = {n: (b if b < 0 else new_index[b]) for n, b in label.items()}
+    on_cycle = {u for elems in cycles_sorted for u in elems}
 
     start_set = set(starts)
     counts: dict[int, int] = {}
@@ -781,11 +787,21 @@ def functional_graph(
         b = basin_of[s]
         counts[b] = counts.get(b, 0) + 1
 
-    nx.set_node_attributes(g, {n: n % d for n in g.nodes}, "residue")
-    nx.set_node_attributes(g, {n: n in start_set for n in g.nodes}, "is_start")
-    nx.set_node_attributes(g, {n: n in on_cycle for n in g.nodes}, "on_cycle")
-    nx.set_node_attributes(g, basin_of, "basin")
-    nx.set_node_attributes(g, {n: frontier.get(n, "") for n in g.nodes}, "frontier")
+    g = nx.DiGraph()
+    g.add_nodes_from(
+        (
+            n,
+            {
+                "residue": n % d,
+                "is_start": n in start_set,
+                "on_cycle": n in on_cycle,
+                "basin": basin_of[n],
+                "frontier": frontier.get(n, ""),
+            },
+        )
+        for n in itertools.chain(succ, frontier)
+    )
+    g.add_edges_from(succ.items())
 
     # each cycle is rebuilt and proved in exact arithmetic (iteration, and
     # solve() on its itinerary): an internal error otherwise, never a report
