@@ -78,6 +78,7 @@ class _LazyGroup(click.Group):
             raise
         for cmd in getattr(mod, "COMMANDS", ()):
             _accept_leading_minus(cmd)
+            _speak_in_option_words(cmd)
             self.add_command(cmd)
         return self.commands.get(name)
 
@@ -148,6 +149,33 @@ def _accept_leading_minus(cmd: click.Command) -> None:
 
     cmd.parse_args = parse_args
     cmd._minus_ok = True
+
+
+def _speak_in_option_words(cmd: click.Command) -> None:
+    """A refusal of an API parameter raised while ``cmd`` runs names the command's option.
+
+    The API says ``max_steps must be at most 10^9, got 10^30``; the command
+    line says the same sentence as ``--max-steps must be ...`` (one place:
+    :func:`~cyclewright.cli.options.in_option_words`).
+    """
+    if getattr(cmd, "_option_words", False):
+        return
+    original = cmd.invoke
+
+    def invoke(ctx: click.Context):
+        try:
+            return original(ctx)
+        except Exception as exc:
+            from cyclewright.cycles.errors import InputError
+
+            if isinstance(exc, InputError):
+                from .options import in_option_words
+
+                in_option_words(cmd, exc)
+            raise
+
+    cmd.invoke = invoke
+    cmd._option_words = True
 
 
 @click.group(

@@ -37,14 +37,22 @@ not appear in ``--help``, and using one prints a note naming the new spelling
 from __future__ import annotations
 
 import functools
+from collections.abc import Callable
 from pathlib import Path
 
 import click
 
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
+from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.figures import DEFAULT_WIDTH as DEFAULT_WIDTH_NAME
 from cyclewright.cycles.figures import WIDTH_HELP as FIGURE_WIDTH_HELP
-from cyclewright.cycles.limits import DEFAULT_CEILING, DEFAULT_MAX_STEPS
+from cyclewright.cycles.limits import (
+    DEFAULT_CEILING,
+    DEFAULT_MAX_STEPS,
+    check_step_cap,
+    check_type_length,
+    check_workers,
+)
 from cyclewright.cycles.sides import DEFAULT_SIDE
 from cyclewright.cycles.sides import SIDES as _ACTUAL_SIDES
 from cyclewright.maps import Map, MapError, load_catalog
@@ -52,14 +60,11 @@ from cyclewright.maps import Map, MapError, load_catalog
 from .errors import BadInput
 from .numbers import (
     MAX_FAMILY_MEMBERS,
-    MAX_STEP_CAP,
     MAX_TYPE_LENGTH,
-    MAX_WORKERS,
     check_members,
     check_range,
     int_expression,
     int_range,
-    quote,
 )
 
 __all__ = [
@@ -108,6 +113,9 @@ __all__ = [
     "catalog_for",
     "parse_int",
     "power_text",
+    "API_NAMES",
+    "option_name",
+    "in_option_words",
 ]
 
 #: The sides of a map's integers; ``both`` runs the positive and the negative side.
@@ -144,21 +152,32 @@ def _name(param: click.Parameter | None, ctx: click.Context | None) -> str:
 class IntExpr(click.ParamType):
     """An exact integer expression (``10^30``, ``2^40``, ``5*2^60``, ``1_000_000``, ``-17``).
 
-    Bounds are checked here, so every command says the same thing:
-    ``--max-steps must be at least 1, got '0'``.
+    Bounds are checked here by the API's own checks (``check``, one of
+    :mod:`cyclewright.cycles.limits`, called with the option's name; or
+    ``minimum``/``maximum`` through ``check_range``), so the option and the
+    API parameter refuse a value in the same words:
+    ``--max-steps must be at least 1, got 0``.
     """
 
     name = "integer"
 
-    def __init__(self, minimum: int | None = None, maximum: int | None = None) -> None:
+    def __init__(
+        self,
+        minimum: int | None = None,
+        maximum: int | None = None,
+        check: Callable[[int, str], int] | None = None,
+    ) -> None:
         self.minimum = minimum
         self.maximum = maximum
+        self.check = check
 
     def convert(self, value, param, ctx):
-        return parse_int(value, _name(param, ctx), minimum=self.minimum, maximum=self.maximum)
+        return parse_int(
+            value, _name(param, ctx), minimum=self.minimum, maximum=self.maximum, check=self.check
+        )
 
     def __repr__(self) -> str:
-        return f"IntExpr({self.minimum}, {self.maximum})"
+        return f"IntExpr({self.minimum}, {self.maximum}, {getattr(self.check, '__name__', None)})"
 
 
 class IntRange(click.ParamType):
@@ -169,12 +188,12 @@ class IntRange(click.ParamType):
     def __init__(
         self,
         minimum: int | None = None,
-        maximum: int | None = None,
         max_members: int | None = None,
+        check_end: Callable[..., int] | None = None,
     ) -> None:
         self.minimum = minimum
-        self.maximum = maximum
         self.max_members = max_members
+        self.check_end = check_end
 
     def convert(self, value, param, ctx):
         what = _name(param, ctx)
@@ -185,19 +204,19 @@ class IntRange(click.ParamType):
                 r = int_range(value)
             except ValueError as exc:
                 raise BadInput(f"{what}: {exc}") from None
-        if self.minimum is not None and r.start < self.minimum:
-            raise BadInput(f"{what} must start at {self.minimum} or above, got {quote(value)}")
-        try:
+        try:  # the API's checks of a range, in its words
+            if self.minimum is not None:
+                check_range(r.start, what, minimum=self.minimum, lead="the smallest value of ")
             if self.max_members is not None:
                 check_members(r, what, self.max_members)
-            if self.maximum is not None:
-                check_range(r[-1], f"the end of {what}", maximum=self.maximum)
+            if self.check_end is not None:
+                self.check_end(r[-1], what, lead="the largest value of ")
         except ValueError as exc:
             raise BadInput(str(exc)) from None
         return r
 
     def __repr__(self) -> str:
-        return f"IntRange({self.minimum}, {self.maximum}, {self.max_members})"
+        return f"IntRange({self.minimum}, {self.max_members}, {self.check_end})"
 
 
 class CeilingType(IntExpr):
@@ -280,6 +299,10 @@ def map_argument(f):
     return click.argument("map_spec", metavar="MAP")(f)
 
 
+def _check_odd(x: int, what: str, *, lead: str = "") -> int:
+    return check_type_length(x, what, minimum=0, lead=lead)
+
+
 side_option = _shared(
     "--side",
     "side",
@@ -292,7 +315,7 @@ side_option = _shared(
 max_steps_option = _shared(
     "--max-steps",
     "max_steps",
-    type=IntExpr(minimum=1, maximum=MAX_STEP_CAP),
+    type=IntExpr(check=check_step_cap),
     default=DEFAULT_MAX_STEPS,
     show_default=True,
     metavar="S",
@@ -303,7 +326,7 @@ length_option = _shared(
     "--length",
     "length",
     hidden=("-k",),
-    type=IntExpr(minimum=1, maximum=MAX_TYPE_LENGTH),
+    type=IntExpr(check=check_type_length),
     default=None,
     metavar="K",
     help="Length k of the type (number of steps of the cycle).",
@@ -313,7 +336,8 @@ max_length_option = _shared(
     "--max-length",
     "max_length",
     hidden=("-K", "--max-cycle-length"),
-    type=IntExpr(minimum=1, maximum=MAX_STEP_CAP),
+    # the largest K depends on the command, the map and the method: the API checks it
+    type=IntExpr(minimum=1),
     default=None,
     metavar="K",
     help="Largest cycle length K taken into account.",
@@ -323,7 +347,7 @@ odd_option = _shared(
     "--odd",
     "odd",
     hidden=("-x",),
-    type=IntExpr(minimum=0, maximum=MAX_TYPE_LENGTH),
+    type=IntExpr(check=_check_odd),
     default=None,
     metavar="X",
     help="Odd steps x of the type (steps off residue 0).",
@@ -333,7 +357,7 @@ odd_range_option = _shared(
     "--odd",
     "odd_range",
     hidden=("-x",),
-    type=IntRange(minimum=0, maximum=MAX_TYPE_LENGTH, max_members=MAX_TYPE_LENGTH),
+    type=IntRange(minimum=0, max_members=MAX_TYPE_LENGTH, check_end=_check_odd),
     default=None,
     metavar="RANGE",
     help="Range of x, the odd steps (steps off residue 0), e.g. 1..2000 or 1..10^3.",
@@ -447,7 +471,7 @@ from_option = _shared(
 workers_option = _shared(
     "--workers",
     "workers",
-    type=IntExpr(minimum=1, maximum=MAX_WORKERS),
+    type=IntExpr(check=check_workers),
     default=None,
     metavar="W",
     help="Worker processes [default: all cores].",
@@ -626,19 +650,81 @@ def resolve_store(store: str | None, no_store: bool) -> str | bool | None:
 
 
 def parse_int(
-    text, what: str, *, minimum: int | None = None, maximum: int | None = None, why: str = ""
+    text,
+    what: str,
+    *,
+    minimum: int | None = None,
+    maximum: int | None = None,
+    why: str = "",
+    check: Callable[[int, str], int] | None = None,
 ) -> int:
     """An integer written as ``1000000``, ``10^9``, ``2^63-1``, ``3*2^40`` or ``1e9``.
 
     For positional arguments and values that are not options; bad input
-    becomes a one-line :class:`BadInput` naming ``what``.
+    becomes a one-line :class:`BadInput` naming ``what``. ``check`` (an
+    API check such as :func:`~cyclewright.cycles.limits.check_start`) is
+    called with ``what`` as the name; else ``minimum``/``maximum`` are
+    checked by :func:`~cyclewright.cycles.limits.check_range`.
 
     >>> parse_int("2^40", "N")
     1099511627776
+    >>> parse_int("10^5000", "N", check=check_start)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cli.errors.BadInput: N must be at most 10^1000, got 10^5000 (a single start has at most 1000 digits)
     """
     try:
         value = int_expression(text)
-        return check_range(value, what, text=text, minimum=minimum, maximum=maximum, why=why)
+        if check is not None:
+            return check(value, what)
+        return check_range(value, what, minimum=minimum, maximum=maximum, why=why)
     except ValueError as exc:
         msg = str(exc)
         raise BadInput(msg if msg.startswith(what) else f"{what} {msg}") from None
+
+
+#: API parameter -> the names a command may give it (its options' destinations),
+#: where they differ; a parameter is otherwise found under its own name.
+API_NAMES: dict[str, tuple[str, ...]] = {
+    "n": ("start",),  # orbit's N
+    "k": ("length",),
+    "x": ("odd",),
+    "odd": ("odd_range",),
+    "ks": ("offsets",),
+    "max_cycle_length": ("max_length",),
+    "extra_lengths": ("extra",),
+}
+
+
+def option_name(command: click.Command, param: str) -> str | None:
+    """How ``command`` calls the API parameter ``param`` (``--max-steps``, ``N``), or None.
+
+    >>> import click
+    >>> @click.command()
+    ... @max_steps_option
+    ... def demo(max_steps): ...
+    >>> option_name(demo, "max_steps"), option_name(demo, "to")
+    ('--max-steps', None)
+    """
+    found = {p.name: p for p in command.params}
+    for dest in (param, *API_NAMES.get(param, ())):
+        p = found.get(dest)
+        if p is not None:
+            return _name(p, None)
+    return None
+
+
+def in_option_words(command: click.Command, exc: BaseException) -> BaseException:
+    """``exc`` with the API parameter it refuses called by ``command``'s option name.
+
+    The one place the command line turns the API's wording of a limit
+    (``max_steps must be at most 10^9, got 10^30``) into its own
+    (``--max-steps must be at most 10^9, got 10^30``); other errors pass
+    unchanged.
+    """
+    if isinstance(exc, InputError) and exc.param:
+        name = option_name(command, exc.param)
+        if name is not None and name != exc.param:
+            exc.args = (exc.named(name), *exc.args[1:])
+            exc.at, exc.param = exc.at, name
+    return exc

@@ -67,8 +67,10 @@ from cyclewright.cycles.limits import (
     MAX_RECORDS_MINUTES,
     MAX_RECORDS_STEP_CAP,
     MAX_RECORDS_TO,
-    MAX_TYPE_LENGTH,
+    check_step_cap,
+    check_type_length,
 )
+from cyclewright.cycles.records_plan import check_minutes
 from cyclewright.cycles.sweep import DEFAULT_ODD
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
@@ -76,8 +78,8 @@ from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_l
 from .numbers import (
     MAX_CENSUS_LENGTH,
     MAX_START_DIGITS,
-    MAX_STEP_CAP,
     check_members,
+    check_range,
     int_expression,
     int_range,
     quote,
@@ -111,18 +113,27 @@ class StudyError(ValueError):
 
 
 # ---------------------------------------------------------------- parameter kinds
-def _int(lo: int | None = None, hi: int | None = None) -> Callable[[object], int]:
-    def check(v):
+def _int(
+    lo: int | None = None,
+    hi: int | None = None,
+    limit: Callable[[int, str], int] | None = None,
+) -> Callable[[object, str], int]:
+    """A checker of an integer key: the API's check ``limit`` (called with the key's
+    name), else ``lo``/``hi`` through ``check_range``; a refusal in the API's words."""
+
+    def check(v, key: str = "value"):
         if isinstance(v, bool) or not isinstance(v, (int, str)):
             raise ValueError(f"must be an integer, got {_shown(v)}")
         value = int_expression(v)  # raises ValueError with the reason
-        if lo is not None and value < lo:
-            raise ValueError(f"must be an integer >= {lo}, got {_shown(v)}")
-        if hi is not None and value > hi:
-            raise ValueError(f"must be an integer <= {_limit(hi)}, got {_shown(v)}")
-        return value
+        if limit is not None:
+            return limit(value, key)
+        return check_range(value, key, minimum=lo, maximum=hi)
 
     return check
+
+
+def _count_odd(x: int, key: str) -> int:
+    return check_type_length(x, key, minimum=0)
 
 
 def _shown(v: object) -> str:
@@ -137,14 +148,8 @@ def _shown(v: object) -> str:
     return text if len(text) <= 48 else f"{text[:20]}…{text[-20:]}"
 
 
-def _limit(value: int) -> str:
-    from .numbers import limit_text
-
-    return limit_text(value)
-
-
-def _choice(*options: str) -> Callable[[object], str]:
-    def check(v):
+def _choice(*options: str) -> Callable[[object, str], str]:
+    def check(v, key: str = "value"):
         if v not in options:
             raise ValueError(f"must be one of {', '.join(options)}, got {_shown(v)}")
         return v
@@ -152,29 +157,31 @@ def _choice(*options: str) -> Callable[[object], str]:
     return check
 
 
-def _range_text(v) -> range:
+def _range_text(v, key: str = "the range") -> range:
     if isinstance(v, bool) or not isinstance(v, (int, str)):
         raise ValueError(f'must be a range like "1..60", got {_shown(v)}')
     r = int_range(v)  # raises ValueError with the reason
     if r.start < 1:
         raise ValueError(f"must start at 1 or above, got {_shown(v)}")
-    return check_members(r, "the range", MAX_RANGE_MEMBERS)
+    return check_members(r, key, MAX_RANGE_MEMBERS)
 
 
-def _minutes(v) -> float:
-    """A time limit in minutes: a number >= 0 (``max_minutes`` of records)."""
-    if isinstance(v, bool) or not isinstance(v, (int, float)) or not 0 <= v < float("inf"):
+def _minutes(v, key: str = "max_minutes") -> float:
+    """A time limit in minutes: a number >= 0 (``max_minutes`` of records), in the API's words."""
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
         raise ValueError(f"must be a number of minutes >= 0, got {_shown(v)}")
-    return float(v)
+    if v == float("inf"):
+        raise ValueError(f"must be a finite number of minutes, got {_shown(v)}")
+    return float(check_minutes(v, key))
 
 
-def _bool(v) -> bool:
+def _bool(v, key: str = "value") -> bool:
     if not isinstance(v, bool):
         raise ValueError(f"must be true or false, got {v!r}")
     return v
 
 
-def _str(v) -> str:
+def _str(v, key: str = "value") -> str:
     if not isinstance(v, str):
         raise ValueError(f"must be a string, got {v!r}")
     return v
@@ -226,8 +233,8 @@ KEY_ALIASES = {"k": "offsets"}
 # kind -> key -> (checker, default); "maps" and "kind" are common to all kinds
 PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "count": {
-        "length": (_int(1, MAX_TYPE_LENGTH), None),
-        "odd": (_int(0, 100_000), None),
+        "length": (_int(limit=check_type_length), None),
+        "odd": (_int(limit=_count_odd), None),
         "limit": (_int(0, 10**8), DEFAULT_LIMIT),
     },
     "sweep": {
@@ -240,7 +247,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "to": (_int(1, 2**62), 10**6),
         "from": (_int(1, 2**62), 1),
         "side": (SIDE, DEFAULT_SIDE),
-        "max_steps": (_int(1, MAX_STEP_CAP), DEFAULT_MAX_STEPS),
+        "max_steps": (_int(limit=check_step_cap), DEFAULT_MAX_STEPS),
     },
     "census": {
         "max_length": (_int(1, MAX_CENSUS_LENGTH), 30),
@@ -257,8 +264,8 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
     "compare": {  # the defaults are compare()'s own
         "max_length": (_int(1, MAX_CENSUS_LENGTH), COMPARE_DEFAULTS["max_length"]),
         "to": (_int(1, MAX_COMPARE_TO), COMPARE_DEFAULTS["to"]),
-        "odd": (_int(1, 100_000), COMPARE_DEFAULTS["odd"]),
-        "max_steps": (_int(1, MAX_STEP_CAP), COMPARE_DEFAULTS["max_steps"]),
+        "odd": (_int(limit=check_type_length), COMPARE_DEFAULTS["odd"]),
+        "max_steps": (_int(limit=check_step_cap), COMPARE_DEFAULTS["max_steps"]),
         "plot": (_bool, True),
     },
     "records": {
@@ -468,7 +475,11 @@ def parse_study(
                 params[key] = None
                 continue
             try:
-                params[key] = check(raw)
+                params[key] = check(raw, key)
+            except InputError as exc:
+                if exc.param == key:  # a limit, in the API's words with the key's name
+                    raise StudyError(f"{where}: {exc}") from None
+                raise StudyError(f"{where}: key {key!r}: {exc}") from None
             except ValueError as exc:
                 raise StudyError(f"{where}: key {key!r}: {exc}") from None
         if kind == "scan" and params["from"] > params["to"]:

@@ -459,10 +459,8 @@ def check_census_length(m: Map | str | None, max_length: int, method: str = "aut
     >>> check_census_length("mod3-4x", 2 * 10**6)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: the length K (max_length, --max-length) must be at most 10^6, got 2000000 (mod3-4x with the auto method: planning alone grows with K; the scans it needs are far beyond any max_scan)
+    cyclewright.cycles.errors.InputError: max_length must be at most 10^6, got 2000000 (mod3-4x with the auto method: planning alone grows with K; the scans it needs are far beyond any scan limit)
     """
-    if isinstance(max_length, bool) or not isinstance(max_length, int) or max_length < 1:
-        raise InputError(f"the maximal length must be an integer >= 1, got {max_length!r}")
     if m is not None:
         m = as_map(m)
     if m is not None and method in ("auto", "bound-scan") and continued_fraction_applies(m):
@@ -474,11 +472,11 @@ def check_census_length(m: Map | str | None, max_length: int, method: str = "aut
         what = "a family" if m is None else f"{m.label} with the {method} method"
         limit, why = (
             MAX_CENSUS_LENGTH,
-            f"{what}: planning alone grows with K; the scans it needs are far beyond any max_scan",
+            f"{what}: planning alone grows with K; the scans it needs are far beyond any scan limit",
         )
     return check_range(
         max_length,
-        "the length K (max_length, --max-length)",
+        "max_length",
         minimum=1,
         maximum=limit,
         why=why,
@@ -1086,7 +1084,7 @@ def census_family(
     a, sign = parse_family(template)
     check_census_length(None, max_length)
     if isinstance(ks, range):
-        check_members(ks, "the offsets k")
+        check_members(ks, "ks")
         ks = list(ks)
     elif limits_lifted():
         ks = list(ks)
@@ -1094,8 +1092,9 @@ def census_family(
         ks = list(itertools.islice(ks, MAX_FAMILY_MEMBERS + 1))
         if len(ks) > MAX_FAMILY_MEMBERS:
             raise InputError(
-                f"the offsets k have more than {MAX_FAMILY_MEMBERS} members; "
-                f"at most {MAX_FAMILY_MEMBERS} are taken in one run"
+                f"ks has more than {MAX_FAMILY_MEMBERS} members; "
+                f"at most {MAX_FAMILY_MEMBERS} are taken in one run",
+                param="ks",
             )
     members = (
         [k for k in ks if (a + k) % 2 == 0 and k > 0] if all_k else default_family_members(a, ks)

@@ -55,15 +55,16 @@ from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED, Label
 from .limits import (
     DEFAULT_MAX_STEPS,
+    EXCURSION_WHY,
     MAX_CENSUS_LENGTH,
     MAX_COMPARE_SCAN,
     MAX_COMPARE_TO,
     MAX_EXCURSION_START,
     MAX_RECORDS_MINUTES,
     MAX_RECORDS_STEP_CAP,
-    MAX_STEP_CAP,
-    MAX_TYPE_LENGTH,
     check_range,
+    check_step_cap,
+    check_type_length,
     check_workers,
 )
 from .minimum_bound import minimum_bound
@@ -801,32 +802,32 @@ def check_compare(
     >>> check_compare(odd=10**9)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: odd (--odd) must be at most 100000, got 1000000000
+    cyclewright.cycles.errors.InputError: odd must be at most 100000, got 10^9 (the figures of a type have about k digits each)
     >>> check_compare(to=2**62)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: to (--to) must be at most 10^9, got 4611686018427387904 (compare walks every start of 1..to on both sides three times (excursions, scan, records): about a minute per 10^8 starts and map)
+    cyclewright.cycles.errors.InputError: to must be at most 10^9, got 2^62 (compare walks every start of 1..to on both sides three times (excursions, scan, records): about a minute per 10^8 starts and map)
     """
     check_range(
         max_length,
-        "the length K (max_length, --max-length)",
+        "max_length",
         minimum=1,
         maximum=MAX_CENSUS_LENGTH,
-        why="planning alone grows with K; the scans it needs are far beyond any max_scan",
+        why="planning alone grows with K; the scans it needs are far beyond any scan limit",
         liftable=True,
     )
     check_range(
         to,
-        "to (--to)",
+        "to",
         minimum=1,
         maximum=MAX_COMPARE_TO,
         why="compare walks every start of 1..to on both sides three times (excursions, "
         "scan, records): about a minute per 10^8 starts and map",
         liftable=True,
     )
-    check_range(to, "to (--to)", maximum=MAX_EXCURSION_START)
-    check_range(odd, "odd (--odd)", minimum=1, maximum=MAX_TYPE_LENGTH, liftable=True)
-    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP)
+    check_range(to, "to", maximum=MAX_EXCURSION_START - 1, why=EXCURSION_WHY)
+    check_type_length(odd, "odd")
+    check_step_cap(max_steps)
     check_workers(workers)
 
 

@@ -63,7 +63,7 @@ from .integer_cycle import IntegerCycle, cycle_from_element
 from .intervals import Interval, _log_form
 from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
-from .limits import MAX_TYPE_LENGTH, check_range
+from .limits import check_range, check_type_length
 from .linear_forms import (
     LinearFormBound,
     _best_approximation_form,
@@ -622,11 +622,7 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
 
 
 def _check_limit(limit) -> int:
-    if isinstance(limit, bool) or not isinstance(limit, int):
-        raise InputError(f"the limit must be an integer, got {limit!r}")
-    if limit < 0:
-        raise InputError(f"the limit must be at least 0, got {limit}")
-    return limit
+    return check_range(limit, "limit", minimum=0)
 
 
 def count(
@@ -684,13 +680,7 @@ def count(
     m = as_map(m)
     limit = _check_limit(limit)
     c = _resolve(m, k, x, content)
-    check_range(
-        sum(c),
-        "the length k (--length)",
-        maximum=MAX_TYPE_LENGTH,
-        why="the figures of a type have about k digits each",
-        liftable=True,
-    )
+    check_type_length(sum(c), "k")
     return _count_content(m, c, limit, progress)
 
 

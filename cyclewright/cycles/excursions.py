@@ -37,10 +37,11 @@ from .errors import InputError
 from .labels import EXACT, PROVED
 from .limits import (
     DEFAULT_MAX_STEPS,
+    EXCURSION_WHY,
     MAX_EXCURSION_START,
     MAX_RECORDS_MINUTES,
-    MAX_STEP_CAP,
     check_range,
+    check_step_cap,
 )
 from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
@@ -280,11 +281,8 @@ def excursions(
     parse_side(side)
     if start < 1 or to < start:
         raise InputError(f"empty range {start}..{to}")
-    if to >= _LIMIT:
-        raise InputError(f"to = {to} is beyond 2^62")
-    if isinstance(max_steps, bool) or not isinstance(max_steps, int) or max_steps < 1:
-        raise InputError(f"max_steps must be an integer >= 1, got {max_steps!r}")
-    check_range(max_steps, "max_steps", maximum=MAX_STEP_CAP)
+    check_range(to, "to", maximum=_LIMIT - 1, why=EXCURSION_WHY)
+    check_step_cap(max_steps)
     if any(abs(a) >= 2**31 or abs(b) >= 2**31 for a, b in m.branches):
         raise InputError(f"{m.label}: coefficients too large for the compiled excursion walk")
     from .records_plan import check_plan, plan_excursions

@@ -79,8 +79,6 @@ from .limits import (
     MAX_START_DIGITS,
     check_range,
     int_digits,
-    limits_lifted,
-    short_int,
 )
 from .presentation import Presentable, Table
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
@@ -541,20 +539,17 @@ def floor(
     """
     m = as_map(m)
     parse_side(side)
-    if isinstance(verified_to, bool) or not isinstance(verified_to, int):
-        raise InputError(f"verified_to must be an integer, got {verified_to!r}")
-    if verified_to < 0:
-        raise InputError(f"verified_to must be at least 0, got {short_int(verified_to)}")
-    digits = int_digits(verified_to)
-    if digits > MAX_START_DIGITS and not limits_lifted():
+    check_range(verified_to, "verified_to", minimum=0)
+    if int_digits(verified_to) > MAX_START_DIGITS:
         # the floor's work grows with the digits of N (continued fraction terms, precision)
-        raise InputError(
-            f"verified_to (--verified-to) has {digits} digits; the floor accepts at most "
-            f"{MAX_START_DIGITS} (verified ranges in practice are below 10^30)"
+        check_range(
+            verified_to,
+            "verified_to",
+            maximum=10**MAX_START_DIGITS - 1,
+            why=f"at most {MAX_START_DIGITS} digits; verified ranges in practice are below 10^30",
+            liftable=True,
         )
-    if isinstance(next_types, bool) or not isinstance(next_types, int) or next_types < 0:
-        raise InputError(f"next_types must be a non-negative integer, got {next_types!r}")
-    check_range(next_types, "next_types (--next)", maximum=MAX_NEXT_TYPES, liftable=True)
+    check_range(next_types, "next_types", minimum=0, maximum=MAX_NEXT_TYPES, liftable=True)
     return on_sides(side, lambda s: _floor(m, verified_to, s, next_types), tolerate=True)
 
 

@@ -71,11 +71,12 @@ from .limits import (
     MAX_GRAPH_NODES,
     MAX_GRAPH_STARTS,
     MAX_START_DIGITS,
-    MAX_STEP_CAP,
     MEMORY_BUDGET,
     VALUE_CAP_DIGITS,
     check_range,
+    check_step_cap,
     int_bytes,
+    int_digits,
     limits_lifted,
     short_int,
     value_cap,
@@ -469,22 +470,21 @@ def check_graph(
             f"{short_int(nstarts)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
             f"(about {GRAPH_BYTES_PER_NODE} bytes a node in memory); use a smaller range"
         )
-    max_steps = check_range(
-        _check_int(max_steps, "max_steps"),
-        "max_steps",
-        minimum=1,
-        maximum=MAX_STEP_CAP,
-        liftable=True,
-    )
+    max_steps = check_step_cap(_check_int(max_steps, "max_steps"), liftable=True)
     if ceiling is not None:
         ceiling = _check_int(ceiling, "ceiling")
-        if ceiling > 10**MAX_START_DIGITS and not limits_lifted():
-            raise InputError(
-                f"the ceiling must be at most 10^{MAX_START_DIGITS}, got {short_int(ceiling)}"
+        if int_digits(ceiling) > MAX_START_DIGITS:
+            check_range(
+                ceiling,
+                "ceiling",
+                maximum=10**MAX_START_DIGITS,
+                why="every node is a Python int kept in the graph",
+                liftable=True,
             )
         if ceiling < to:
             raise InputError(
-                f"the ceiling {short_int(ceiling)} is below the largest start {short_int(to)}"
+                f"ceiling {short_int(ceiling)} is below the largest start {short_int(to)}",
+                param="ceiling",
             )
     return to, start, max_steps, ceiling
 

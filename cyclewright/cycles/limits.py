@@ -18,8 +18,14 @@ Inside
   (the command line prints that line as ``error: ...``, exit status 2).
   The table of every limit is docs/limits.md.
 - :func:`check_range`, :func:`check_memory`, :func:`check_members` -- the
-  refusals, one message each; :func:`limit_text`, :func:`short_int`,
-  :func:`int_digits`, :func:`quote` -- how they quote figures and inputs.
+  refusals, one message each; :func:`check_step_cap`,
+  :func:`check_type_length`, :func:`check_start`, :func:`check_workers` --
+  the limits several analyses share, each worded once. A refusal of a
+  parameter names it as the API does (``max_steps``) and records the name
+  (``InputError.param``): the command line says the same sentence with the
+  option's name (``--max-steps``). :func:`limit_text`, :func:`value_text`,
+  :func:`short_int`, :func:`int_digits`, :func:`quote` -- how they quote
+  figures and inputs (a long value shortened to its ends and digit count).
 - :func:`lift_limits` -- a context in which the limits that only protect
   time and memory are lifted, for callers who know what they ask for
   (``with cw.lift_limits(): cw.census(m, 2 * 10**6)``); the limits that
@@ -64,10 +70,18 @@ __all__ = [
     "lift_limits",
     "limits_lifted",
     "check_range",
+    "check_step_cap",
+    "STEP_CAP_WHY",
+    "TYPE_LENGTH_WHY",
+    "START_DIGITS_WHY",
+    "EXCURSION_WHY",
+    "check_type_length",
+    "check_start",
     "check_memory",
     "check_members",
     "check_workers",
     "limit_text",
+    "value_text",
     "short_int",
     "int_digits",
     "quote",
@@ -318,7 +332,11 @@ def limit_text(value: int) -> str:
 
     >>> limit_text(10**9), limit_text(2**63 - 1), limit_text(1 << 20), limit_text(4096), limit_text(500)
     ('10^9', '2^63-1', '2^20', '4096', '500')
+    >>> limit_text(-(10**1000))
+    '-10^1000'
     """
+    if value < 0:
+        return "-" + limit_text(-value)
     if value >= 10**6:
         for base in (10, 2):
             e = round(math.log(value, base))
@@ -326,47 +344,142 @@ def limit_text(value: int) -> str:
                 return f"{base}^{e}"
             if base**e - 1 == value:
                 return f"{base}^{e}-1"
-    return str(value)
+    return short_int(value)
+
+
+def value_text(value: int) -> str:
+    """An input value quoted back in a refusal: as a power when it is one, else shortened.
+
+    The same text whichever way the value came in (``10^30`` typed on the
+    command line, ``10**30`` passed to the API), and never longer than about
+    60 characters.
+
+    >>> value_text(256), value_text(10**30), value_text(2**62), value_text(-(2**63))
+    ('256', '10^30', '2^62', '-2^63')
+    >>> value_text(3 * 10**1000)
+    '30000000000000000000…00000000000000000000 (1001 digits)'
+    """
+    return limit_text(value)
 
 
 def check_range(
     value: int,
     what: str,
     *,
-    text: object = None,
     minimum: int | None = None,
     maximum: int | None = None,
     why: str = "",
     liftable: bool = False,
+    lead: str = "",
 ) -> int:
     """``value`` if ``minimum <= value <= maximum``, else :class:`InputError` with one line.
 
-    The message names the parameter, the limit (as ``10^x`` or ``2^x`` when
-    that is how it reads best) and the input (``text`` when given, shortened
-    when long); ``why`` adds the reason for a limit. A ``liftable`` maximum
-    (one that only guards time or memory) is not checked inside
-    :func:`lift_limits`.
+    The one wording of every limit: ``{lead}{what} must be at most {limit},
+    got {value} ({why})``. ``what`` is the parameter's name; the error
+    records it (``InputError.param``) so the command line says the same
+    sentence with its option's name (``--max-steps`` for ``max_steps``).
+    The limit reads as ``10^x`` or ``2^x`` when that is how it reads best,
+    the value the same way or shortened (:func:`value_text`); ``why`` adds
+    the reason for a limit. A ``liftable`` maximum (one that only guards
+    time or memory) is not checked inside :func:`lift_limits`.
 
-    >>> check_range(5, "--show", minimum=0)
+    >>> check_range(5, "show", minimum=0)
     5
-    >>> check_range(-1, "--show", minimum=0)
+    >>> check_range(-1, "show", minimum=0)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: --show must be at least 0, got -1
-    >>> check_range(10**30, "--max-steps", maximum=10**9, text="10^30")
+    cyclewright.cycles.errors.InputError: show must be at least 0, got -1
+    >>> check_range(10**30, "max_steps", maximum=10**9)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: --max-steps must be at most 10^9, got '10^30'
+    cyclewright.cycles.errors.InputError: max_steps must be at most 10^9, got 10^30
+    >>> try:
+    ...     check_range(10**6, "odd", maximum=10**5, lead="the largest value of ")
+    ... except InputError as exc:
+    ...     print(exc.named("--odd"))
+    the largest value of --odd must be at most 100000, got 10^6
     """
+    at = len(lead)
     if isinstance(value, bool) or not isinstance(value, int):
-        raise InputError(f"{what} must be an integer, got {quote(repr(value))}")
-    got = quote(text) if isinstance(text, str) else short_int(value)
+        raise InputError(
+            f"{lead}{what} must be an integer, got {quote(repr(value))}", param=what, at=at
+        )
     if minimum is not None and value < minimum:
-        raise InputError(f"{what} must be at least {limit_text(minimum)}, got {got}")
+        raise InputError(
+            f"{lead}{what} must be at least {limit_text(minimum)}, got {value_text(value)}",
+            param=what,
+            at=at,
+        )
     if maximum is not None and value > maximum and not (liftable and limits_lifted()):
         tail = f" ({why})" if why else ""
-        raise InputError(f"{what} must be at most {limit_text(maximum)}, got {got}{tail}")
+        raise InputError(
+            f"{lead}{what} must be at most {limit_text(maximum)}, got {value_text(value)}{tail}",
+            param=what,
+            at=at,
+        )
     return value
+
+
+#: Why each shared limit exists, said the same way by every analysis and option.
+STEP_CAP_WHY = "the store and the kernels hold it as a 64-bit integer"
+TYPE_LENGTH_WHY = "the figures of a type have about k digits each"
+START_DIGITS_WHY = f"a single start has at most {MAX_START_DIGITS} digits"
+EXCURSION_WHY = "the compiled walk holds values as int64 with one bit of headroom"
+
+
+def check_step_cap(max_steps: int, what: str = "max_steps", *, liftable: bool = False) -> int:
+    """``max_steps`` if 1 .. :data:`MAX_STEP_CAP`, else :class:`InputError` (one wording).
+
+    >>> check_step_cap(1000)
+    1000
+    >>> check_step_cap(10**30)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: max_steps must be at most 10^9, got 10^30 (the store and the kernels hold it as a 64-bit integer)
+    """
+    return check_range(
+        max_steps, what, minimum=1, maximum=MAX_STEP_CAP, why=STEP_CAP_WHY, liftable=liftable
+    )
+
+
+def check_type_length(k: int, what: str = "k", *, minimum: int = 1, lead: str = "") -> int:
+    """``k`` if ``minimum`` .. :data:`MAX_TYPE_LENGTH` (liftable), else :class:`InputError`.
+
+    The length of a type (``count``'s ``k``) and its odd steps (``x``, the
+    sweep's and compare's ``odd``) obey the same limit.
+
+    >>> check_type_length(12)
+    12
+    >>> check_type_length(10**7)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: k must be at most 100000, got 10^7 (the figures of a type have about k digits each)
+    """
+    return check_range(
+        k,
+        what,
+        minimum=minimum,
+        maximum=MAX_TYPE_LENGTH,
+        why=TYPE_LENGTH_WHY,
+        liftable=True,
+        lead=lead,
+    )
+
+
+def check_start(n: int, what: str = "n") -> int:
+    """``n`` if ``|n| <=`` 10^:data:`MAX_START_DIGITS` (liftable), else :class:`InputError`.
+
+    >>> check_start(-27)
+    -27
+    >>> check_start(10**5000)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: n must be at most 10^1000, got 10^5000 (a single start has at most 1000 digits)
+    """
+    if isinstance(n, int) and not isinstance(n, bool) and int_digits(n) <= MAX_START_DIGITS:
+        return n  # decided without building 10^1000
+    limit = 10**MAX_START_DIGITS
+    return check_range(n, what, minimum=-limit, maximum=limit, why=START_DIGITS_WHY, liftable=True)
 
 
 def _bytes_text(n: int) -> str:
@@ -402,17 +515,18 @@ def check_members(r: range, what: str, limit: int = MAX_FAMILY_MEMBERS) -> range
 
     Not checked inside :func:`lift_limits`.
 
-    >>> check_members(range(1, 11), "--k")
+    >>> check_members(range(1, 11), "ks")
     range(1, 11)
-    >>> check_members(range(1, 10**30 + 1), "--k")
+    >>> check_members(range(1, 10**30 + 1), "ks")
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: --k has 10^30 members; at most 10000 are taken in one run
+    cyclewright.cycles.errors.InputError: ks has 10^30 members; at most 10000 are taken in one run
     """
     size = max(0, (r.stop - r.start + r.step - (1 if r.step > 0 else -1)) // r.step)
     if size > limit and not limits_lifted():
         raise InputError(
-            f"{what} has {limit_text(size)} members; at most {limit} are taken in one run"
+            f"{what} has {limit_text(size)} members; at most {limit} are taken in one run",
+            param=what,
         )
     return r
 

@@ -49,13 +49,11 @@ from .itinerary import format_itinerary
 from .labels import EXACT
 from .limits import (
     DEFAULT_MAX_STEPS,
-    MAX_START_DIGITS,
-    MAX_STEP_CAP,
     VALUE_CAP_DIGITS,
     check_memory,
     check_range,
-    int_digits,
-    limits_lifted,
+    check_start,
+    check_step_cap,
     short_int,
     value_cap,
 )
@@ -336,18 +334,15 @@ def check_orbit(n: int, max_steps: int, ceiling: int | None = None) -> None:
     ...
     cyclewright.cycles.errors.InputError: an orbit of 100000000 steps with values up to |N| * 10^1000 could need about 48.0 GB of memory, more than the 2.1 GB allowed; lower the step cap (max_steps, --max-steps) or the ceiling
     """
-    if int_digits(n) > MAX_START_DIGITS and abs(n) > 10**MAX_START_DIGITS and not limits_lifted():
-        raise InputError(
-            f"the start must have at most {MAX_START_DIGITS} digits "
-            f"(|n| <= 10^{MAX_START_DIGITS}), got {short_int(n)}"
-        )
-    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP, liftable=True)
+    check_start(n, "n")
+    check_step_cap(max_steps, liftable=True)
     if ceiling is not None:
         check_range(ceiling, "ceiling", minimum=0)
         if ceiling < abs(n):
             raise InputError(
-                f"--ceiling {short_int(ceiling)} is below |N| = {short_int(abs(n))}: "
-                "give a larger --ceiling (ceiling), or 'none'"
+                f"ceiling {short_int(ceiling)} is below the start's |value| "
+                f"{short_int(abs(n))}: give a larger one, or no ceiling",
+                param="ceiling",
             )
     check_memory(
         orbit_memory_estimate(max_steps, ceiling if ceiling is not None else default_ceiling(n)),

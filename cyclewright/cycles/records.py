@@ -1237,7 +1237,13 @@ def records(
     if to < start:
         raise InputError(f"empty range: {start}..{to}")
     check_range(to, "to", maximum=MAX_RECORDS_TO, why="the compiled walk holds starts as int64")
-    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_RECORDS_STEP_CAP)
+    check_range(
+        max_steps,
+        "max_steps",
+        minimum=1,
+        maximum=MAX_RECORDS_STEP_CAP,
+        why="the records kernels keep step counts in fields sized for this cap",
+    )
     from .limits import check_workers
     from .records_plan import check_plan, plan_records
 
@@ -1258,8 +1264,7 @@ def records(
     t0 = time.perf_counter()
     sides = tuple(sides_of(side))
     csize = chunk_size or _chunk_size(m)
-    if csize < 1:
-        raise InputError(f"chunk_size must be at least 1, got {csize}")
+    check_range(csize, "chunk_size", minimum=1)
     size = min((_TABLE_CONTRACTING if m.drift_ratio() < 1 else _TABLE_EXPANDING), to + 1)
     undiv = m.ax_b is not None
     from .records_store import RecordsStore, records_path_for

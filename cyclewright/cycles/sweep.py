@@ -38,8 +38,8 @@ from .limits import (
     MAX_TYPE_LENGTH,
     check_members,
     check_range,
+    check_type_length,
     limits_lifted,
-    short_int,
 )
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
@@ -438,31 +438,21 @@ def sweep(
     """
     m = as_map(m)
     if isinstance(odd, range):
-        check_members(odd, "the range of x (--odd)", MAX_TYPE_LENGTH)
+        check_members(odd, "odd", MAX_TYPE_LENGTH)
     elif not limits_lifted():  # any iterable: never more than the limit taken in
         odd = list(itertools.islice(odd, MAX_TYPE_LENGTH + 1))
         if len(odd) > MAX_TYPE_LENGTH:
             raise InputError(
-                f"the range of x (--odd) has more than {MAX_TYPE_LENGTH} members; "
-                f"at most {MAX_TYPE_LENGTH} are taken in one run"
+                f"odd has more than {MAX_TYPE_LENGTH} members; "
+                f"at most {MAX_TYPE_LENGTH} are taken in one run",
+                param="odd",
             )
     xs = sorted(set(int(v) for v in odd))
     if not xs:
-        raise InputError("the range of x is empty")
-    if xs[0] < 0:
-        raise InputError(f"x must be at least 0, got {short_int(xs[0])}")
-    check_range(
-        xs[-1],
-        "the largest x (--odd)",
-        maximum=MAX_TYPE_LENGTH,
-        why="the figures of a type have about k digits each",
-        liftable=True,
-    )
-    if isinstance(extra_lengths, bool) or not isinstance(extra_lengths, int) or extra_lengths < 0:
-        raise InputError(f"extra lengths must be an integer >= 0, got {extra_lengths!r}")
-    check_range(
-        extra_lengths, "extra_lengths (--extra-lengths)", maximum=MAX_EXTRA_LENGTHS, liftable=True
-    )
+        raise InputError("odd is empty: give at least one x", param="odd")
+    check_range(xs[0], "odd", minimum=0, lead="the smallest value of ")
+    check_type_length(xs[-1], "odd", minimum=0, lead="the largest value of ")
+    check_range(extra_lengths, "extra_lengths", minimum=0, maximum=MAX_EXTRA_LENGTHS, liftable=True)
     parse_side(side)
     limit = _check_limit(limit)
     d = m.divisor

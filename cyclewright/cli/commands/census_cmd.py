@@ -15,7 +15,6 @@ from cyclewright.cycles.census import (
 from cyclewright.cycles.certificate import write_certificate
 
 from ..errors import BadInput
-from ..numbers import MAX_CF_CENSUS_LENGTH
 from ..options import (
     IntExpr,
     all_offsets_option,
@@ -26,7 +25,6 @@ from ..options import (
     maps_option,
     max_length_option,
     offsets_option,
-    parse_int,
     plan_option,
     resolve_map,
     resolve_store,
@@ -105,9 +103,9 @@ def census_cmd(
     as_json,
 ):
     """All integer cycles of MAP with length at most K, certified complete."""
-    # The option's range is the widest K any census takes; the API refuses K
-    # beyond the limit of the map, method or family (check_census_length).
-    K = parse_int(max_length, "--max-length", minimum=1, maximum=MAX_CF_CENSUS_LENGTH)
+    # The API refuses K beyond the limit of the map, method or family
+    # (check_census_length), in the option's name (cli/app.py).
+    K = max_length
 
     kw = {
         "store": resolve_store(store, no_store),

@@ -5,7 +5,6 @@ from __future__ import annotations
 import click
 
 from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES, floor
-from cyclewright.cycles.limits import MAX_NEXT_TYPES
 from cyclewright.cycles.sides import PerSide
 
 from ..options import (
@@ -46,7 +45,7 @@ from ..render import emit_json, show_table, stdout_console
     "next_types",
     default=DEFAULT_NEXT_TYPES,
     show_default=True,
-    type=IntExpr(minimum=0, maximum=MAX_NEXT_TYPES),
+    type=IntExpr(minimum=0),
     metavar="J",
     help="How many further possible (length, odd steps) types to list.",
 )

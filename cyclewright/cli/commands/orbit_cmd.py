@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import click
 
+from cyclewright.cycles.limits import check_start
 from cyclewright.cycles.orbit import DEFAULT_GROWTH_DIGITS, check_orbit, orbit
 
 from ..files import check_figure_path
-from ..numbers import MAX_START_DIGITS
 from ..options import (
     ceiling_option,
     force_option,
@@ -51,8 +51,7 @@ def orbit_cmd(
     values within the memory budget (2 GiB).
     """
     m = resolve_map(map_spec, map_files)
-    limit = 10**MAX_START_DIGITS
-    n = parse_int(start, "N", minimum=-limit, maximum=limit)
+    n = parse_int(start, "N", check=check_start)
     ceil = ceiling
     check_orbit(n, max_steps, ceil)  # the API's limits, refused before any file is touched
     check_figure_path(plot_path, "--plot", force)

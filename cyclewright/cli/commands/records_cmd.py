@@ -133,24 +133,22 @@ def records_cmd(
     if csv_path != "-":
         check_output(csv_path, "--csv", force)
     check_figure_path(plot_path, "--plot", force)
-    try:
-        with progress_display() as show_progress:
-            r = records(
-                m,
-                to,
-                start=start,
-                side=side,
-                max_steps=max_steps,
-                workers=workers,
-                executor=executor,
-                scheduler=scheduler,
-                progress=show_progress,
-                store=resolve_store(store, no_store),
-                max_minutes=limit,
-                on_plan=show_plan,
-            )
-    except InputError as exc:
-        raise BadInput(str(exc)) from None
+    # the API's refusals (range end, step cap, time) name the options (cli/app.py)
+    with progress_display() as show_progress:
+        r = records(
+            m,
+            to,
+            start=start,
+            side=side,
+            max_steps=max_steps,
+            workers=workers,
+            executor=executor,
+            scheduler=scheduler,
+            progress=show_progress,
+            store=resolve_store(store, no_store),
+            max_minutes=limit,
+            on_plan=show_plan,
+        )
     # outputs only after the whole computation succeeded
     if csv_path:
         cols, rows = csv_rows(r)
@@ -182,14 +180,12 @@ def show_plan(plan) -> None:
 
 def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> None:
     """``--plan``: the estimate and whether the run would be refused; nothing runs."""
-    try:
-        if start < 1 or to < start:
-            raise InputError(f"empty range: {start}..{to}")
-        plan = plan_records(
-            m, to, start=start, side=side, max_steps=max_steps, workers=workers, executor=executor
-        )
-    except InputError as exc:
-        raise BadInput(str(exc)) from None
+    if start < 1 or to < start:
+        raise BadInput(f"empty range: {start}..{to}")
+    # the API's refusals name the options (cli/app.py)
+    plan = plan_records(
+        m, to, start=start, side=side, max_steps=max_steps, workers=workers, executor=executor
+    )
     try:
         check_plan(plan, limit)
         refused = ""

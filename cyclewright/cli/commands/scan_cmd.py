@@ -6,7 +6,7 @@ import click
 
 from cyclewright.cycles.scan.run import scan
 
-from ..numbers import MAX_CHUNKS, MAX_STEP_CAP
+from ..numbers import MAX_CHUNKS
 from ..options import (
     IntExpr,
     executor_options,
@@ -60,7 +60,7 @@ resumes where it stopped.
 @executor_options
 @click.option(
     "--chunk-size",
-    type=IntExpr(minimum=1, maximum=MAX_STEP_CAP),
+    type=IntExpr(minimum=1),
     default=None,
     help=f"Starts per chunk (advanced; at most {MAX_CHUNKS} chunks per scan).",
 )

@@ -9,7 +9,6 @@ import click
 
 from cyclewright.cycles.counting import DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
-from cyclewright.cycles.limits import MAX_EXTRA_LENGTHS
 from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
@@ -58,7 +57,7 @@ __all__ = ["COMMANDS"]
     "extra",
     default=0,
     show_default=True,
-    type=IntExpr(minimum=0, maximum=MAX_EXTRA_LENGTHS),
+    type=IntExpr(minimum=0),
     help="Further lengths per x beyond the critical one.",
 )
 @side_option

@@ -44,7 +44,7 @@ from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from urllib.parse import urlsplit
 
 from ..errors import InputError
-from ..limits import wait_seconds
+from ..limits import check_workers, wait_seconds
 from ..stopping import STOP_SIGNALS, check_interrupt
 from .store import _stderr_notice
 
@@ -205,8 +205,8 @@ class LocalExecutor:
     name = "local"
 
     def __init__(self, workers: int | None = None, prepare: Callable[[], None] | None = None):
-        if workers is not None and (isinstance(workers, bool) or int(workers) < 1):
-            raise InputError(f"workers must be at least 1, got {workers}")
+        if workers is not None:
+            check_workers(workers)
         self.workers = int(workers) if workers is not None else default_workers()
         self.prepare = prepare
 

@@ -20,6 +20,7 @@ from ..limits import (
     MAX_CHUNKS,
     MAX_STEP_CAP,
     check_range,
+    check_step_cap,
     check_workers,
     limits_lifted,
     short_int,
@@ -127,16 +128,17 @@ def check_chunks(starts_per_side: int, n_sides: int, chunk_size: int) -> int:
     >>> check_chunks(10**5, 1, 1)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: chunk_size (--chunk-size) 1 cuts 100000 starts into 100000 chunks; at most 10000 are allowed (each costs bookkeeping and a store row): use a chunk size of 10 or more, or leave it out
+    cyclewright.cycles.errors.InputError: chunk_size 1 cuts 100000 starts into 100000 chunks; at most 10000 are allowed (each costs bookkeeping and a store row): use a chunk size of 10 or more, or leave it out
     """
     starts = max(starts_per_side, 0) * n_sides
     chunks = -(-starts // chunk_size)
     if chunks > MAX_CHUNKS and not limits_lifted():
         raise InputError(
-            f"chunk_size (--chunk-size) {chunk_size} cuts {short_int(starts)} starts into "
+            f"chunk_size {chunk_size} cuts {short_int(starts)} starts into "
             f"{short_int(chunks)} chunks; at most {MAX_CHUNKS} are allowed (each costs "
             f"bookkeeping and a store row): use a chunk size of "
-            f"{-(-starts // MAX_CHUNKS)} or more, or leave it out"
+            f"{-(-starts // MAX_CHUNKS)} or more, or leave it out",
+            param="chunk_size",
         )
     return chunks
 
@@ -245,21 +247,24 @@ def scan(
         )
     if to < start:
         raise InputError(f"empty range: to = {to} is below start = {start}")
-    if to > MAX_START:
-        raise InputError(
-            f"to = {to} is beyond what the store schema allows (starts up to 2^63 - 1 = {MAX_START})"
-        )
+    check_range(to, "to", maximum=MAX_START, why="the store holds starts as 64-bit integers")
     sides = sides_of(side)
     if workers is not None:
         workers = check_workers(_as_int(workers, "workers"))
-    max_steps = _as_int(max_steps, "max_steps")
-    check_range(max_steps, "max_steps", minimum=1, maximum=MAX_STEP_CAP)
+    max_steps = check_step_cap(_as_int(max_steps, "max_steps"))
     if max_cycle_length is not None:
-        max_cycle_length = _as_int(max_cycle_length, "max_cycle_length")
-        check_range(max_cycle_length, "max_cycle_length", minimum=1, maximum=MAX_STEP_CAP)
+        max_cycle_length = check_step_cap(
+            _as_int(max_cycle_length, "max_cycle_length"), "max_cycle_length"
+        )
     if chunk_size is not None:
         chunk_size = _as_int(chunk_size, "chunk_size")
-        check_range(chunk_size, "chunk_size", minimum=1)
+        check_range(
+            chunk_size,
+            "chunk_size",
+            minimum=1,
+            maximum=MAX_STEP_CAP,
+            why="the store holds it as a 64-bit integer",
+        )
         check_chunks(to - start + 1, len(sides), chunk_size)
     if executor not in ("local", "dask"):
         raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
