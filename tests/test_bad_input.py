@@ -491,7 +491,9 @@ def test_real_process(ws, args):
 
 def test_error_quotes_long_input_shortened(ws, capsys):
     code, _, err = run_main(["scan", "3x+1", "--to", "10^1000", "--no-store"], capsys)
-    assert code == 2 and len(err) < 300 and "1001 digits" in err
+    assert code == 2 and len(err) < 300 and "got 10^1000 (" in err
+    code, _, err = run_main(["scan", "3x+1", "--to", "3*10^1000", "--no-store"], capsys)
+    assert code == 2 and len(err) < 300 and "(1001 digits)" in err
     code, _, err = run_main(["orbit", "3x+1", HUGE_WORD], capsys)
     assert code == 2 and len(err) < 300 and "150000 characters" in err
 

@@ -139,7 +139,7 @@ def test_study_refuses_foreign_directory(tmp_path):
         ),
         (
             "[study]\ntitle='t'\n[maps]\nuse=['3x+1']\n[[analysis]]\nkind='census'\nmax_length=0\n",
-            "[[analysis]] #1 (census): key 'max_length': must be an integer >= 1, got 0",
+            "[[analysis]] #1 (census): max_length must be at least 1, got 0",
         ),
         (
             "[study]\ntitle='t'\n[maps]\nuse=['3x+1']\n[[analysis]]\nkind='sweep'\nodd='5..1'\n",

@@ -80,6 +80,7 @@ from .limits import (
     limits_lifted,
     short_int,
     value_cap,
+    value_text,
 )
 from .presentation import Presentable, Table
 from .progress import ProgressCallback, report
@@ -467,7 +468,7 @@ def check_graph(
     nstarts = (to - start + 1) * (2 if side == "both" else 1)
     if nstarts > MAX_GRAPH_STARTS and not limits_lifted():
         raise InputError(
-            f"{short_int(nstarts)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
+            f"{value_text(nstarts)} starts: the graph holds at most {MAX_GRAPH_STARTS} starts "
             f"(about {GRAPH_BYTES_PER_NODE} bytes a node in memory); use a smaller range"
         )
     max_steps = check_step_cap(_check_int(max_steps, "max_steps"), liftable=True)

@@ -489,10 +489,11 @@ def _bytes_text(n: int) -> str:
     return f"{n} bytes"
 
 
-def check_memory(estimate: int, what: str, *, hint: str = "") -> int:
+def check_memory(estimate: int, what: str, *, hint: str = "", param: str | None = None) -> int:
     """Refuse work whose estimated memory exceeds :data:`MEMORY_BUDGET` (:class:`InputError`).
 
-    Not checked inside :func:`lift_limits`.
+    Not checked inside :func:`lift_limits`. ``param``, a parameter named in
+    ``hint``, is recorded on the error (the command line names its option).
 
     >>> check_memory(10**6, "the orbit")
     1000000
@@ -502,11 +503,12 @@ def check_memory(estimate: int, what: str, *, hint: str = "") -> int:
     cyclewright.cycles.errors.InputError: the orbit could need about 10.0 GB of memory, more than the 2.1 GB allowed; lower the step cap
     """
     if estimate > MEMORY_BUDGET and not limits_lifted():
-        tail = f"; {hint}" if hint else ""
-        raise InputError(
+        text = (
             f"{what} could need about {_bytes_text(estimate)} of memory, "
-            f"more than the {_bytes_text(MEMORY_BUDGET)} allowed{tail}"
+            f"more than the {_bytes_text(MEMORY_BUDGET)} allowed"
         )
+        at = len(text) + 2 + hint.index(param) if param and param in hint else 0
+        raise InputError(text + (f"; {hint}" if hint else ""), param=param if at else None, at=at)
     return estimate
 
 

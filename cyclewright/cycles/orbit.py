@@ -332,7 +332,7 @@ def check_orbit(n: int, max_steps: int, ceiling: int | None = None) -> None:
     >>> check_orbit(7, 10**8, None)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: an orbit of 100000000 steps with values up to |N| * 10^1000 could need about 48.0 GB of memory, more than the 2.1 GB allowed; lower the step cap (max_steps, --max-steps) or the ceiling
+    cyclewright.cycles.errors.InputError: an orbit of 100000000 steps with values up to |N| * 10^1000 could need about 48.0 GB of memory, more than the 2.1 GB allowed; lower max_steps or the ceiling
     """
     check_start(n, "n")
     check_step_cap(max_steps, liftable=True)
@@ -348,7 +348,8 @@ def check_orbit(n: int, max_steps: int, ceiling: int | None = None) -> None:
         orbit_memory_estimate(max_steps, ceiling if ceiling is not None else default_ceiling(n)),
         f"an orbit of {max_steps} steps with values up to "
         + (short_int(ceiling) if ceiling is not None else f"|N| * 10^{DEFAULT_GROWTH_DIGITS}"),
-        hint="lower the step cap (max_steps, --max-steps) or the ceiling",
+        hint="lower max_steps or the ceiling",
+        param="max_steps",
     )
 
 
