@@ -86,7 +86,7 @@ def test_help_has_examples(capsys):
     [
         (["--to", "0"], "empty range"),
         (["--from", "10", "--to", "5"], "empty range"),
-        (["--to", "2^63"], "store schema"),
+        (["--to", "2^63"], "--to must be at most 2^63-1, got 2^63"),
         (["--to", "100", "--workers", "0"], "workers"),
         (["--to", "ten"], "--to must be an integer"),
         (["--to", "100", "--max-steps", "0"], "--max-steps"),
