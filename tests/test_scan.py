@@ -213,7 +213,7 @@ def test_progress_callback():
         ({"to": 10, "start": 20}, "empty range"),
         ({"to": 0}, "empty range"),
         ({"to": 10, "start": 0}, "start = 0"),
-        ({"to": 2**63}, "to must be at most 2^63-1, got 2^63"),
+        ({"to": 2**63}, r"to must be at most 2\^63-1, got 2\^63"),
         ({"to": 10, "workers": 0}, "workers"),
         ({"to": 10, "max_steps": 0}, "max_steps"),
         ({"to": 10, "max_cycle_length": 0}, "max_cycle_length"),

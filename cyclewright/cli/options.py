@@ -668,6 +668,7 @@ def parse_int(
 
     >>> parse_int("2^40", "N")
     1099511627776
+    >>> from cyclewright.cycles.limits import check_start
     >>> parse_int("10^5000", "N", check=check_start)
     Traceback (most recent call last):
     ...
