@@ -377,10 +377,18 @@ STUDY_CASES = [
     ("count", "length = '10^7'\nodd = 5", lambda: cw.count("3x+1", 10**7, 5)),
     ("compare", "odd = '10^9'", lambda: cw.compare(["3x+1"], odd=10**9)),
     ("sweep", "extra_lengths = '10^6'", lambda: cw.sweep("3x+1", range(1, 3), 10**6)),
+    ("compare", "to = '10^30'", lambda: cw.compare(["3x+1"], to=10**30)),
+    ("records", "to = '10^30'", lambda: records("3x+1", 10**30, store=False)),
+    ("records", "max_steps = '10^7'", lambda: records("3x+1", 100, max_steps=10**7, store=False)),
+    ("scan", "to = '2^63'", lambda: cw.scan("3x+1", 2**63, store=False)),
+    ("floor", "verified_to = '10^5000'", lambda: cw.floor("3x+1", 10**5000)),
+    ("graph", "ceiling = '10^2000'", lambda: cw.functional_graph("3x+1", 10, ceiling=10**2000)),
 ]
 
 
-@pytest.mark.parametrize("kind, body, call", STUDY_CASES, ids=[c[0] for c in STUDY_CASES])
+@pytest.mark.parametrize(
+    "kind, body, call", STUDY_CASES, ids=[f"{c[0]}-{c[1].split(' =')[0]}" for c in STUDY_CASES]
+)
 def test_a_study_file_says_the_api_sentence_with_its_key(kind, body, call, work):
     exc = _api_error(call)
     key = body.split(" =")[0]
@@ -408,8 +416,8 @@ def test_every_option_with_a_limit_is_documented():
 
 def test_the_wording_is_built_in_one_place():
     # the API's refusal carries its parameter; the option's name comes from one table
-    from cyclewright.cli.options import API_NAMES, option_name
     from cyclewright.cli.commands.scan_cmd import scan_cmd
+    from cyclewright.cli.options import API_NAMES, option_name
 
     assert option_name(scan_cmd, "max_cycle_length") == "--max-length"
     assert option_name(scan_cmd, "start") == "--from"

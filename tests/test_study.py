@@ -238,6 +238,6 @@ def test_study_limits_are_the_api_limits():
     }
     for (kind, key), hi in shared.items():
         check = PARAMS[kind][key][0]
-        assert check(hi) == hi, (kind, key)
+        assert check(hi, key) == hi, (kind, key)
         with pytest.raises(ValueError):
-            check(hi + 1)
+            check(hi + 1, key)

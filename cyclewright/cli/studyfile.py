@@ -54,30 +54,29 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from cyclewright.cycles.compare import COMPARE_DEFAULTS
+from cyclewright.cycles.compare import COMPARE_DEFAULTS, check_compare
 from cyclewright.cycles.counting import DEFAULT_LIMIT, DEFAULT_SWEEP_LIMIT
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.figures import DEFAULT_WIDTH, FIGURE_FORMATS, figure_width
-from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES
+from cyclewright.cycles.floors import DEFAULT_NEXT_TYPES, check_verified_to
 from cyclewright.cycles.limits import (
-    MAX_COMPARE_TO,
     MAX_EXTRA_LENGTHS,
     MAX_GRAPH_STARTS,
     MAX_NEXT_TYPES,
     MAX_RECORDS_MINUTES,
-    MAX_RECORDS_STEP_CAP,
-    MAX_RECORDS_TO,
+    check_ceiling,
     check_step_cap,
     check_type_length,
 )
+from cyclewright.cycles.records import check_records_step_cap, check_records_to
 from cyclewright.cycles.records_plan import check_minutes
+from cyclewright.cycles.scan.run import check_scan_end
 from cyclewright.cycles.sweep import DEFAULT_ODD
 from cyclewright.maps import Map, MapError, load_catalog, load_map_file
 from cyclewright.maps.mapfile import map_from_table, parse_toml, parsing_digit_limit, read_limited
 
 from .numbers import (
     MAX_CENSUS_LENGTH,
-    MAX_START_DIGITS,
     check_members,
     check_range,
     int_expression,
@@ -119,21 +118,25 @@ def _int(
     limit: Callable[[int, str], int] | None = None,
 ) -> Callable[[object, str], int]:
     """A checker of an integer key: the API's check ``limit`` (called with the key's
-    name), else ``lo``/``hi`` through ``check_range``; a refusal in the API's words."""
+    name) after ``lo``/``hi`` through ``check_range``; a refusal in the API's words."""
 
     def check(v, key: str = "value"):
         if isinstance(v, bool) or not isinstance(v, (int, str)):
             raise ValueError(f"must be an integer, got {_shown(v)}")
         value = int_expression(v)  # raises ValueError with the reason
-        if limit is not None:
-            return limit(value, key)
-        return check_range(value, key, minimum=lo, maximum=hi)
+        check_range(value, key, minimum=lo, maximum=hi)
+        return value if limit is None else limit(value, key)
 
     return check
 
 
 def _count_odd(x: int, key: str) -> int:
     return check_type_length(x, key, minimum=0)
+
+
+def _compare(value: int, key: str) -> int:
+    check_compare(**{key: value})  # compare's own limits, in its words
+    return value
 
 
 def _shown(v: object) -> str:
@@ -244,8 +247,8 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "limit": (_int(0, 10**8), DEFAULT_SWEEP_LIMIT),
     },
     "scan": {
-        "to": (_int(1, 2**62), 10**6),
-        "from": (_int(1, 2**62), 1),
+        "to": (_int(1, limit=check_scan_end), 10**6),
+        "from": (_int(1, limit=check_scan_end), 1),
         "side": (SIDE, DEFAULT_SIDE),
         "max_steps": (_int(limit=check_step_cap), DEFAULT_MAX_STEPS),
     },
@@ -257,22 +260,22 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "offsets": (_range_text, "1..1"),
     },
     "floor": {
-        "verified_to": (_int(1, 10**MAX_START_DIGITS), 2**40),
+        "verified_to": (_int(1, limit=check_verified_to), 2**40),
         "side": (SIDE, DEFAULT_SIDE),
         "next": (_int(0, MAX_NEXT_TYPES), DEFAULT_NEXT_TYPES),
     },
     "compare": {  # the defaults are compare()'s own
-        "max_length": (_int(1, MAX_CENSUS_LENGTH), COMPARE_DEFAULTS["max_length"]),
-        "to": (_int(1, MAX_COMPARE_TO), COMPARE_DEFAULTS["to"]),
-        "odd": (_int(limit=check_type_length), COMPARE_DEFAULTS["odd"]),
-        "max_steps": (_int(limit=check_step_cap), COMPARE_DEFAULTS["max_steps"]),
+        "max_length": (_int(limit=_compare), COMPARE_DEFAULTS["max_length"]),
+        "to": (_int(limit=_compare), COMPARE_DEFAULTS["to"]),
+        "odd": (_int(limit=_compare), COMPARE_DEFAULTS["odd"]),
+        "max_steps": (_int(limit=_compare), COMPARE_DEFAULTS["max_steps"]),
         "plot": (_bool, True),
     },
     "records": {
-        "to": (_int(1, MAX_RECORDS_TO), 10**5),
-        "from": (_int(1, MAX_RECORDS_TO), 1),
+        "to": (_int(1, limit=check_records_to), 10**5),
+        "from": (_int(1, limit=check_records_to), 1),
         "side": (SIDE, DEFAULT_SIDE),
-        "max_steps": (_int(1, MAX_RECORDS_STEP_CAP), DEFAULT_MAX_STEPS),
+        "max_steps": (_int(limit=check_records_step_cap), DEFAULT_MAX_STEPS),
         "max_minutes": (_minutes, MAX_RECORDS_MINUTES),
         "plot": (_bool, True),
     },
@@ -280,7 +283,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "to": (_int(1, MAX_GRAPH_STARTS), 200),
         "side": (SIDE, DEFAULT_SIDE),
         "plot": (_bool, True),
-        "ceiling": (_int(1, 10**MAX_START_DIGITS), DEFAULT_CEILING),
+        "ceiling": (_int(1, limit=check_ceiling), DEFAULT_CEILING),
     },
 }
 

@@ -477,6 +477,31 @@ def floor_table(result: Floor | PerSide[Floor]) -> Table:
     )
 
 
+def check_verified_to(n: int, what: str = "verified_to", *, minimum: int = 0) -> int:
+    """``n`` if ``minimum`` .. 10^1000 - 1 (at most 1000 digits; liftable), else :class:`InputError`.
+
+    The floor's work grows with the digits of N (continued fraction terms,
+    precision). One wording for the API, the command line and study files.
+
+    >>> check_verified_to(2**68)
+    295147905179352825856
+    >>> check_verified_to(10**5000)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: verified_to must be at most 10^1000-1, got 10^5000 (at most 1000 digits; verified ranges in practice are below 10^30)
+    """
+    check_range(n, what, minimum=minimum)
+    if int_digits(n) > MAX_START_DIGITS:
+        check_range(
+            n,
+            what,
+            maximum=10**MAX_START_DIGITS - 1,
+            why=f"at most {MAX_START_DIGITS} digits; verified ranges in practice are below 10^30",
+            liftable=True,
+        )
+    return n
+
+
 def floor(
     m: Map | str,
     verified_to: int,
@@ -539,16 +564,7 @@ def floor(
     """
     m = as_map(m)
     parse_side(side)
-    check_range(verified_to, "verified_to", minimum=0)
-    if int_digits(verified_to) > MAX_START_DIGITS:
-        # the floor's work grows with the digits of N (continued fraction terms, precision)
-        check_range(
-            verified_to,
-            "verified_to",
-            maximum=10**MAX_START_DIGITS - 1,
-            why=f"at most {MAX_START_DIGITS} digits; verified ranges in practice are below 10^30",
-            liftable=True,
-        )
+    check_verified_to(verified_to)
     check_range(next_types, "next_types", minimum=0, maximum=MAX_NEXT_TYPES, liftable=True)
     return on_sides(side, lambda s: _floor(m, verified_to, s, next_types), tolerate=True)
 

@@ -70,13 +70,11 @@ from .limits import (
     GRAPH_BYTES_PER_NODE,
     MAX_GRAPH_NODES,
     MAX_GRAPH_STARTS,
-    MAX_START_DIGITS,
     MEMORY_BUDGET,
     VALUE_CAP_DIGITS,
-    check_range,
+    check_ceiling,
     check_step_cap,
     int_bytes,
-    int_digits,
     limits_lifted,
     short_int,
     value_cap,
@@ -474,14 +472,7 @@ def check_graph(
     max_steps = check_step_cap(_check_int(max_steps, "max_steps"), liftable=True)
     if ceiling is not None:
         ceiling = _check_int(ceiling, "ceiling")
-        if int_digits(ceiling) > MAX_START_DIGITS:
-            check_range(
-                ceiling,
-                "ceiling",
-                maximum=10**MAX_START_DIGITS,
-                why="every node is a Python int kept in the graph",
-                liftable=True,
-            )
+        check_ceiling(ceiling)
         if ceiling < to:
             raise InputError(
                 f"ceiling {short_int(ceiling)} is below the largest start {short_int(to)}",

@@ -71,6 +71,8 @@ __all__ = [
     "limits_lifted",
     "check_range",
     "check_step_cap",
+    "check_ceiling",
+    "CEILING_WHY",
     "STEP_CAP_WHY",
     "TYPE_LENGTH_WHY",
     "START_DIGITS_WHY",
@@ -425,6 +427,23 @@ STEP_CAP_WHY = "the store and the kernels hold it as a 64-bit integer"
 TYPE_LENGTH_WHY = "the figures of a type have about k digits each"
 START_DIGITS_WHY = f"a single start has at most {MAX_START_DIGITS} digits"
 EXCURSION_WHY = "the compiled walk holds values as int64 with one bit of headroom"
+CEILING_WHY = "every node is a Python int kept in the graph"
+
+
+def check_ceiling(ceiling: int, what: str = "ceiling") -> int:
+    """``ceiling`` if at most 10^:data:`MAX_START_DIGITS` (liftable), else :class:`InputError`.
+
+    >>> check_ceiling(10**15)
+    1000000000000000
+    >>> check_ceiling(10**2000)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: ceiling must be at most 10^1000, got 10^2000 (every node is a Python int kept in the graph)
+    """
+    if isinstance(ceiling, int) and not isinstance(ceiling, bool):
+        if int_digits(ceiling) <= MAX_START_DIGITS:
+            return ceiling  # decided without building 10^1000
+    return check_range(ceiling, what, maximum=10**MAX_START_DIGITS, why=CEILING_WHY, liftable=True)
 
 
 def check_step_cap(max_steps: int, what: str = "max_steps", *, liftable: bool = False) -> int:

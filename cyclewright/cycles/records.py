@@ -1138,6 +1138,34 @@ def _as_int(value, what: str) -> int:
     return int(value)
 
 
+def check_records_to(to: int, what: str = "to") -> int:
+    """``to`` if at most :data:`~cyclewright.cycles.limits.MAX_RECORDS_TO`, else :class:`InputError`.
+
+    >>> check_records_to(10**30)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: to must be at most 2^63-1, got 10^30 (the compiled walk holds starts as int64)
+    """
+    return check_range(
+        to, what, maximum=MAX_RECORDS_TO, why="the compiled walk holds starts as int64"
+    )
+
+
+def check_records_step_cap(max_steps: int, what: str = "max_steps") -> int:
+    """``max_steps`` if 1 .. :data:`~cyclewright.cycles.limits.MAX_RECORDS_STEP_CAP`, else :class:`InputError`.
+
+    >>> check_records_step_cap(1000)
+    1000
+    """
+    return check_range(
+        max_steps,
+        what,
+        minimum=1,
+        maximum=MAX_RECORDS_STEP_CAP,
+        why="the records kernels keep step counts in fields sized for this cap",
+    )
+
+
 def records(
     m: Map | str,
     to: int,
@@ -1236,14 +1264,8 @@ def records(
         raise InputError(f"the range must start at 1 or above (0 is on neither side), got {start}")
     if to < start:
         raise InputError(f"empty range: {start}..{to}")
-    check_range(to, "to", maximum=MAX_RECORDS_TO, why="the compiled walk holds starts as int64")
-    check_range(
-        max_steps,
-        "max_steps",
-        minimum=1,
-        maximum=MAX_RECORDS_STEP_CAP,
-        why="the records kernels keep step counts in fields sized for this cap",
-    )
+    check_records_to(to)
+    check_records_step_cap(max_steps)
     from .limits import check_workers
     from .records_plan import check_plan, plan_records
 

@@ -116,6 +116,17 @@ def _prepare_parent(m: Map, sides, cap: int, to: int) -> Callable[[], None]:
     return prepare
 
 
+def check_scan_end(to: int, what: str = "to") -> int:
+    """``to`` if at most 2^63 - 1 (the store's 64-bit starts), else :class:`InputError`.
+
+    >>> check_scan_end(2**63)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: to must be at most 2^63-1, got 2^63 (the store holds starts as 64-bit integers)
+    """
+    return check_range(to, what, maximum=MAX_START, why="the store holds starts as 64-bit integers")
+
+
 def check_chunks(starts_per_side: int, n_sides: int, chunk_size: int) -> int:
     """The number of chunks ``chunk_size`` cuts a scan into; :class:`InputError` past the limit.
 
@@ -247,7 +258,7 @@ def scan(
         )
     if to < start:
         raise InputError(f"empty range: to = {to} is below start = {start}")
-    check_range(to, "to", maximum=MAX_START, why="the store holds starts as 64-bit integers")
+    check_scan_end(to)
     sides = sides_of(side)
     if workers is not None:
         workers = check_workers(_as_int(workers, "workers"))
