@@ -399,9 +399,31 @@ def test_a_study_file_says_the_api_sentence_with_its_key(kind, body, call, work)
     assert str(info.value).endswith(f"[[analysis]] #1 ({kind}): {exc.named(key)}")
 
 
+def test_a_time_limit_says_the_api_sentence_in_option_words(work, capsys):
+    # MAX_RECORDS_MINUTES: the refusal quotes a measured estimate (heuristic), so the
+    # figures may differ between two runs; the words may not. 2^63-1 starts take
+    # far beyond 30 minutes on any machine.
+    exc = _api_error(lambda: records("3x+1", 2**63 - 1, workers=2, store=False))
+    assert exc.param == "max_minutes" and "(max_minutes): raise it, use more workers" in str(exc)
+    expected = exc.renamed(
+        {"max_minutes": "--max-minutes", "workers": "--workers", "executor": "--executor"}
+        | {"scheduler": "--scheduler"}
+    )
+    line = _cli_line(["records", "3x+1", "--to", "2^63-1", "--workers", "2", "--no-store"], capsys)
+
+    def words(text: str) -> str:  # figures and the units of durations masked
+        return re.sub(r"\d[\d.,e+]*( (s|min|h|days|years)\b)?", "#", text)
+
+    assert words(line) == "error: " + words(expected)
+    assert (
+        "(--max-minutes): raise it, use more --workers or a Dask cluster (--executor dask, --scheduler ADDRESS"
+        in line
+    )
+
+
 def test_every_limit_has_a_case_or_a_reason():
     declared = {n for n in dir(limits) if n.startswith("MAX_")} | {"MEMORY_BUDGET"}
-    covered = {c[0] for c in CASES}
+    covered = {c[0] for c in CASES} | {"MAX_RECORDS_MINUTES"}
     missing = declared - covered - set(NO_TWIN)
     assert not missing, f"limits without a wording case: {sorted(missing)}"
     assert not set(NO_TWIN) & covered

@@ -723,9 +723,10 @@ def in_option_words(command: click.Command, exc: BaseException) -> BaseException
     (``--max-steps must be at most 10^9, got 10^30``); other errors pass
     unchanged.
     """
-    if isinstance(exc, InputError) and exc.param:
-        name = option_name(command, exc.param)
-        if name is not None and name != exc.param:
-            exc.args = (exc.named(name), *exc.args[1:])
-            exc.at, exc.param = exc.at, name
+    if isinstance(exc, InputError) and exc.names:
+        names = {p: option_name(command, p) for p, _ in exc.names}
+        names = {p: n for p, n in names.items() if n is not None}
+        if names:
+            exc.args = (exc.renamed(names), *exc.args[1:])
+            exc.param, exc.at, exc.names = None, 0, ()  # said in the command's words now
     return exc

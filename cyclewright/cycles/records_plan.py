@@ -51,7 +51,7 @@ from dataclasses import dataclass
 
 from cyclewright.maps import Map, as_map
 
-from .errors import InputError
+from .errors import InputError, Name
 from .labels import EXACT, HEURISTIC
 from .limits import MAX_RECORDS_MINUTES, QUICK_WALK_WORK, check_memory, limits_lifted
 from .presentation import duration_text
@@ -485,7 +485,7 @@ def check_plan(
     plan: WalkPlan,
     max_minutes: float | None = MAX_RECORDS_MINUTES,
     *,
-    option: str = "max_minutes, --max-minutes",
+    option: str = "max_minutes",
     more_workers: bool = True,
     raise_it: str = "raise it",
 ) -> WalkPlan:
@@ -501,7 +501,9 @@ def check_plan(
     plan : WalkPlan
     max_minutes : float or None
     option : str
-        How the limit is named in the message.
+        The parameter the limit is (named in the message; the command line
+        says its option, and ``workers``, ``executor``, ``scheduler`` as
+        options too).
     more_workers : bool
         Whether the run can use more workers (records: yes; excursions: no).
     raise_it : str
@@ -517,7 +519,7 @@ def check_plan(
     >>> check_plan(p, 30)
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: records of 3x+1 over 1..1,000,000,000,000 (positive side, step cap 1,000): 1e+12 starts, about 27.8 h at 1e+07 starts/s per worker x 1 worker (rate given; heuristic); beyond the limit of 30 min (max_minutes, --max-minutes): raise it, use more --workers or a Dask cluster (--executor dask --scheduler ADDRESS; about 26 min on 64 workers), or use a smaller range
+    cyclewright.cycles.errors.InputError: records of 3x+1 over 1..1,000,000,000,000 (positive side, step cap 1,000): 1e+12 starts, about 27.8 h at 1e+07 starts/s per worker x 1 worker (rate given; heuristic); beyond the limit of 30 min (max_minutes): raise it, use more workers or a Dask cluster (executor dask, scheduler ADDRESS; about 26 min on 64 workers), or use a smaller range
     >>> check_plan(p, None) is p
     True
     """
@@ -528,17 +530,27 @@ def check_plan(
     if plan.seconds <= max_minutes * 60:
         return plan
     ways = (
-        "use more --workers or a Dask cluster (--executor dask --scheduler ADDRESS; about "
-        f"{duration_text(plan.seconds_on(64))} on 64 workers), "
+        (
+            "use more ",
+            Name("workers"),
+            " or a Dask cluster (",
+            Name("executor"),
+            " dask, ",
+            Name("scheduler"),
+            f" ADDRESS; about {duration_text(plan.seconds_on(64))} on 64 workers), ",
+        )
         if more_workers
-        else ""
+        else ()
     )
     w = plan.workers
-    raise InputError(
+    raise InputError.of(
         f"{plan.what} of {plan.map.label} over {plan.start:,}..{plan.to:,} "
         f"({' and '.join(plan.sides)} side{'s' if len(plan.sides) > 1 else ''}, step cap "
         f"{plan.max_steps:,}): {plan.starts:.3g} starts, about {duration_text(plan.seconds)} "
         f"at {plan.rate:.2g} starts/s per worker x {w} worker{'s' if w != 1 else ''} "
-        f"({plan.source}; heuristic); beyond the limit of {max_minutes:g} min ({option}): "
-        f"{raise_it}, {ways}or use a smaller range"
+        f"({plan.source}; heuristic); beyond the limit of {max_minutes:g} min (",
+        Name(option),
+        f"): {raise_it}, ",
+        *ways,
+        "or use a smaller range",
     )
