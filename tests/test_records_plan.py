@@ -121,7 +121,10 @@ def test_check_plan_refuses_in_one_line_with_the_estimate():
     assert "\n" not in msg and "1e+12 starts" in msg and "13.9 h" in msg
     assert "heuristic" in msg and "beyond the limit of 30 min" in msg
     assert "(max_minutes)" in msg and "more workers" in msg and "64 workers" in msg
-    assert info.value.renamed({"max_minutes": "--max-minutes", "workers": "--workers"}).count("--") == 2
+    assert (
+        info.value.renamed({"max_minutes": "--max-minutes", "workers": "--workers"}).count("--")
+        == 2
+    )
     with cw.lift_limits():
         assert check_plan(p, 30) is p
     e = plan_excursions("3x+1", 10**12, max_steps=1000, rate=1e7)

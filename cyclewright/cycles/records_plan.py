@@ -64,6 +64,7 @@ __all__ = [
     "plan_excursions",
     "measure_pieces",
     "check_plan",
+    "check_minutes",
     "is_quick",
     "records_memory",
     "DEFAULT_BUDGET",
@@ -481,6 +482,24 @@ def plan_excursions(
     return _plan("excursions", m, start, to, sides, max_steps, 1, rate, piece_for, budget)
 
 
+def check_minutes(max_minutes: float, what: str = "max_minutes") -> float:
+    """``max_minutes`` if a number of minutes >= 0, else :class:`InputError` (one wording).
+
+    >>> check_minutes(30)
+    30
+    >>> check_minutes(-1)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: max_minutes must be a number of minutes >= 0, got -1
+    """
+    if isinstance(max_minutes, bool) or not (
+        isinstance(max_minutes, (int, float)) and max_minutes >= 0
+    ):
+        shown = f"{max_minutes:g}" if isinstance(max_minutes, (int, float)) else repr(max_minutes)
+        raise InputError(f"{what} must be a number of minutes >= 0, got {shown}", param=what)
+    return max_minutes
+
+
 def check_plan(
     plan: WalkPlan,
     max_minutes: float | None = MAX_RECORDS_MINUTES,
@@ -525,8 +544,7 @@ def check_plan(
     """
     if max_minutes is None or limits_lifted():
         return plan
-    if not (isinstance(max_minutes, (int, float)) and max_minutes >= 0):
-        raise InputError(f"max_minutes must be a number of minutes >= 0, got {max_minutes!r}")
+    check_minutes(max_minutes, option)
     if plan.seconds <= max_minutes * 60:
         return plan
     ways = (

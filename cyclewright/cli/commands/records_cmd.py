@@ -9,7 +9,7 @@ import click
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.limits import MAX_RECORDS_MINUTES
 from cyclewright.cycles.records import records
-from cyclewright.cycles.records_plan import check_plan, plan_records
+from cyclewright.cycles.records_plan import check_minutes, check_plan, plan_records
 
 from ..errors import BadInput
 from ..files import atomic_write, check_figure_path, check_output
@@ -121,8 +121,9 @@ def records_cmd(
         limit = float(max_minutes)
     except ValueError:
         raise BadInput(f"--max-minutes must be a number, got {max_minutes!r}") from None
-    if not limit >= 0 or limit == float("inf"):
-        raise BadInput(f"--max-minutes must be a number of minutes >= 0, got {max_minutes!r}")
+    if limit == float("inf"):
+        raise BadInput(f"--max-minutes must be a finite number of minutes, got {max_minutes!r}")
+    check_minutes(limit, "--max-minutes")  # the API's check and words
     if plan_only:
         _plan(m, to, start, side, max_steps, workers, executor, limit, as_json)
         return
