@@ -544,7 +544,7 @@ def check_plan(
     """
     if max_minutes is None or limits_lifted():
         return plan
-    check_minutes(max_minutes, option)
+    check_minutes(max_minutes)
     if plan.seconds <= max_minutes * 60:
         return plan
     ways = (
