@@ -31,6 +31,7 @@ from cyclewright.cli.studyfile import StudyError, load_study
 from cyclewright.cycles import limits
 from cyclewright.cycles.census import census_family
 from cyclewright.cycles.errors import InputError
+from cyclewright.cycles.figures import figure_width
 from cyclewright.cycles.records import records
 
 DOCS = Path(__file__).resolve().parents[1] / "docs" / "limits.md"
@@ -289,6 +290,14 @@ CASES: list[tuple] = [
         "max_minutes",
         ["records", "3x+1", "--to", "100", "--max-minutes", "-1", "--no-store"],
         "--max-minutes",
+    ),
+    (
+        "MAX_WIDTH",  # cycles/figures.py
+        "orbit-width-20",
+        lambda: figure_width(20),
+        "width",
+        ["orbit", "3x+1", "7", "--plot", "o.png", "--width", "20"],
+        "--width",
     ),
     (
         "limit",  # no MAX_: the threshold of an enumeration is only bounded below

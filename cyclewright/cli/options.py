@@ -243,10 +243,10 @@ class WidthType(click.ParamType):
         from cyclewright.cycles.errors import InputError
         from cyclewright.cycles.figures import figure_width
 
-        try:
-            figure_width(value)
+        try:  # the API's check and words, with the option's name
+            figure_width(value, _name(param, ctx))
         except InputError as exc:
-            raise BadInput(f"{_name(param, ctx)}: {exc}") from None
+            raise BadInput(str(exc)) from None
         return value
 
     def __repr__(self) -> str:

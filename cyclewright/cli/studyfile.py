@@ -220,7 +220,7 @@ def _width(v) -> str | float:
     try:
         figure_width(v)
     except InputError as exc:
-        raise ValueError(str(exc).removeprefix("the figure width ")) from None
+        raise ValueError(exc.named("").lstrip()) from None  # after "key 'width':"
     return v
 
 

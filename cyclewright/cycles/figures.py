@@ -33,6 +33,7 @@ from pathlib import Path
 
 from .errors import InputError
 from .files import atomic_write
+from .limits import quote
 
 __all__ = [
     "WIDTHS",
@@ -77,7 +78,7 @@ _UNITS = {"": 1.0, "in": 1.0, "mm": 1 / 25.4, "cm": 1 / 2.54}
 _WIDTH_TEXT = re.compile(r"\s*(\d+(?:\.\d*)?|\.\d+)\s*(in|mm|cm)?\s*", re.IGNORECASE)
 
 
-def figure_width(width: str | float | int = DEFAULT_WIDTH) -> float:
+def figure_width(width: str | float | int = DEFAULT_WIDTH, what: str = "width") -> float:
     """A figure width in inches.
 
     Parameters
@@ -85,6 +86,9 @@ def figure_width(width: str | float | int = DEFAULT_WIDTH) -> float:
     width : str or float
         ``"single"``, ``"double"``, a number of inches, or a text giving a
         number with ``in``, ``mm`` or ``cm``.
+    what : str
+        The parameter's name in a refusal (the command line's ``--width``,
+        a study's ``width``): one wording everywhere.
 
     Returns
     -------
@@ -105,7 +109,7 @@ def figure_width(width: str | float | int = DEFAULT_WIDTH) -> float:
     >>> figure_width("wide")
     Traceback (most recent call last):
     ...
-    cyclewright.cycles.errors.InputError: the figure width must be single (3.4 in, one column), double (7.0 in, the page) or inches from 2 to 10 (4.5, 4.5in, 89mm, 8.9cm), got 'wide'
+    cyclewright.cycles.errors.InputError: width must be single (3.4 in, one column), double (7.0 in, the page) or inches from 2 to 10 (4.5, 4.5in, 89mm, 8.9cm), got 'wide'
     """
     if isinstance(width, bool):
         inches = None
@@ -119,13 +123,21 @@ def figure_width(width: str | float | int = DEFAULT_WIDTH) -> float:
         inches = float(m.group(1)) * _UNITS[(m.group(2) or "").lower()] if m else None
     else:
         inches = None
-    shown = repr(width) if not isinstance(width, str) else repr(width[:40])
+    if isinstance(width, str):  # a width written as one shows as written, other text quoted
+        shown = width.strip() if _WIDTH_TEXT.fullmatch(width) else quote(width)
+    else:
+        shown = (
+            f"{width:g}"
+            if isinstance(width, (int, float)) and not isinstance(width, bool)
+            else repr(width)
+        )
     if inches is None or not math.isfinite(inches):
-        raise InputError(f"the figure width must be {WIDTH_HELP}, got {shown}")
+        raise InputError(f"{what} must be {WIDTH_HELP}, got {shown}", param=what)
     if not MIN_WIDTH <= inches <= MAX_WIDTH:
         raise InputError(
-            f"the figure width must be from {MIN_WIDTH:g} to {MAX_WIDTH:g} inches "
-            f"(single is {WIDTHS['single']}, double {WIDTHS['double']}), got {shown}"
+            f"{what} must be from {MIN_WIDTH:g} to {MAX_WIDTH:g} inches "
+            f"(single is {WIDTHS['single']}, double {WIDTHS['double']}), got {shown}",
+            param=what,
         )
     return inches
 
