@@ -41,7 +41,7 @@ from pathlib import Path
 from cyclewright.maps import Map
 from cyclewright.maps.registry import as_map
 
-from .errors import StoreError
+from .errors import Name, StoreError
 from .files import data_dir
 
 __all__ = ["RecordsStore", "default_records_path", "FORMAT"]
@@ -110,9 +110,10 @@ class RecordsStore:
                 self._create()
         except sqlite3.DatabaseError as exc:
             self.conn.close()
-            raise StoreError(
+            raise StoreError.of(
                 f"records store {self.path}: not a records store or corrupt ({exc}); "
-                "move it away or give another --store"
+                "move it away or give another ",
+                Name("store"),
             ) from None
         except StoreError:
             self.conn.close()
@@ -135,14 +136,16 @@ class RecordsStore:
     def _validate(self) -> None:
         meta = dict(self.conn.execute("SELECT key, value FROM meta").fetchall())
         if meta.get("format") != FORMAT:
-            raise StoreError(
+            raise StoreError.of(
                 f"records store {self.path} has format {meta.get('format')!r}, "
-                f"this version reads {FORMAT!r}; give another --store"
+                f"this version reads {FORMAT!r}; give another ",
+                Name("store"),
             )
         if meta.get("map_key") != self.map.key:
-            raise StoreError(
+            raise StoreError.of(
                 f"records store {self.path} holds records of {meta.get('map_label')}, "
-                f"not of {self.map.label}; give another --store"
+                f"not of {self.map.label}; give another ",
+                Name("store"),
             )
 
     @staticmethod

@@ -43,7 +43,7 @@ from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from urllib.parse import urlsplit
 
-from ..errors import InputError
+from ..errors import InputError, Name
 from ..limits import check_workers, wait_seconds
 from ..stopping import STOP_SIGNALS, check_interrupt
 from .store import _stderr_notice
@@ -354,8 +354,10 @@ class DaskExecutor:
                 "(pip install 'cyclewright[cluster]')"
             ) from None
         if not address or not isinstance(address, str):
-            raise InputError(
-                "the dask executor needs a scheduler address (--scheduler tcp://HOST:PORT)"
+            raise InputError.of(
+                "the dask executor needs a scheduler address (",
+                Name("scheduler"),
+                " tcp://HOST:PORT)",
             )
         self.address = address
         self.worker_wait = wait_seconds(
@@ -482,12 +484,19 @@ def make_executor(
     """
     if name == "local":
         if scheduler:
-            raise InputError("--scheduler applies to the dask executor only (use --executor dask)")
+            raise InputError.of(
+                Name("scheduler"),
+                " applies to the dask executor only (use ",
+                Name("executor"),
+                " dask)",
+            )
         return LocalExecutor(workers, prepare)
     if name == "dask":
         if not scheduler:
-            raise InputError(
-                "the dask executor needs --scheduler ADDRESS (e.g. tcp://127.0.0.1:8786)"
+            raise InputError.of(
+                "the dask executor needs ",
+                Name("scheduler"),
+                " ADDRESS (e.g. tcp://127.0.0.1:8786)",
             )
         return DaskExecutor(scheduler, timeout)
     raise InputError(f"unknown executor {name!r}: use 'local' or 'dask'")

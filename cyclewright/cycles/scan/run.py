@@ -339,7 +339,7 @@ def _check_batch(m, led, sid, side, batch, recompute, notice) -> dict:
         verb = "are" if more else "is"
         what = f"store {where}: chunk [{lo}, {hi}] of the {side} side{more} {verb} damaged ({why})"
         if not recompute:
-            raise StoreError(f"{what}; refused (--no-recompute), nothing was reported")
+            raise StoreError(f"{what}; refused (recompute off), nothing was reported")
         if led.readonly:
             raise StoreError(
                 f"{what}; the store is not writable, so it cannot be recomputed; nothing was reported"

@@ -118,7 +118,7 @@ import numpy as np
 
 from cyclewright.maps import Map, as_map
 
-from ..errors import StoreError
+from ..errors import Name, StoreError
 from ..files import data_dir
 from ..limits import wait_seconds
 
@@ -565,9 +565,10 @@ class ScanStore:
                 theirs = f"{theirs} = {Map(d['divisor'], d['branches']).formula()}"
             except Exception:
                 pass
-            raise StoreError(
+            raise StoreError.of(
                 f"store {p} holds scans of {theirs}, not of {self.map.label} = "
-                f"{self.map.formula()} (the map definition differs); use another --store"
+                f"{self.map.formula()} (the map definition differs); use another ",
+                Name("store"),
             )
 
     # ----------------------------------------------------------------- version 1
@@ -824,10 +825,12 @@ class ScanStore:
                             f"waiting up to {self.busy_wait:g} s"
                         )
                 if now >= deadline:
-                    raise StoreBusy(
+                    raise StoreBusy.of(
                         f"store {self.path} is busy: {self.holders()} kept it locked for over "
                         f"{self.busy_wait:g} s; nothing was changed (try again later, or use "
-                        "another --store)"
+                        "another ",
+                        Name("store"),
+                        ")",
                     ) from None
                 time.sleep(min(0.2, max(0.0, deadline - now)))
 
