@@ -12,7 +12,8 @@ Layout
 ------
 ``meta``
     ``format``, ``map_key`` (SHA-256 of the canonical definition),
-    ``map_label``.
+    ``map_label``, ``map_definition`` (canonical JSON; stores written
+    before it was added lack it).
 ``chunks``
     One row per chunk: the configuration (side and step cap), ``lo``,
     ``hi``, the chunk's figures as compressed JSON, and a SHA-256 checksum of
@@ -26,14 +27,25 @@ store of this map is refused untouched (:class:`~cyclewright.cycles.errors.Store
 Each chunk is written in its own transaction, so a process killed at any
 moment leaves whole chunks only.
 
+``users``
+    One row per process that has the store open (process id and host), so
+    that :func:`remove_records_store` never deletes a store in use; a row
+    of a process that died is ignored.
+
 The scan's store (:mod:`cyclewright.cycles.scan.store`) is a separate file;
 the records of a map sit beside it (``<key prefix>-records.db``).
+:func:`records_store_info` and :func:`list_records_stores` read stores
+without writing (for ``cyclewright stores list``, through
+:func:`cyclewright.cycles.stores.stores`); :func:`remove_records_store`
+deletes one.
 """
 
 from __future__ import annotations
 
 import hashlib
 import json
+import os
+import socket
 import sqlite3
 import zlib
 from pathlib import Path
@@ -44,11 +56,22 @@ from cyclewright.maps.registry import as_map
 from .errors import Name, StoreError
 from .files import data_dir
 
-__all__ = ["RecordsStore", "default_records_path", "FORMAT"]
+__all__ = [
+    "RecordsStore",
+    "default_records_path",
+    "records_store_info",
+    "list_records_stores",
+    "remove_records_store",
+    "FORMAT",
+    "SUFFIX",
+]
 
 #: Version of the stored figures; a store of another format is refused.
 FORMAT = "records-1"
 _TIMEOUT = 60.0
+#: The end of a records store's file name (``<key prefix>-records.db``).
+SUFFIX = "-records.db"
+_HEADER = b"SQLite format 3\x00"
 
 
 def default_records_path(m: Map | str) -> Path:
@@ -59,7 +82,7 @@ def default_records_path(m: Map | str) -> Path:
     'f477e91227842caa-records.db'
     """
     m = as_map(m)
-    return data_dir() / "scans" / f"{m.key[:16]}-records.db"
+    return data_dir() / "scans" / f"{m.key[:16]}{SUFFIX}"
 
 
 def records_path_for(store, m: Map) -> Path | None:
@@ -77,9 +100,9 @@ def records_path_for(store, m: Map) -> Path | None:
     p = Path(store)
     if p.is_dir():
         return p / default_records_path(m).name
-    if p.name.endswith("-records.db"):
+    if p.name.endswith(SUFFIX):
         return p
-    return p.with_name(f"{p.stem}-records.db")
+    return p.with_name(f"{p.stem}{SUFFIX}")
 
 
 class RecordsStore:
@@ -97,6 +120,7 @@ class RecordsStore:
         self.path = Path(path)
         self.map = m
         self.damaged = 0
+        self._user: int | None = None
         existed = self.path.exists()
         try:
             self.path.parent.mkdir(parents=True, exist_ok=True)
@@ -118,6 +142,20 @@ class RecordsStore:
         except StoreError:
             self.conn.close()
             raise
+        self._user = self._register()
+
+    def _register(self) -> int | None:
+        """Note this process among the store's users (a read-only file: not noted)."""
+        try:
+            self.conn.execute(
+                "CREATE TABLE IF NOT EXISTS users (pid INTEGER NOT NULL, host TEXT NOT NULL)"
+            )
+            cur = self.conn.execute(
+                "INSERT INTO users VALUES (?, ?)", (os.getpid(), socket.gethostname() or "?")
+            )
+            return cur.lastrowid
+        except sqlite3.Error:
+            return None
 
     def _create(self) -> None:
         c = self.conn
@@ -128,7 +166,12 @@ class RecordsStore:
             "hi INTEGER NOT NULL, figures BLOB NOT NULL, checksum TEXT NOT NULL, "
             "PRIMARY KEY (config, lo, hi))"
         )
-        for k, v in (("format", FORMAT), ("map_key", self.map.key), ("map_label", self.map.label)):
+        for k, v in (
+            ("format", FORMAT),
+            ("map_key", self.map.key),
+            ("map_label", self.map.label),
+            ("map_definition", self.map.canonical_json()),
+        ):
             c.execute("INSERT OR IGNORE INTO meta VALUES (?, ?)", (k, v))
         c.execute("COMMIT")
         self._validate()
@@ -195,6 +238,12 @@ class RecordsStore:
             raise StoreError(f"records store {self.path}: cannot write ({exc})") from None
 
     def close(self) -> None:
+        if self._user is not None:
+            try:
+                self.conn.execute("DELETE FROM users WHERE rowid = ?", (self._user,))
+            except sqlite3.Error:
+                pass
+            self._user = None
         self.conn.close()
 
     def __enter__(self) -> RecordsStore:
@@ -218,3 +267,196 @@ def _consistent(f: dict, lo: int, hi: int) -> bool:
         return False
     listed = f["unresolved_first"]
     return len(listed) <= unresolved and all(lo <= s <= hi for s in listed)
+
+
+# --------------------------------------------------------------------------- stores on disk
+def _parse_config(config: str) -> tuple[str, int | None]:
+    parts = dict(p.split("=", 1) for p in config.split(";") if "=" in p)
+    try:
+        return parts.get("side", "?"), int(parts["max_steps"])
+    except (KeyError, ValueError):
+        return parts.get("side", "?"), None
+
+
+def _alive(pid: int, host: str) -> bool:
+    """Whether a process noted in ``users`` may still use the store."""
+    if host != (socket.gethostname() or "?"):
+        return True  # another machine's process: assume it is alive
+    if pid <= 0:
+        return False
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:
+        return True
+    return True
+
+
+def records_store_info(path: str | os.PathLike) -> dict:
+    """What a records store holds, read without writing and without knowing its map.
+
+    Returns a dict with ``path``, ``size`` (bytes), ``modified`` (POSIX
+    time) and, when readable, ``map_label``, ``map_key``, ``formula`` (None
+    for a store written before the definition was kept), ``format``,
+    ``records`` (per configuration: side, step cap, chunks, starts, lowest
+    and highest start), ``chunks_checked`` and ``chunks_damaged`` (every
+    chunk's checksum is checked), ``users`` (processes with the store open);
+    otherwise ``problem``.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> from cyclewright.cycles.records import records
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> _ = records("3x+1", 100, side="positive", store=d)
+    >>> info = records_store_info(d / default_records_path("3x+1").name)
+    >>> info["map_label"], info["records"][0]["highest"], info["chunks_damaged"]
+    ('3x+1', 100, 0)
+    """
+    p = Path(path)
+    st = p.stat()
+    info: dict = {"path": str(p), "size": st.st_size, "modified": st.st_mtime}
+    for extra in ("-journal", "-wal"):
+        side = p.with_name(p.name + extra)
+        if side.exists():
+            info["size"] += side.stat().st_size
+    try:
+        conn = sqlite3.connect(p.resolve().as_uri() + "?mode=ro", uri=True, timeout=0.5)
+    except sqlite3.Error as exc:
+        info["problem"] = f"cannot be opened ({exc})"
+        return info
+    conn.text_factory = lambda b: b.decode("utf-8", "replace")
+    try:
+        tables = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+        if not {"meta", "chunks"} <= tables:
+            info["problem"] = "not a cyclewright records store"
+            return info
+        meta = dict(conn.execute("SELECT key, value FROM meta").fetchall())
+        info["format"] = meta.get("format")
+        info["map_label"] = meta.get("map_label")
+        info["map_key"] = meta.get("map_key")
+        try:
+            d = json.loads(meta["map_definition"])
+            info["formula"] = Map(d["divisor"], d["branches"]).formula()
+        except Exception:
+            info["formula"] = None
+        by_config: dict[str, dict] = {}
+        checked = damaged = 0
+        for config, lo, hi, blob, checksum in conn.execute(
+            "SELECT config, lo, hi, figures, checksum FROM chunks ORDER BY config, lo"
+        ):
+            checked += 1
+            ok = isinstance(blob, bytes) and RecordsStore._digest(config, lo, hi, blob) == checksum
+            if not ok:
+                damaged += 1
+                continue
+            side, cap = _parse_config(config)
+            s = by_config.setdefault(
+                config,
+                {
+                    "side": side,
+                    "max_steps": cap,
+                    "chunks_done": 0,
+                    "starts_done": 0,
+                    "lowest": lo,
+                    "highest": hi,
+                },
+            )
+            s["chunks_done"] += 1
+            s["starts_done"] += hi - lo + 1
+            s["lowest"] = min(s["lowest"], lo)
+            s["highest"] = max(s["highest"], hi)
+        info["records"] = list(by_config.values())
+        info["chunks_checked"] = checked
+        info["chunks_damaged"] = damaged
+        users = []
+        if "users" in tables:
+            users = [
+                (int(pid), str(host))
+                for pid, host in conn.execute("SELECT pid, host FROM users").fetchall()
+                if _alive(int(pid), str(host))
+            ]
+        info["users"] = len(users)
+        if info["format"] != FORMAT:
+            info["problem"] = f"format {info['format']!r}, this cyclewright reads {FORMAT!r}"
+    except sqlite3.Error as exc:
+        info["problem"] = f"unreadable ({exc})"
+    finally:
+        conn.close()
+    return info
+
+
+def list_records_stores(directory: str | os.PathLike | None = None) -> list[dict]:
+    """:func:`records_store_info` of every ``*-records.db`` file in ``directory``.
+
+    The default directory is the stores' one in the user data directory.
+
+    >>> import tempfile
+    >>> list_records_stores(tempfile.mkdtemp())
+    []
+    """
+    root = Path(directory) if directory is not None else data_dir() / "scans"
+    if not root.is_dir():
+        return []
+    return [records_store_info(p) for p in sorted(root.glob(f"*{SUFFIX}")) if p.is_file()]
+
+
+def remove_records_store(path: str | os.PathLike) -> int:
+    """Delete a records store (with its journal) unless a process is using it; the bytes freed.
+
+    Raises
+    ------
+    StoreError
+        The file is not a records store, or another process has it open.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise StoreError(f"no records store at {p}")
+    with open(p, "rb") as fh:
+        if fh.read(len(_HEADER)) != _HEADER:
+            raise StoreError(f"{p} is not a cyclewright records store; nothing was removed")
+    try:
+        conn = sqlite3.connect(str(p), timeout=0.2, isolation_level=None)
+        try:
+            tables = {
+                r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")
+            }
+            fmt = None
+            if "meta" in tables:
+                row = conn.execute("SELECT value FROM meta WHERE key = 'format'").fetchone()
+                fmt = row[0] if row else None
+            if "chunks" not in tables or not str(fmt or "").startswith("records-"):
+                raise StoreError(f"{p} is not a cyclewright records store; nothing was removed")
+            conn.execute("BEGIN EXCLUSIVE")  # nobody else may write while it goes
+            live = []
+            if "users" in tables:
+                live = [
+                    (int(pid), str(host))
+                    for pid, host in conn.execute("SELECT pid, host FROM users").fetchall()
+                    if _alive(int(pid), str(host)) and int(pid) != os.getpid()
+                ]
+            if live:
+                conn.execute("ROLLBACK")
+                who = ", ".join(f"process {pid} on {host}" for pid, host in live)
+                raise StoreError(f"records store {p} is in use by {who}; nothing was removed")
+            freed = p.stat().st_size
+            p.unlink()
+            conn.execute("ROLLBACK")
+        finally:
+            conn.close()
+    except sqlite3.Error as exc:
+        if "locked" in str(exc) or "busy" in str(exc):
+            raise StoreError(
+                f"records store {p} is in use by another process; nothing was removed"
+            ) from None
+        freed = p.stat().st_size  # an unreadable or damaged file: still ours to remove
+        p.unlink()
+    for extra in ("-journal", "-wal", "-shm"):
+        side = p.with_name(p.name + extra)
+        try:
+            freed += side.stat().st_size
+            side.unlink()
+        except OSError:
+            pass
+    return freed

@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import time
 from pathlib import Path
 
 import click
 
 from ..errors import BadInput
 from ..options import json_option, latex_tables, maps_option, resolve_map, store_option
-from ..render import emit_json, make_table, stdout_console
+from ..render import emit_json, show_table, stdout_console
 
 _EPILOG = """\b
 Examples:
@@ -22,45 +21,12 @@ Examples:
   cyclewright stores remove --all --caches
 \b
 Stores live in the user data directory ($CYCLEWRIGHT_DATA_DIR overrides),
-one file per map definition; every name of a map shares its store. Cached
+two kinds per map definition: the scan's (<key>.sqlite) and the records'
+(<key>-records.db); every name of a map shares them, and remove MAP removes
+both. Cached
 sieve tables live in the user cache directory ($CYCLEWRIGHT_CACHE_DIR), bounded
 by $CYCLEWRIGHT_CACHE_LIMIT.
 """
-
-
-def _size(n: float) -> str:
-    """Bytes in binary units (the cache limit is given the same way: 512M = 512 MiB)."""
-    if n < 1024:
-        return f"{n:,.0f} B"
-    for unit in ("KiB", "MiB", "GiB", "TiB"):
-        n /= 1024
-        if n < 1024 or unit == "TiB":
-            return f"{n:,.1f} {unit}"
-    return f"{n}"  # pragma: no cover
-
-
-def _age(t: float) -> str:
-    s = max(0.0, time.time() - t)
-    for unit, span in (("d", 86400), ("h", 3600), ("min", 60)):
-        if s >= span:
-            return f"{s / span:.0f} {unit}"
-    return f"{s:.0f} s"
-
-
-def _ranges(info: dict) -> str:
-    parts = []
-    for s in info.get("scans", ()):
-        if not s["chunks_done"]:
-            continue
-        cap = (
-            f"length <= {s['max_cycle_length']}"
-            if s["max_cycle_length"]
-            else f"cap {s['max_steps']}"
-        )
-        parts.append(
-            f"{s['side']} {s['lowest']}..{s['highest']} ({s['starts_done']:,} starts, {cap})"
-        )
-    return "; ".join(parts) or "-"
 
 
 @click.group("stores", epilog=_EPILOG)
@@ -73,41 +39,27 @@ def stores_group() -> None:
 @json_option
 @latex_tables
 def list_cmd(store, as_json: bool) -> None:
-    """Every store (map, ranges scanned, size, age) and the sieve table cache."""
-    from cyclewright.cycles.scan.sieve import cache_usage
-    from cyclewright.cycles.scan.store import list_stores, store_info
+    """Every store (kind, map, ranges covered, size, age, checks) and the sieve table cache."""
+    from cyclewright.cycles.errors import StoreError
+    from cyclewright.cycles.stores import stores
 
-    if store is not None and Path(store).is_file():
-        infos = [store_info(store)]
-    else:
-        infos = list_stores(store)
-    cache = cache_usage()
+    if store is not None and Path(store).exists() and not (
+        Path(store).is_file() or Path(store).is_dir()
+    ):
+        raise BadInput(f"--store {store}: neither a store file nor a directory")
+    try:
+        listing = stores(store)
+    except StoreError as exc:
+        raise BadInput(str(exc)) from None
     if as_json:
-        emit_json({"stores": infos, "cache": cache})
+        emit_json(listing.to_dict())
         return
     con = stdout_console()
-    rows = []
-    for i in infos:
-        what = i.get("map_label") or "?"
-        if i.get("formula") and i["formula"] != what:
-            what += f" = {i['formula']}"
-        rows.append(
-            [
-                what,
-                i.get("problem") or _ranges(i),
-                _size(i["size"]),
-                _age(i["modified"]),
-                i["path"],
-            ]
-        )
-    if rows:
-        con.print(make_table("Results stores", ["map", "scanned", "size", "age", "file"], rows))
+    if listing.entries:
+        con.print(show_table(listing.table()))
     else:
         con.print("No results stores.")
-    con.print(
-        f"sieve table cache: {cache['files']} files, {_size(cache['bytes'])} of "
-        f"{_size(cache['limit'])} allowed ({cache['path']})"
-    )
+    con.print(listing.cache_line())
 
 
 @stores_group.command("remove", epilog=_EPILOG)
@@ -118,42 +70,61 @@ def list_cmd(store, as_json: bool) -> None:
 @maps_option
 @json_option
 def remove_cmd(map_specs, store, everything: bool, caches: bool, map_files, as_json: bool) -> None:
-    """Remove the default store of each MAP (or --store PATH, or --all); never a store in use."""
+    """Remove the stores (scan and records) of each MAP, or --store PATH, or --all; never one in use."""
+    from cyclewright.cycles.errors import StoreError
+    from cyclewright.cycles.records_store import default_records_path
     from cyclewright.cycles.scan.sieve import clear_cache
-    from cyclewright.cycles.scan.store import default_store_path, list_stores, remove_store
+    from cyclewright.cycles.scan.store import default_store_path
+    from cyclewright.cycles.stores import remove_results_store, store_kind, stores
 
     paths = []
     if everything:
-        paths.extend(Path(i["path"]) for i in list_stores())
+        paths.extend(e.path for e in stores().entries)
     for spec in map_specs:
-        p = default_store_path(resolve_map(spec, map_files))
-        if not p.exists():
-            raise BadInput(f"{spec} has no store ({p} does not exist); nothing was removed")
-        paths.append(p)
+        m = resolve_map(spec, map_files)
+        found = [p for p in (default_store_path(m), default_records_path(m)) if p.exists()]
+        if not found:
+            raise BadInput(
+                f"{spec} has no store ({default_store_path(m)} and its records store "
+                f"{default_records_path(m).name} do not exist); nothing was removed"
+            )
+        paths.extend(found)
     if store is not None:
         if Path(store).is_dir():  # a directory of stores: every store in it
-            paths.extend(Path(i["path"]) for i in list_stores(store))
+            paths.extend(e.path for e in stores(store).entries)
         elif Path(store).is_file():
             paths.append(Path(store))
         else:
             raise BadInput(f"no store at {store}; nothing was removed")
     if not paths and not caches:
         raise BadInput("say what to remove: MAP..., --store PATH, --all or --caches")
+    paths = list(dict.fromkeys(paths))
+    # every file is checked before any is removed: a wrong path removes nothing
+    for p in paths:
+        if store_kind(p) is None:
+            raise BadInput(f"{p} is not a cyclewright results store; nothing was removed")
     removed, freed = [], 0
-    for p in dict.fromkeys(paths):
-        freed += remove_store(p)
+    for p in paths:
+        try:
+            freed += remove_results_store(p)
+        except StoreError as exc:
+            if removed:
+                raise BadInput(f"{exc} (removed before it: {', '.join(removed)})") from None
+            raise
         removed.append(str(p))
     cache_freed = clear_cache() if caches else 0
     if as_json:
         emit_json({"removed": removed, "bytes_freed": freed, "cache_bytes_freed": cache_freed})
         return
     con = stdout_console()
+    from cyclewright.cycles.stores import size_text
+
     for p in removed:
         con.print(f"removed {p}", markup=False, highlight=False)
     if caches:
-        con.print(f"sieve table cache emptied ({_size(cache_freed)} freed)")
+        con.print(f"sieve table cache emptied ({size_text(cache_freed)} freed)")
     con.print(
-        f"{len(removed)} store{'s' if len(removed) != 1 else ''} removed, {_size(freed)} freed"
+        f"{len(removed)} store{'s' if len(removed) != 1 else ''} removed, {size_text(freed)} freed"
     )
 
 
