@@ -103,6 +103,9 @@ _EXPORTS = {
     "Comparison": "cycles.compare",
     "records": "cycles.records",
     "RangeRecords": "cycles.records",
+    # the results stores on this machine
+    "stores": "cycles.stores",
+    "StoresListing": "cycles.stores",
 }
 
 _SUBPACKAGES = ("maps", "cycles", "cli")

@@ -74,6 +74,17 @@ class StudyContext:
         line = use.line()
         sec.paragraphs.append(f"{line[0].upper()}{line[1:]}.")
 
+    def keeps_records(self, starts: int, asked: bool | None) -> bool:
+        """Whether a records run of ``starts`` starts keeps its store in ``DIR/stores``.
+
+        The analysis key ``store`` decides (true: keep, false: none); without
+        it, only a run of at least
+        :data:`~cyclewright.cycles.records.RECORDS_STORE_ABOVE` starts keeps one.
+        """
+        from cyclewright.cycles.records import store_for_part
+
+        return store_for_part(None, starts, asked) is not False
+
     def name(self, *parts: str) -> str:
         """A unique file stem for a table or plot."""
         base = slug("-".join(parts))
@@ -292,6 +303,7 @@ def _compare(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         odd=p["odd"],
         max_steps=p["max_steps"],
         store=ctx.stores,
+        records_store=ctx.keeps_records(p["to"], p["store"]),
         workers=ctx.workers,
         progress=lambda event: ctx.say(str(event)),
     )
@@ -355,6 +367,9 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
         f"Records over the starts {p['from']}..{p['to']} ({p['side']}, step cap {p['max_steps']})"
     )
     summaries, basins = [], []
+    starts = (p["to"] - p["from"] + 1) * (2 if p["side"] == "both" else 1)
+    store = ctx.stores if ctx.keeps_records(starts, p["store"]) else False
+    uses = []
     for m in spec.maps:
         ctx.say(f"records {m.label}")
         r = records(
@@ -363,10 +378,12 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             start=p["from"],
             side=p["side"],
             max_steps=p["max_steps"],
+            store=store,
             workers=ctx.workers,
             max_minutes=None,  # estimated and checked before the study started (_preflight)
             rate=ctx.records_rates.get((id(spec), m.key)),
         )
+        uses.append(r.store_use)
         summary, _, basin = r.tables()
         summaries.append(summary.with_column("map", m.label))
         basins.append(basin.with_column("map", m.label))
@@ -382,6 +399,7 @@ def _records(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             )
     ctx.add_stacked(sec, ("records",), summaries, "Record holders and mean step counts")
     ctx.add_stacked(sec, ("records-basins",), basins, "Basin sizes")
+    ctx.note_store_use(sec, StoreUse.total(uses))
     return sec
 
 

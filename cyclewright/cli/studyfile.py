@@ -270,6 +270,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "odd": (_int(limit=_compare), COMPARE_DEFAULTS["odd"]),
         "max_steps": (_int(limit=_compare), COMPARE_DEFAULTS["max_steps"]),
         "plot": (_bool, True),
+        "store": (_bool, None),  # the records' store in DIR/stores: see RECORDS_STORE_ABOVE
     },
     "records": {
         "to": (_int(1, limit=check_records_to), 10**5),
@@ -278,6 +279,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "max_steps": (_int(limit=check_records_step_cap), DEFAULT_MAX_STEPS),
         "max_minutes": (_minutes, MAX_RECORDS_MINUTES),
         "plot": (_bool, True),
+        "store": (_bool, None),  # the records' store in DIR/stores: see RECORDS_STORE_ABOVE
     },
     "graph": {
         "to": (_int(1, MAX_GRAPH_STARTS), 200),

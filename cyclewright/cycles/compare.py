@@ -839,6 +839,7 @@ def compare(
     odd: int = COMPARE_DEFAULTS["odd"],
     max_steps: int = COMPARE_DEFAULTS["max_steps"],
     store=None,
+    records_store: bool | None = None,
     workers: int | None = None,
     executor: str = "local",
     scheduler: str | None = None,
@@ -864,7 +865,14 @@ def compare(
     store, workers, executor, scheduler
         Passed to the census' scan, the scan of ``1..N`` and the records;
         ``store`` may be a directory (one store per map), ``executor`` is
-        ``"local"`` or ``"dask"`` (with a ``scheduler`` address).
+        ``"local"`` or ``"dask"`` (with a ``scheduler`` address). The records
+        keep a store only when one is asked for: ``store`` names one, or
+        ``records_store`` is True, or ``N`` is at least
+        :data:`~cyclewright.cycles.records.RECORDS_STORE_ABOVE` (then the
+        default store); see :func:`~cyclewright.cycles.records.store_for_part`.
+    records_store : bool, optional
+        True: the records keep a store (``store``) whatever ``N``; False:
+        none; None (default): the rule above.
     count_limit : int
         Necklace enumeration limit.
     max_scan : int
@@ -895,7 +903,7 @@ def compare(
     """
     from .excursions import excursions
     from .floors import floor
-    from .records import records
+    from .records import records, store_for_part
     from .scan.run import check_store_for_maps, scan
 
     if not maps_:
@@ -981,18 +989,20 @@ def compare(
             except InputError as e:
                 floors[side] = None
                 fnotes[side] = str(e)
-        say(f"{m.label}: records over 1..{to}")
+        say(f"records over 1..{to}")
         recs = records(
             m,
             to,
             side="positive",
             max_steps=max_steps,
+            store=store_for_part(store, to, records_store),
             workers=workers,
             executor=executor,
             scheduler=scheduler,
             max_minutes=None,  # estimated and checked before the first map (above)
             rate=rates.get(m.key),
         )
+        use = use + recs.store_use
         tc, tnote = None, ""
         try:
             if m.divisor == 2:

@@ -90,10 +90,53 @@ __all__ = [
     "start_figures",
     "LISTED_UNRESOLVED",
     "KINDS",
+    "RECORDS_STORE_ABOVE",
+    "store_for_part",
 ]
 
 #: How many unresolved starts a result lists per side (all are counted).
 LISTED_UNRESOLVED = 1000
+
+#: A records run made as part of a larger run (a comparison, a study) over fewer
+#: starts than this keeps no records store unless one is asked for: it takes
+#: seconds, so there is nothing worth resuming, and a file nobody asked for would
+#: be left behind. The same rule as a family census's members
+#: (:data:`cyclewright.cycles.census.FAMILY_STORE_ABOVE`, the same size).
+RECORDS_STORE_ABOVE = 10**7
+
+
+def store_for_part(store, starts: int, asked: bool | None = None):
+    """The ``store`` argument of a records run inside a larger run (compare, a study).
+
+    Parameters
+    ----------
+    store : path, None or False
+        The store the larger run was given (None: none named, the default).
+    starts : int
+        How many starts the records run walks (all sides together).
+    asked : bool, optional
+        True: keep a store whatever the size (``store``, or the default
+        store when None); False: keep none; None (default): keep one when
+        ``store`` names one, or when ``starts`` is at least
+        :data:`RECORDS_STORE_ABOVE`.
+
+    Returns
+    -------
+    path, None or False
+        What to pass as :func:`records`'s ``store``.
+
+    Examples
+    --------
+    >>> store_for_part(None, 10**5), store_for_part(None, 10**8), store_for_part("out", 10)
+    (False, None, 'out')
+    >>> store_for_part(None, 10, asked=True), store_for_part("out", 10**8, asked=False)
+    (None, False)
+    """
+    if asked is False or store is False:
+        return False
+    if asked or store is not None or starts >= RECORDS_STORE_ABOVE:
+        return store
+    return False
 #: The record kinds: divided counts, then the undivided ("full") ones of ax+b maps.
 KINDS = ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")
 KIND_TITLES = {
@@ -286,6 +329,7 @@ class RangeRecords(Presentable):
     chunks_total: int = 0
     chunks_reused: int = 0
     chunks_damaged: int = 0
+    starts_reused: int = 0
     labels: dict = field(
         default_factory=lambda: {
             "records": EXACT.value,
@@ -304,6 +348,21 @@ class RangeRecords(Presentable):
     @property
     def unresolved(self) -> int:
         return sum(s.unresolved for s in self.sides.values())
+
+    @property
+    def store_use(self):
+        """What came from the records store and what this run computed
+        (a :class:`~cyclewright.cycles.scan.result.StoreUse`, as the scans give)."""
+        from .scan.result import StoreUse
+
+        starts = (self.to - self.start + 1) * len(self.sides)
+        return StoreUse(
+            self.chunks_reused,
+            self.chunks_total - self.chunks_reused,
+            self.starts_reused,
+            starts - self.starts_reused,
+            stored=self.store is not None,
+        )
 
     @property
     def caution(self) -> str:
@@ -361,6 +420,7 @@ class RangeRecords(Presentable):
                 "path": self.store,
                 "chunks": self.chunks_total,
                 "reused": self.chunks_reused,
+                "starts_reused": self.starts_reused,
                 "computed": self.chunks_total - self.chunks_reused,
                 "damaged_recomputed": self.chunks_damaged,
             },
@@ -1296,7 +1356,7 @@ def records(
     total = (to - start + 1) * len(sides)
     out = {}
     done = 0
-    reused = chunks = 0
+    reused = chunks = starts_reused = 0
     try:
         ex = make_executor(executor, workers=workers, scheduler=scheduler)
         try:
@@ -1318,6 +1378,7 @@ def records(
                         todo.append((lo, hi))
                     else:
                         reused += 1
+                        starts_reused += hi - lo + 1
                         gather(_from_figures(sd, lo, hi, got, max_steps))
                 tasks = (
                     (m.divisor, tuple(tuple(b) for b in m.branches), sd, lo, hi, max_steps, size)
@@ -1348,6 +1409,7 @@ def records(
         chunks_total=chunks,
         chunks_reused=reused,
         chunks_damaged=damaged,
+        starts_reused=starts_reused,
     )
 
 

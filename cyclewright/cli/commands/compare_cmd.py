@@ -10,6 +10,7 @@ from cyclewright.cycles.census import default_family_members, parse_family
 from cyclewright.cycles.compare import COMPARE_DEFAULTS, check_compare, compare
 from cyclewright.cycles.errors import InputError
 from cyclewright.cycles.labels import HEURISTIC_CAUTION
+from cyclewright.cycles.records import RECORDS_STORE_ABOVE
 from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
@@ -91,7 +92,14 @@ _HELP = (
         "  cyclewright compare 3x+1 5x+1 7x+1 --max-length 20 --to 10^5\n"
         "  cyclewright compare 3x+1 mod3-4x --json\n"
         '  cyclewright compare "3x+k" --offsets 1..50 --max-length 16 --csv fam.csv\n'
-        "  cyclewright compare 3x+1 3x+5 181x+1 --plot cmp.png"
+        "  cyclewright compare 3x+1 3x+5 181x+1 --plot cmp.png\n"
+        "  cyclewright compare 3x+1 5x+1 --to 10^5 --store cmp-stores\n"
+        "\b\nStores: the census and the scans keep their results in the user data directory\n"
+        "(--store DIR instead, --no-store for none). The records over 1..N keep a store only\n"
+        "when asked (--store) or when N is at least "
+        f"{power_text(RECORDS_STORE_ABOVE)}: a small comparison leaves no\n"
+        "records store behind. A repeated run with the same --store reuses it (the last line\n"
+        "says how many chunks came from the stores)."
     ),
 )
 @click.argument("map_specs", nargs=-1, required=True, metavar="MAP...")

@@ -20,7 +20,9 @@ from ..studyfile import StudyError, load_study
         "\b\nThe output directory gets report.md and report.html, the figures (PNG, SVG and/or PDF\n"
         "at the width the study file's [report] table names), CSV and JSON for every table,\n"
         "census certificates, study.json (versions, parameters) and stores/ (scan results,\n"
-        "reused by a re-run, which reproduces the data files byte for byte)."
+        "reused by a re-run, which reproduces the data files byte for byte).\n"
+        "\b\nA records or compare analysis keeps its records store in stores/ only with the\n"
+        "analysis key store = true, or from 10^7 starts on; store = false keeps none."
     ),
 )
 @click.argument("path", type=click.Path(dir_okay=False), metavar="FILE.toml")
