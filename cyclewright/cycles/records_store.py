@@ -367,7 +367,10 @@ def records_store_info(path: str | os.PathLike) -> dict:
             s["starts_done"] += hi - lo + 1
             s["lowest"] = min(s["lowest"], lo)
             s["highest"] = max(s["highest"], hi)
-        info["records"] = list(by_config.values())
+        order = {"positive": 0, "negative": 1}
+        info["records"] = sorted(
+            by_config.values(), key=lambda c: (order.get(c["side"], 2), c["max_steps"] or 0)
+        )
         info["chunks_checked"] = checked
         info["chunks_damaged"] = damaged
         users = []
