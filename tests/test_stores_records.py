@@ -156,9 +156,7 @@ def test_small_compare_leaves_no_records_store_unless_asked(tmp_path):
     cmp = compare(["3x+1", "3x+5"], **kw)
     assert _records_files(data_dir(), tmp_path) == []
     assert all(p.extras["records"].store is None for p in cmp.profiles)
-    out = run_cli(
-        "compare", "3x+1", "--max-length", "8", "--to", "300", "--odd", "3", "--no-store"
-    )
+    out = run_cli("compare", "3x+1", "--max-length", "8", "--to", "300", "--odd", "3", "--no-store")
     assert out.returncode == 0, out.stderr
     assert _records_files(data_dir(), tmp_path) == []
     # asked for: kept in the directory given, and reused by the same run again

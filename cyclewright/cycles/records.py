@@ -137,6 +137,8 @@ def store_for_part(store, starts: int, asked: bool | None = None):
     if asked or store is not None or starts >= RECORDS_STORE_ABOVE:
         return store
     return False
+
+
 #: The record kinds: divided counts, then the undivided ("full") ones of ax+b maps.
 KINDS = ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")
 KIND_TITLES = {

@@ -43,10 +43,6 @@ def list_cmd(store, as_json: bool) -> None:
     from cyclewright.cycles.errors import StoreError
     from cyclewright.cycles.stores import stores
 
-    if store is not None and Path(store).exists() and not (
-        Path(store).is_file() or Path(store).is_dir()
-    ):
-        raise BadInput(f"--store {store}: neither a store file nor a directory")
     try:
         listing = stores(store)
     except StoreError as exc:
