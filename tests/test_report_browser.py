@@ -26,7 +26,6 @@ import re
 import shutil
 import struct
 import subprocess
-import tomllib
 import xml.etree.ElementTree as ET
 import zlib
 from html.parser import HTMLParser
@@ -35,7 +34,7 @@ from pathlib import Path
 import pytest
 
 from cyclewright.cli.study import run_study
-from cyclewright.cli.studyfile import parse_study
+from cyclewright.cli.studyfile import load_study
 
 _STUDY = """
 [study]
@@ -68,7 +67,9 @@ def report(tmp_path_factory) -> Path:
     saved = {k: os.environ.get(k) for k in env}
     os.environ.update(env)
     try:
-        run_study(parse_study(tomllib.loads(_STUDY), origin="browser.toml"), out, workers=1)
+        src = out.parent / "browser.toml"
+        src.write_text(_STUDY)
+        run_study(load_study(src), out, workers=1)
     finally:
         for k, v in saved.items():
             if v is None:

@@ -20,7 +20,7 @@ from conftest import run_cli
 import cyclewright as cw
 from cyclewright import maps
 from cyclewright.cli.study import run_study
-from cyclewright.cli.studyfile import parse_study
+from cyclewright.cli.studyfile import load_study
 from cyclewright.cycles.compare import compare
 from cyclewright.cycles.errors import StoreError
 from cyclewright.cycles.files import data_dir
@@ -201,22 +201,22 @@ plot = false
 """
 
 
-def _study(text: str):
-    import tomllib
-
-    return parse_study(tomllib.loads(text), origin="t.toml")
+def _study(text: str, where: Path):
+    where.mkdir(parents=True, exist_ok=True)
+    (where / "t.toml").write_text(text)
+    return load_study(where / "t.toml")
 
 
 def test_small_study_leaves_no_records_store_unless_asked(tmp_path):
     # common practice, no source: a study keeps what it was asked to keep
     out = tmp_path / "plain"
-    run_study(_study(_STUDY.format(store="")), out, workers=1)
+    run_study(_study(_STUDY.format(store=""), tmp_path / "src1"), out, workers=1)
     assert _records_files(out, data_dir()) == []
     md = (out / "report.md").read_text()
     assert "Stored results: none (no store kept)" in md  # the records section says so
 
     asked = tmp_path / "asked"
-    study = _study(_STUDY.format(store="store = true"))
+    study = _study(_STUDY.format(store="store = true"), tmp_path / "src2")
     run_study(study, asked, workers=1)
     assert [p.name for p in _records_files(asked)] == [default_records_path("3x+1").name]
     assert _records_files(data_dir()) == []
@@ -230,5 +230,5 @@ def test_small_study_leaves_no_records_store_unless_asked(tmp_path):
     assert doc["store_use"]["total"]["starts_computed"] == 0
 
     # store = false: none, even where it would be kept
-    none = _study(_STUDY.format(store="store = false"))
+    none = _study(_STUDY.format(store="store = false"), tmp_path / "src3")
     assert all(a.params["store"] is False for a in none.analyses)
