@@ -11,8 +11,9 @@ checked in two ways:
   chromium`` on Debian), the page is opened headless (``--dump-dom``) with a
   small script added that writes into the page whether every ``<img>``
   loaded (``complete`` and ``naturalWidth > 0``) and which text of the page
-  the browser does not render (``innerText``). With Firefox only, the same
-  script paints the page green or red and a headless screenshot is read.
+  the browser does not render (``innerText``). With Firefox (also tried
+  when present) the same script paints the page green or red and a headless
+  screenshot is read.
 
 No browser here is no reason to pass less: the HTML checks run either way.
 """
@@ -213,13 +214,18 @@ window.addEventListener("load", function () {
 """
 
 
-def _browser() -> tuple[str, str] | None:
+def _browsers() -> list[tuple[str, str]]:
+    """The browsers on PATH: the first of the Chromium family, and Firefox."""
+    found = []
     for name in CHROMES:
-        found = shutil.which(name)
-        if found:
-            return "chrome", found
-    found = shutil.which("firefox") or shutil.which("firefox-esr")
-    return ("firefox", found) if found else None
+        if shutil.which(name):
+            found.append(("chrome", shutil.which(name)))
+            break
+    for name in ("firefox", "firefox-esr"):
+        if shutil.which(name):
+            found.append(("firefox", shutil.which(name)))
+            break
+    return found
 
 
 def _probe_page(report: Path, expected: list[str]) -> Path:
@@ -252,6 +258,7 @@ def _run_chrome(binary: str, page: Path, profile: Path) -> dict:
 
 
 def _run_firefox(binary: str, page: Path, profile: Path) -> dict:
+    """Firefox cannot dump the DOM: the probe paints the page green (all well) or red."""
     shot = profile / "shot.png"
     profile.mkdir(parents=True, exist_ok=True)
     cmd = [binary, "--headless", "--profile", str(profile), "--screenshot", str(shot)]
@@ -280,21 +287,19 @@ def test_report_renders_with_every_image(report, tmp_path):
         assert _image_ok(report / src), src
     assert "Caution" in page and "heuristic" in page
 
-    found = _browser()
-    if found is None:  # no browser on this machine: the checks above are the test
-        return
-    kind, binary = found
-    # every piece of text the page holds, as the browser should render it
+    # with no browser on this machine the checks above are the test; else each one found
+    # must show every image and render every piece of text the page holds
     expected = sorted({t for t in p.texts if len(t) > 1})
     assert len(expected) > 50
     probe = _probe_page(report, expected)
-    run = _run_chrome if kind == "chrome" else _run_firefox
-    result = run(binary, probe, tmp_path / "profile")
-    assert result["broken"] == [], f"images not shown by {binary}: {result['broken']}"
-    assert result["missing"] == [], f"text not rendered by {binary}: {result['missing'][:10]}"
-    if result["images"] is not None:
-        assert result["images"] == len(p.images)
-        assert all(w > 100 for w in result["widths"]), result["widths"]
+    for kind, binary in _browsers():
+        run = _run_chrome if kind == "chrome" else _run_firefox
+        result = run(binary, probe, tmp_path / f"profile-{kind}")
+        assert result["broken"] == [], f"images not shown by {binary}: {result['broken']}"
+        assert result["missing"] == [], f"text not rendered by {binary}: {result['missing'][:10]}"
+        if result["images"] is not None:
+            assert result["images"] == len(p.images)
+            assert all(w > 100 for w in result["widths"]), result["widths"]
 
 
 def test_the_probe_sees_a_broken_image(report, tmp_path):
@@ -306,14 +311,11 @@ def test_the_probe_sees_a_broken_image(report, tmp_path):
     gone = page.images[0]["src"]
     (broken / gone).unlink()
     assert not all((broken / i["src"]).is_file() for i in page.images)
-    found = _browser()
-    if found is None:
-        return
-    kind, binary = found
     probe = _probe_page(broken, ["Report in a browser", "a sentence the report does not hold"])
-    run = _run_chrome if kind == "chrome" else _run_firefox
-    result = run(binary, probe, tmp_path / "profile")
-    assert result["broken"] and result["missing"]
-    if kind == "chrome":
-        assert result["broken"] == [gone]
-        assert result["missing"] == ["a sentence the report does not hold"]
+    for kind, binary in _browsers():
+        run = _run_chrome if kind == "chrome" else _run_firefox
+        result = run(binary, probe, tmp_path / f"profile-{kind}")
+        assert result["broken"] and result["missing"], binary
+        if kind == "chrome":
+            assert result["broken"] == [gone]
+            assert result["missing"] == ["a sentence the report does not hold"]
