@@ -284,6 +284,13 @@ def stores(where: str | os.PathLike | None = None) -> StoresListing:
     [('records', '3x+1', 'positive 1..500 (500 starts, cap 1000)')]
     >>> listing.entries[0].checks
     'checksums of 1 chunk ok'
+
+    References
+    ----------
+    The SQLite database file format (sqlite.org/fileformat.html: the header
+    and ``application_id`` that tell the kinds apart); the layouts of the two
+    kinds in :mod:`cyclewright.cycles.scan.store` and
+    :mod:`cyclewright.cycles.records_store`.
     """
     from .files import data_dir
     from .records_store import list_records_stores, records_store_info
