@@ -995,7 +995,7 @@ def compare(
             to,
             side="positive",
             max_steps=max_steps,
-            store=store_for_part(store, to, records_store),
+            store=store_for_part(getattr(store, "path", store), to, records_store),
             workers=workers,
             executor=executor,
             scheduler=scheduler,

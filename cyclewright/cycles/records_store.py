@@ -150,6 +150,9 @@ class RecordsStore:
             self.conn.execute(
                 "CREATE TABLE IF NOT EXISTS users (pid INTEGER NOT NULL, host TEXT NOT NULL)"
             )
+            for rowid, pid, host in self.conn.execute("SELECT rowid, pid, host FROM users"):
+                if not _alive(int(pid), str(host)):  # a process that died with it open
+                    self.conn.execute("DELETE FROM users WHERE rowid = ?", (rowid,))
             cur = self.conn.execute(
                 "INSERT INTO users VALUES (?, ?)", (os.getpid(), socket.gethostname() or "?")
             )
@@ -437,7 +440,7 @@ def remove_records_store(path: str | os.PathLike) -> int:
                 live = [
                     (int(pid), str(host))
                     for pid, host in conn.execute("SELECT pid, host FROM users").fetchall()
-                    if _alive(int(pid), str(host)) and int(pid) != os.getpid()
+                    if _alive(int(pid), str(host))
                 ]
             if live:
                 conn.execute("ROLLBACK")

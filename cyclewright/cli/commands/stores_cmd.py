@@ -73,9 +73,16 @@ def remove_cmd(map_specs, store, everything: bool, caches: bool, map_files, as_j
     from cyclewright.cycles.scan.store import default_store_path
     from cyclewright.cycles.stores import remove_results_store, store_kind, stores
 
-    paths = []
+    paths, skipped = [], []
+
+    def every_store(where=None) -> list[Path]:
+        """The stores of a directory; other files there (not stores) are left alone."""
+        found = [e.path for e in stores(where).entries]
+        skipped.extend(p for p in found if store_kind(p) is None)
+        return [p for p in found if store_kind(p) is not None]
+
     if everything:
-        paths.extend(e.path for e in stores().entries)
+        paths.extend(every_store())
     for spec in map_specs:
         m = resolve_map(spec, map_files)
         found = [p for p in (default_store_path(m), default_records_path(m)) if p.exists()]
@@ -87,12 +94,12 @@ def remove_cmd(map_specs, store, everything: bool, caches: bool, map_files, as_j
         paths.extend(found)
     if store is not None:
         if Path(store).is_dir():  # a directory of stores: every store in it
-            paths.extend(e.path for e in stores(store).entries)
+            paths.extend(every_store(store))
         elif Path(store).is_file():
             paths.append(Path(store))
         else:
             raise BadInput(f"no store at {store}; nothing was removed")
-    if not paths and not caches:
+    if not paths and not caches and not skipped:
         raise BadInput("say what to remove: MAP..., --store PATH, --all or --caches")
     paths = list(dict.fromkeys(paths))
     # every file is checked before any is removed: a wrong path removes nothing
@@ -110,13 +117,22 @@ def remove_cmd(map_specs, store, everything: bool, caches: bool, map_files, as_j
         removed.append(str(p))
     cache_freed = clear_cache() if caches else 0
     if as_json:
-        emit_json({"removed": removed, "bytes_freed": freed, "cache_bytes_freed": cache_freed})
+        emit_json(
+            {
+                "removed": removed,
+                "bytes_freed": freed,
+                "cache_bytes_freed": cache_freed,
+                "skipped_not_stores": [str(p) for p in skipped],
+            }
+        )
         return
     con = stdout_console()
     from cyclewright.cycles.stores import size_text
 
     for p in removed:
         con.print(f"removed {p}", markup=False, highlight=False)
+    for p in skipped:
+        con.print(f"left {p}: not a cyclewright results store", markup=False, highlight=False)
     if caches:
         con.print(f"sieve table cache emptied ({size_text(cache_freed)} freed)")
     con.print(
