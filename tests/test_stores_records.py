@@ -232,3 +232,20 @@ def test_small_study_leaves_no_records_store_unless_asked(tmp_path):
     # store = false: none, even where it would be kept
     none = _study(_STUDY.format(store="store = false"), tmp_path / "src3")
     assert all(a.params["store"] is False for a in none.analyses)
+
+
+def test_a_directory_of_stores_leaves_other_files_alone(tmp_path):
+    # common practice, no source: removing "every store" of a folder takes stores only
+    records("3x+1", 300, side="positive", workers=1, store=tmp_path)
+    scan("3x+5", 300, workers=1, store=tmp_path)
+    notes = tmp_path / "notes.sqlite"
+    notes.write_text("my own notes")
+    assert {e.kind for e in stores(tmp_path).entries} == {"scan", "records"}
+    out = run_cli("stores", "remove", "--store", str(tmp_path), "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert len(doc["removed"]) == 2 and doc["skipped_not_stores"] == [str(notes)]
+    assert notes.read_text() == "my own notes"
+    assert (
+        _records_files(tmp_path) == [] and not (tmp_path / default_store_path("3x+5").name).exists()
+    )
