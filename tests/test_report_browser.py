@@ -1,7 +1,8 @@
 """A study's report.html as a reader sees it: opened in a real browser when one is here.
 
-The report of a small study (tables, a records plot, a graph plot) is
-checked in two ways:
+The report of a small study (tables, a records plot, a graph plot), written
+once with PNG figures (the default) and once with SVG figures shown and PDF
+files linked (``[report] figures``), is checked in two ways:
 
 - always, strictly as HTML (every element closed in order, tables with
   header cells, every image with alternative text), and every image it
@@ -59,9 +60,17 @@ maps = ["3x+5"]
 CHROMES = ("chromium", "chromium-browser", "google-chrome", "google-chrome-stable", "chrome")
 
 
-@pytest.fixture(scope="module")
-def report(tmp_path_factory) -> Path:
-    out = tmp_path_factory.mktemp("browser") / "out"
+# the report as the study writes it by default (PNG figures), and with SVG figures shown
+# and PDF files linked (the study file's [report] table)
+FORMATS = {
+    "png": ("", ("png",)),
+    "svg": ('[report]\nfigures = ["svg", "pdf"]\n', ("svg", "pdf")),
+}
+
+
+@pytest.fixture(scope="module", params=sorted(FORMATS))
+def report(tmp_path_factory, request) -> tuple[str, Path]:
+    out = tmp_path_factory.mktemp(f"browser-{request.param}") / "out"
     env = {
         k: str(out.parent / k.lower()) for k in ("CYCLEWRIGHT_DATA_DIR", "CYCLEWRIGHT_CACHE_DIR")
     }
@@ -69,7 +78,7 @@ def report(tmp_path_factory) -> Path:
     os.environ.update(env)
     try:
         src = out.parent / "browser.toml"
-        src.write_text(_STUDY)
+        src.write_text(_STUDY.replace("[maps]", FORMATS[request.param][0] + "\n[maps]", 1))
         run_study(load_study(src), out, workers=1)
     finally:
         for k, v in saved.items():
@@ -77,7 +86,7 @@ def report(tmp_path_factory) -> Path:
                 os.environ.pop(k, None)
             else:
                 os.environ[k] = v
-    return out
+    return request.param, out
 
 
 # ------------------------------------------------------------------ strict HTML
@@ -91,6 +100,7 @@ class _Page(HTMLParser):
         super().__init__(convert_charrefs=True)
         self.stack: list[str] = []
         self.images: list[dict] = []
+        self.links: list[str] = []
         self.tables: list[dict] = []
         self.texts: list[str] = []
         self.problems: list[str] = []
@@ -102,6 +112,8 @@ class _Page(HTMLParser):
     def handle_starttag(self, tag, attrs):
         if tag == "img":
             self.images.append(dict(attrs))
+        if tag == "a" and dict(attrs).get("href"):
+            self.links.append(dict(attrs)["href"])
         if tag in self.VOID:
             return
         self.stack.append(tag)
@@ -165,7 +177,10 @@ def _svg_ok(data: bytes) -> bool:
 
 def _image_ok(path: Path) -> bool:
     data = path.read_bytes()
-    return _png_ok(data) if path.suffix.lower() == ".png" else _svg_ok(data)
+    kind = path.suffix.lower()
+    if kind == ".pdf":  # ISO 32000: header, end-of-file marker
+        return data.startswith(b"%PDF-") and b"%%EOF" in data[-1024:]
+    return _png_ok(data) if kind == ".png" else _svg_ok(data)
 
 
 def test_png_and_svg_checks_tell_good_from_bad(tmp_path):
@@ -272,6 +287,7 @@ def _run_firefox(binary: str, page: Path, profile: Path) -> dict:
 
 
 def test_report_renders_with_every_image(report, tmp_path):
+    fmt, report = report
     # W3C HTML (well-formed, images with alt text); PNG: ISO/IEC 15948; SVG: W3C SVG 1.1
     page = (report / "report.html").read_text()
     p = _parse(page)
@@ -285,6 +301,14 @@ def test_report_renders_with_every_image(report, tmp_path):
         src = img.get("src", "")
         assert src and "://" not in src and not src.startswith("/"), src  # beside the report
         assert _image_ok(report / src), src
+    # the figure files linked beside each figure (every format) are there and valid
+    # (and every other file the page links to: the tables' CSV, JSON and LaTeX)
+    local = [h for h in p.links if "://" not in h and not h.startswith("#")]
+    assert local and all((report / h).is_file() for h in local), local
+    figures = [h for h in local if Path(h).suffix in (".png", ".svg", ".pdf")]
+    assert len(figures) == 2 * len(FORMATS[fmt][1]), figures
+    assert all(_image_ok(report / h) for h in figures), figures
+    assert {Path(i["src"]).suffix for i in p.images} == {f".{fmt}"}
     assert "Caution" in page and "heuristic" in page
 
     # with no browser on this machine the checks above are the test; else each one found
@@ -303,6 +327,7 @@ def test_report_renders_with_every_image(report, tmp_path):
 
 
 def test_the_probe_sees_a_broken_image(report, tmp_path):
+    report = report[1]
     # common practice, no source: a check that cannot fail proves nothing; a missing
     # image file must be caught (by the browser when there is one, else by the file check)
     broken = tmp_path / "broken"
