@@ -767,31 +767,41 @@ def _table(divisor: int, branches: tuple, cap: int, size: int):
 
 
 #: Steps of one jump of the fast walk (fewer for multipliers whose powers grow fast).
-_JUMP = 12
+_JUMP = 16
 
 
 def _fast_parts(mm: Map, tab, built: bool) -> tuple:
-    """``(hot, tcmin, tmax, jt, K)`` for the fast walk (empty arrays: no fast walk)."""
-    from .records_kernel import hot_table, jump_table
+    """``(hot, tcmin, tmax, jt, pw, gt, bnd, K)`` for the fast walk (one-row arrays: none).
+
+    The tables are fixed in size (``2^K`` rows of the jump tables, the packed
+    copy of the table of small starts), whatever the range.
+    """
+    from .records_kernel import hot_table, jump_tables
 
     none = (
         np.zeros(1, np.int64),
         np.zeros(1, np.int64),
         np.zeros(2, np.int64),
-        np.zeros((1, 6), np.int64),
+        np.zeros((1, 2), np.int64),
+        np.ones(1, np.int64),
+        np.zeros((1, 2), np.int64),
+        np.ones(2, np.int64),
         1,
     )
     ab = mm.ax_b
     if not built or ab is None or mm.divisor != 2 or tab.shape[0] <= 1:
         return none
     a, b = ab
-    if a < 1 or a + b < 1 or a % 2 == 0 or _JUMP < 1:
+    if a < 1 or a + b < 1 or a % 2 == 0 or _JUMP < 1 or abs(b) >= 2**20:
         return none
     k = _JUMP
     while k > 1 and a**k > 2**40:
         k -= 1
+    jt, pw, gt, bnd = jump_tables(a, b, k)
+    if (jt[:, 0] & ((1 << 48) - 1)).max() >= 2**47 or (gt[:, 0] >> 16).max() >= 2**46:
+        return none
     hot, tcmin, tmax = hot_table(tab, mm.step)
-    return hot, tcmin, tmax, jump_table(a, b, k), k
+    return hot, tcmin, tmax, jt, pw, gt, bnd, k
 
 
 class _Accumulator:
@@ -824,7 +834,7 @@ class _Accumulator:
     def call(self, km, lo: int, hi: int, tab, fast: tuple, build: bool) -> int:
         from .records_kernel import walk_chunk
 
-        hot, tcmin, tmax, jt, k = fast
+        hot, tcmin, tmax, jt, pw, gt, bnd, k = fast
         return int(
             walk_chunk(
                 lo,
@@ -842,6 +852,9 @@ class _Accumulator:
                 tcmin,
                 tmax,
                 jt,
+                pw,
+                gt,
+                bnd,
                 k,
                 self.hist_del,
                 self.hist_udel,

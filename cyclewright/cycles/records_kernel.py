@@ -75,7 +75,7 @@ __all__ = [
     "KINDS",
     "new_table",
     "hot_table",
-    "jump_table",
+    "jump_tables",
 ]
 
 #: Table entry: the start is unresolved (so is every start that reaches it first).
@@ -87,8 +87,13 @@ T_UNKNOWN = -2
 KINDS = ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")
 
 _OK, _HARD, _UNRES = 0, 1, 2
+_WALK, _GLIDE = 3, 4  # rows of the fast walk still to finish
 _MASK20 = (1 << 20) - 1
 _MASK21 = (1 << 21) - 1
+_MASK48 = (1 << 48) - 1
+#: Starts followed side by side by the fast walk (:func:`_block`), and starts per block.
+LANES = 4
+BLOCK = 256
 
 
 def new_table(size: int) -> np.ndarray:
@@ -130,34 +135,62 @@ def hot_table(tab: np.ndarray, step) -> tuple[np.ndarray, np.ndarray, np.ndarray
     return hot, mins.astype(np.int64), tmax
 
 
-def jump_table(a: int, b: int, K: int) -> np.ndarray:
+def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """K steps of ``n -> n/2, (a n + b)/2`` at once, per residue ``r = n mod 2^K``.
 
-    Row ``r``: ``A = a^c``, ``B = T^K(r)``, ``c`` (odd steps), the largest
-    ``q`` with ``A q + B < 2^63``, and ``Amax``, ``Bmax`` with every value of
-    the K steps at most ``Amax q + Bmax``. Then ``T^K(2^K q + r) = A q + B``
-    (the parities of the K steps depend on ``r`` only).
+    For ``n = 2^K q + r`` and ``0 <= i <= K``, ``T^i(n) = a^(c_i) 2^(K-i) q + T^i(r)``
+    with ``c_i`` the odd steps among the first ``i`` steps of ``r`` (the
+    parities of those steps depend on ``r`` only). Returns ``(jt, pw, gt, bnd)``:
+
+    - ``jt[r, 0] = T^K(r) | c_K << 48`` and ``jt[r, 1]`` the largest ``q`` with
+      ``a^(c_K) q + T^K(r) < 2^63``, so ``T^K(n) = pw[c_K] q + T^K(r)``;
+    - ``pw[c] = a^c``;
+    - ``gt[r, 0] = j | c_j << 8 | qmin << 16`` when the glide of every ``n``
+      of residue ``r`` with ``q >= qmin`` is ``j <= K`` (``T^i(n) >= n`` for
+      ``i < j`` and ``T^j(n) < n``), ``0`` when the first ``K`` steps of ``r``
+      do not settle it; ``gt[r, 1]`` the least ``a^(c_i) 2^(K-i)``,
+      ``1 <= i <= K``, so that ``T^i(n) >= gt[r, 1] q`` for those ``i``;
+    - ``bnd = [G, L]``: every ``T^i(n)``, ``0 <= i <= K``, is at most ``G q + L``.
+
+    Needs ``a`` odd, ``a >= 1``, ``a + b >= 1`` (values of positive starts stay
+    positive), ``b`` odd and ``a^K < 2^40``, ``|b| < 2^20``.
     """
     n = 1 << K
-    x = np.arange(n, dtype=np.int64)
+    r = np.arange(n, dtype=np.int64)
+    x = r.copy()
     c = np.zeros(n, np.int64)
-    amax = np.full(n, 1 << K, np.int64)
+    pw = np.array([a**k for k in range(K + 1)], np.int64)
+    amax = np.full(n, n, np.int64)
     bmax = x.copy()
+    j = np.zeros(n, np.int64)
+    cj = np.zeros(n, np.int64)
+    qmin = np.zeros(n, np.int64)
+    amin = np.full(n, np.iinfo(np.int64).max, np.int64)
     for i in range(1, K + 1):
         o = (x & 1) == 1
         x = np.where(o, (a * x + b) >> 1, x >> 1)
         c += o
-        amax = np.maximum(amax, a**c << (K - i))
+        coef = pw[c] << (K - i)  # T^i(2^K q + r) = coef q + x
+        amax = np.maximum(amax, coef)
+        amin = np.minimum(amin, coef)
         bmax = np.maximum(bmax, x)
-    A = a**c
-    jt = np.zeros((n, 6), np.int64)
-    jt[:, 0] = A
-    jt[:, 1] = x
-    jt[:, 2] = c
-    jt[:, 3] = (2**63 - 1 - x) // A
-    jt[:, 4] = amax
-    jt[:, 5] = bmax
-    return jt
+        open_ = j == 0
+        above = open_ & (coef > n)  # T^i(n) >= n iff (coef - 2^K) q >= r - x
+        need = np.where(above & (r > x), -((x - r) // np.maximum(coef - n, 1)), 0)
+        qmin = np.maximum(qmin, need)
+        drop = open_ & (coef < n)  # T^i(n) < n iff (2^K - coef) q > x - r
+        need = np.where(drop & (x >= r), (x - r) // np.maximum(n - coef, 1) + 1, 0)
+        qmin = np.where(drop, np.maximum(qmin, need), qmin)
+        j = np.where(drop, i, j)
+        cj = np.where(drop, c, cj)
+    jt = np.zeros((n, 2), np.int64)
+    jt[:, 0] = x | (c << 48)
+    jt[:, 1] = (2**63 - 1 - x) // pw[c]
+    gt = np.zeros((n, 2), np.int64)
+    gt[:, 0] = np.where(j > 0, j | (cj << 8) | (qmin << 16), 0)
+    gt[:, 1] = amin
+    bnd = np.array([amax.max(), bmax.max()], np.int64)
+    return jt, pw, gt, bnd
 
 
 @njit(cache=True)
@@ -273,9 +306,9 @@ def _one(s, d, ma, mb, vmax, cap, undiv, use_table, T, tab):  # pragma: no cover
     return (_OK, delay, odd, glide, uglide, peak, upk, cmin)
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def _one_fast(
-    s, a, b, vmax1, cap, T, tab, hot, tcmin, tmax, jt, K, grow, lift, best_pk, best_upk
+    s, a, b, vmax1, cap, T, tab, hot, tcmin, tmax, jt, pw, gt, K, qlim, best_pk, best_upk
 ):  # pragma: no cover - compiled
     """:func:`_one` for ``ax+b`` maps whose values stay positive (a >= 1, a + b >= 1).
 
@@ -288,13 +321,29 @@ def _one_fast(
     ``best_pk`` / ``best_upk``.
     """
     budget = 3 * cap + 3
+    jumps = hot.shape[0] > 1 and jt.shape[0] > 1
+    mask = (1 << K) - 1
     v = s
     pm = upm = s
     odd = i = 0
-    # stepwise up to the glide: every value before it is at least s
+    jumped = False
+    top = 0  # the largest value a jump starts from
+    # up to the glide: a whole jump when no value of it can be below s, else one step
     while v >= s:
         if i >= budget:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
+        if jumps:
+            r = v & mask
+            q = v >> K
+            if q <= jt[r, 1] and gt[r, 1] * q >= s:
+                if v > top:
+                    top = v
+                e = jt[r, 0]
+                v = pw[e >> 48] * q + (e & _MASK48)
+                odd += e >> 48
+                i += K
+                jumped = True
+                continue
         if v & 1:
             if v > vmax1:
                 return (-1, 0, 0, 0, 0, 0, 0, 0)
@@ -310,7 +359,7 @@ def _one_fast(
         i += 1
     glide = i
     uglide = i + odd
-    if hot.shape[0] <= 1:
+    if not jumps:
         # the table is being built (or no packed copy): read it directly, no jumps
         if v >= T:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
@@ -327,18 +376,16 @@ def _one_fast(
             upm = pm
         return (_OK, i + e, odd + tab[v, 1], glide, uglide, pm, upm, tab[v, 4])
     # past the table: K steps at a time, n = 2^K q + r -> a^c(r) q + T^K(r)
-    jumped = False
-    top = 0  # the largest value a jump starts from
-    mask = (1 << K) - 1
     while v >= T:
         r = v & mask
         q = v >> K
-        if q > jt[r, 3] or i > cap:
+        if q > jt[r, 1] or i > cap:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
         if v > top:
             top = v
-        v = jt[r, 0] * q + jt[r, 1]
-        odd += jt[r, 2]
+        e = jt[r, 0]
+        v = pw[e >> 48] * q + (e & _MASK48)
+        odd += e >> 48
         i += K
         jumped = True
     e = hot[v]
@@ -357,10 +404,9 @@ def _one_fast(
     if jumped:
         if pm > best_pk or upm > best_upk:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
-        # every value inside a jump from v = 2^K q + r is at most Amax(r) q + Bmax(r),
-        # so at most grow * top + lift (floats, rounded up by a wide margin)
-        ub = (grow * top + lift) * 1.000001 + 2.0
-        if ub >= best_pk * 0.999999 or 2.0 * ub >= best_upk * 0.999999:
+        # every value inside a jump from v = 2^K q + r is at most G q + L <= best_pk
+        # (and twice it at most best_upk) when q <= qlim (see walk_chunk)
+        if (top >> K) > qlim:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
         if tmax[0] > best_pk and tab[v, 2] > best_pk:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
@@ -374,6 +420,226 @@ def _one_fast(
     if pm > upm:
         upm = pm
     return (_OK, delay, odd, glide, uglide, pm, upm, cmin)
+
+
+@njit(cache=True)
+def _glide(s, a, b, vmax1, budget, jt, pw, gt, K):  # pragma: no cover - compiled
+    """The glide of ``s`` and its odd steps for positive ``ax+b`` walks, or ``(-1, 0)``.
+
+    Whole jumps while no value of the jump can be below ``s`` (``gt[r, 1] q
+    >= s``), single steps otherwise; ``(-1, 0)`` past ``budget`` steps or near
+    int64.
+    """
+    mask = (1 << K) - 1
+    v = s
+    i = odd = 0
+    while v >= s:
+        if i >= budget:
+            return -1, 0
+        r = v & mask
+        q = v >> K
+        if q <= jt[r, 1] and gt[r, 1] * q >= s:
+            e = jt[r, 0]
+            v = pw[e >> 48] * q + (e & _MASK48)
+            odd += e >> 48
+            i += K
+        elif v & 1:
+            if v > vmax1:
+                return -1, 0
+            v = (a * v + b) >> 1
+            odd += 1
+            i += 1
+        else:
+            v >>= 1
+            i += 1
+    return i, odd
+
+
+@njit(cache=True, inline="always")
+def _lane_jump(v, i, odd, top, bad, T, K, mask, jt, pw):  # pragma: no cover - compiled
+    """One jump of one lane, without branches: ``v >= T`` jumps, else stays.
+
+    A jump whose ``q`` is past the row's overflow limit sets ``bad`` and ``v = 0``.
+    """
+    m = -np.int64(v >= T)
+    r = v & mask
+    q = v >> K
+    e = jt[r, 0]
+    c = e >> 48
+    nv = pw[c] * q + (e & _MASK48)
+    b = np.int64(q > jt[r, 1]) & m
+    top = top if top >= v else v
+    v = v ^ ((v ^ nv) & m)
+    v = v & (b - 1)
+    return v, i + (K & m), odd + (c & m), top, bad | b
+
+
+@njit(cache=True)
+def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, best_pk, best_upk, out):
+    # pragma: no cover - compiled
+    """The fast figures of the starts ``s .. s+n-1`` (every one ``>= T``), four side by side.
+
+    Row ``k`` of ``out`` gets ``[status, delay, odd, glide, full_glide, peak,
+    full_peak, cycle_min]`` with status ``_OK`` when every figure is known (the
+    glide settled by the residue; the peaks are then within the records,
+    written as 0), ``_GLIDE`` when all but the glide are (:func:`_exact_rows`
+    finds it within ``delay`` steps), ``_WALK`` when the start needs the exact
+    walk: an overflow, more than ``cap`` steps, a table entry that is not a
+    delay, a landing on a cycle, or a path whose peaks may reach ``best_pk`` /
+    ``best_upk`` (jumped values are at most ``G (top >> K) + L``, see
+    :func:`jump_tables`; they stay within the records when ``top >> K <=
+    qlim``). The four chains of dependent loads overlap; a lane that is done
+    or failed stays put while the others jump.
+    """
+    mask = (1 << K) - 1
+    for g in range(0, n, LANES):
+        m = min(LANES, n - g)
+        v0 = s + g
+        v1 = s + g + 1 if m > 1 else 0
+        v2 = s + g + 2 if m > 2 else 0
+        v3 = s + g + 3 if m > 3 else 0
+        i0 = i1 = i2 = i3 = 0
+        o0 = o1 = o2 = o3 = 0
+        t0, t1, t2, t3 = v0, v1, v2, v3
+        b0 = b1 = b2 = b3 = 0
+        steps = 0
+        while ((v0 >= T) | (v1 >= T) | (v2 >= T) | (v3 >= T)) & (steps <= cap):
+            v0, i0, o0, t0, b0 = _lane_jump(v0, i0, o0, t0, b0, T, K, mask, jt, pw)
+            v1, i1, o1, t1, b1 = _lane_jump(v1, i1, o1, t1, b1, T, K, mask, jt, pw)
+            v2, i2, o2, t2, b2 = _lane_jump(v2, i2, o2, t2, b2, T, K, mask, jt, pw)
+            v3, i3, o3, t3, b3 = _lane_jump(v3, i3, o3, t3, b3, T, K, mask, jt, pw)
+            steps += K
+        for k in range(m):
+            if k == 0:
+                v, i, o, t, b = v0, i0, o0, t0, b0
+            elif k == 1:
+                v, i, o, t, b = v1, i1, o1, t1, b1
+            elif k == 2:
+                v, i, o, t, b = v2, i2, o2, t2, b2
+            else:
+                v, i, o, t, b = v3, i3, o3, t3, b3
+            row = g + k
+            out[row, 0] = _WALK
+            if b != 0 or v >= T or (t >> K) > qlim:
+                continue
+            e = hot[v]
+            if e < 0 or (e >> 61) & 1 or i + (e & _MASK20) > cap:
+                continue
+            if tmax[0] > best_pk and tab[v, 2] > best_pk:
+                continue
+            if tmax[1] > best_upk and tab[v, 3] > best_upk:
+                continue
+            x = s + row
+            ge = gt[x & mask, 0]
+            settled = ge != 0 and (x >> K) >= (ge >> 16)
+            out[row, 0] = _OK if settled else _GLIDE
+            out[row, 1] = i + (e & _MASK20)
+            out[row, 2] = o + ((e >> 20) & _MASK20)
+            out[row, 3] = ge & 255
+            out[row, 4] = (ge & 255) + ((ge >> 8) & 255)
+            out[row, 5] = 0
+            out[row, 6] = 0
+            out[row, 7] = tcmin[(e >> 40) & _MASK21]
+
+
+@njit(cache=True)
+def _exact_rows(
+    s,
+    n,
+    out,
+    d,
+    ma,
+    mb,
+    vmax,
+    cap,
+    undiv,
+    fast,
+    T,
+    tab,
+    build,
+    hot,
+    tcmin,
+    tmax,
+    jt,
+    pw,
+    gt,
+    K,
+    qlim,
+    best_pk,
+    best_upk,
+):  # pragma: no cover - compiled
+    """Fill the rows of ``out`` that :func:`_block` left open (or all, after ``out[:n, 0] = _WALK``).
+
+    ``_GLIDE`` rows get their glide (:func:`_glide`); ``_WALK`` rows the
+    figures of :func:`_one_fast` (positive ``ax+b`` walks) or :func:`_one`.
+    With ``build`` the starts below ``T`` enter the table as they are done
+    (later starts of the block may read them).
+    """
+    for k in range(n):
+        x = s + k
+        if out[k, 0] == _GLIDE:
+            # the cycle's minimum comes after delay steps, and it is below x: so does the glide
+            glide, godd = _glide(x, ma[1], mb[1], vmax[1], out[k, 1], jt, pw, gt, K)
+            if glide >= 0:
+                out[k, 0] = _OK
+                out[k, 3] = glide
+                out[k, 4] = glide + godd
+                continue
+            out[k, 0] = _WALK
+        if out[k, 0] != _WALK:
+            continue
+        st = -1
+        if fast:
+            st, delay, odd, glide, uglide, peak, upk, cmin = _one_fast(
+                x,
+                ma[1],
+                mb[1],
+                vmax[1],
+                cap,
+                T,
+                tab,
+                hot,
+                tcmin,
+                tmax,
+                jt,
+                pw,
+                gt,
+                K,
+                qlim,
+                best_pk,
+                best_upk,
+            )
+        if st < 0:
+            st, delay, odd, glide, uglide, peak, upk, cmin = _one(
+                x, d, ma, mb, vmax, cap, undiv, True, T, tab
+            )
+        out[k, 0] = st
+        out[k, 1] = delay
+        out[k, 2] = odd
+        out[k, 3] = glide
+        out[k, 4] = uglide
+        out[k, 5] = peak
+        out[k, 6] = upk
+        out[k, 7] = cmin
+        if build and x < T:
+            if st == _OK:
+                tab[x, 0] = delay
+                tab[x, 1] = odd
+                tab[x, 2] = peak
+                tab[x, 3] = upk
+                tab[x, 4] = cmin
+            elif st == _UNRES:
+                tab[x, 0] = T_UNRESOLVED
+            else:
+                tab[x, 0] = T_UNKNOWN
+
+
+@njit(cache=True)
+def _candidate(k, s, value, rec_s, rec_v, rec_n):  # pragma: no cover - compiled
+    """Append a candidate record holder of kind ``k`` (the caller leaves room)."""
+    rec_s[k, rec_n[k]] = s
+    rec_v[k, rec_n[k]] = value
+    rec_n[k] += 1
 
 
 @njit(cache=True)
@@ -393,6 +659,9 @@ def walk_chunk(
     tcmin,
     tmax,
     jt,
+    pw,
+    gt,
+    bnd,
     K,
     hist_del,
     hist_udel,
@@ -418,115 +687,130 @@ def walk_chunk(
     record, hard or unresolved buffer is full (the caller empties it and calls
     again from the returned start). With ``build`` the starts below ``T`` fill
     the table ``tab`` (the fast walk then reads ``tab`` itself and never jumps).
+    ``jt, pw, gt, bnd, K`` are :func:`jump_tables` (``jt`` of one row: no jumps).
     """
     fast = d == 2 and undiv and ma[0] == 1 and mb[0] == 0 and ma[1] >= 1 and ma[1] + mb[1] >= 1
-    grow = 0.0
-    lift = 0.0
-    if jt.shape[0] > 1:
-        grow = jt[:, 4].max() / float(1 << K)
-        lift = float(jt[:, 5].max())
+    lanes = fast and not build and jt.shape[0] > 1 and hot.shape[0] > 1
+    out = np.zeros((BLOCK, 8), np.int64)
     last_min = 0
     last_slot = -1
-    val = np.zeros(6, np.int64)
-    room = rec_n.max() < rec_s.shape[1]
-    for s in range(lo, hi + 1):
-        if not room:
-            return s
-        if nhard[0] >= hard.shape[0] or nunres[0] >= unres.shape[0]:
-            return s
-        st = -1
-        if fast:
-            st, delay, odd, glide, uglide, peak, upk, cmin = _one_fast(
-                s,
-                ma[1],
-                mb[1],
-                vmax[1],
-                cap,
-                T,
-                tab,
-                hot,
-                tcmin,
-                tmax,
-                jt,
-                K,
-                grow,
-                lift,
-                best[4],
-                best[5],
-            )
-        if st < 0:
-            st, delay, odd, glide, uglide, peak, upk, cmin = _one(
-                s, d, ma, mb, vmax, cap, undiv, True, T, tab
-            )
-        if st == _OK:
-            # basin slot
-            slot = last_slot
-            if slot < 0 or cmin != last_min:
-                slot = -1
-                for j in range(ncyc[0]):
-                    if cyc_min[j] == cmin:
-                        slot = j
-                        break
-                if slot < 0 and ncyc[0] < cyc_min.shape[0]:
-                    slot = ncyc[0]
-                    cyc_min[slot] = cmin
-                    cyc_cnt[slot] = 0
-                    ncyc[0] += 1
-            if slot < 0:
-                st = _HARD
-            else:
-                cyc_cnt[slot] += 1
-                last_min = cmin
-                last_slot = slot
-        if build and s < T:
-            if st == _OK:
-                tab[s, 0] = delay
-                tab[s, 1] = odd
-                tab[s, 2] = peak
-                tab[s, 3] = upk
-                tab[s, 4] = cmin
-            elif st == _UNRES:
-                tab[s, 0] = T_UNRESOLVED
-            else:
-                tab[s, 0] = T_UNKNOWN
-        if st == _HARD:
-            hard[nhard[0]] = s
-            nhard[0] += 1
-            sums[2] += 1
-            continue
-        if st == _UNRES:
-            unres[nunres[0]] = s
-            nunres[0] += 1
-            sums[1] += 1
-            continue
-        sums[0] += 1
-        full_delay = delay + odd
-        hist_del[delay] += 1
-        sums[4] += delay
-        if undiv:
-            hist_udel[full_delay] += 1
-            sums[5] += full_delay
-        if glide < 0:
-            sums[3] += 1
+    # the running sums and records in locals (written back on return)
+    n_ok, n_unres, n_hard, n_noglide = sums[0], sums[1], sums[2], sums[3]
+    s_del, s_udel, s_gl, s_ugl = sums[4], sums[5], sums[6], sums[7]
+    b0, b1, b2, b3, b4, b5 = best[0], best[1], best[2], best[3], best[4], best[5]
+    s = lo
+    while s <= hi:
+        # a block never fills a buffer past its end (each start adds at most one entry)
+        free = min(
+            rec_s.shape[1] - rec_n.max(), hard.shape[0] - nhard[0], unres.shape[0] - nunres[0]
+        )
+        n = min(BLOCK, hi - s + 1, free)
+        if n <= 0:
+            break
+        # jumped values bounded by G (top >> K) + L stay within the peak records when
+        # top >> K <= qlim: G q + L <= b4 and 2 (G q + L) <= b5
+        qlim = min((b4 - bnd[1]) // bnd[0], (b5 // 2 - bnd[1]) // bnd[0])
+        if lanes and s >= T:
+            _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, b4, b5, out)
         else:
-            hist_gl[glide] += 1
-            sums[6] += glide
+            out[:n, 0] = _WALK
+        _exact_rows(
+            s,
+            n,
+            out,
+            d,
+            ma,
+            mb,
+            vmax,
+            cap,
+            undiv,
+            fast,
+            T,
+            tab,
+            build,
+            hot,
+            tcmin,
+            tmax,
+            jt,
+            pw,
+            gt,
+            K,
+            qlim,
+            b4,
+            b5,
+        )
+        for k in range(n):
+            x = s + k
+            st = out[k, 0]
+            cmin = out[k, 7]
+            if st == _OK:
+                # basin slot
+                slot = last_slot
+                if slot < 0 or cmin != last_min:
+                    slot = -1
+                    for j in range(ncyc[0]):
+                        if cyc_min[j] == cmin:
+                            slot = j
+                            break
+                    if slot < 0 and ncyc[0] < cyc_min.shape[0]:
+                        slot = ncyc[0]
+                        cyc_min[slot] = cmin
+                        cyc_cnt[slot] = 0
+                        ncyc[0] += 1
+                if slot < 0:
+                    st = _HARD
+                else:
+                    cyc_cnt[slot] += 1
+                    last_min = cmin
+                    last_slot = slot
+            if st == _HARD:
+                hard[nhard[0]] = x
+                nhard[0] += 1
+                n_hard += 1
+                continue
+            if st == _UNRES:
+                unres[nunres[0]] = x
+                nunres[0] += 1
+                n_unres += 1
+                continue
+            delay = out[k, 1]
+            full_delay = delay + out[k, 2]
+            glide = out[k, 3]
+            n_ok += 1
+            hist_del[delay] += 1
+            s_del += delay
             if undiv:
-                hist_ugl[uglide] += 1
-                sums[7] += uglide
-        # candidate records (kinds: delay, full_delay, glide, full_glide, peak, full_peak)
-        val[0] = delay
-        val[1] = full_delay
-        val[2] = glide
-        val[3] = uglide
-        val[4] = peak
-        val[5] = upk
-        for k in range(6):
-            key = abs(val[k])
-            if key > best[k] and (undiv or k % 2 == 0) and (glide >= 0 or k // 2 != 1):
-                best[k] = key
-                rec_s[k, rec_n[k]] = s
-                rec_v[k, rec_n[k]] = val[k]
-                rec_n[k] += 1
-                room = room and rec_n[k] < rec_s.shape[1]
-    return hi + 1
+                hist_udel[full_delay] += 1
+                s_udel += full_delay
+            if glide < 0:
+                n_noglide += 1
+            else:
+                hist_gl[glide] += 1
+                s_gl += glide
+                if undiv:
+                    hist_ugl[out[k, 4]] += 1
+                    s_ugl += out[k, 4]
+            # candidate records (kinds: delay, full_delay, glide, full_glide, peak, full_peak)
+            if delay > b0:
+                b0 = delay
+                _candidate(0, x, delay, rec_s, rec_v, rec_n)
+            if undiv and full_delay > b1:
+                b1 = full_delay
+                _candidate(1, x, full_delay, rec_s, rec_v, rec_n)
+            if glide > b2:  # a start with no glide (-1) never sets one
+                b2 = glide
+                _candidate(2, x, glide, rec_s, rec_v, rec_n)
+            if undiv and glide >= 0 and out[k, 4] > b3:
+                b3 = out[k, 4]
+                _candidate(3, x, b3, rec_s, rec_v, rec_n)
+            if abs(out[k, 5]) > b4:
+                b4 = abs(out[k, 5])
+                _candidate(4, x, out[k, 5], rec_s, rec_v, rec_n)
+            if undiv and abs(out[k, 6]) > b5:
+                b5 = abs(out[k, 6])
+                _candidate(5, x, out[k, 6], rec_s, rec_v, rec_n)
+        s += n
+    sums[0], sums[1], sums[2], sums[3] = n_ok, n_unres, n_hard, n_noglide
+    sums[4], sums[5], sums[6], sums[7] = s_del, s_udel, s_gl, s_ugl
+    best[0], best[1], best[2], best[3], best[4], best[5] = b0, b1, b2, b3, b4, b5
+    return s
