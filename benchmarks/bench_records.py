@@ -12,9 +12,16 @@ What is measured, in one run on this machine:
    cores) and with one worker; peak memory at N and at N/10 (it must not grow
    with the range). One warm-up run first loads the compiled kernels into
    numba's cache (the first run on a machine compiles them, about 10 s).
+   For the one-worker run also the CPU time of the whole process (user +
+   system, start-up included), which moves less than wall-clock time when
+   other work shares the machine.
 2. The same records as a plain C loop (``benchmarks/plain_records.c``,
    compiled here with ``gcc -O2`` into ``benchmarks/_build/``): the classic
-   trajectory of every start followed to 1, one start after the other, one core.
+   trajectory of every start followed to 1, one start after the other, one
+   core; its wall-clock and CPU time.
+
+The ratios: C's wall time over ours with all cores and with one worker, and
+C's CPU time over our one-worker CPU time (per core).
 
 The record holders and values of the two (undivided delay, glide and peak)
 must agree; the script stops otherwise. Figures are measurements (floats);
@@ -27,8 +34,10 @@ import argparse
 import json
 import os
 import platform
+import resource
 import subprocess
 import sys
+import time
 from pathlib import Path
 
 from harness import BUILD, build_c, measured, parse_n
@@ -43,8 +52,21 @@ def plain_c(exe: Path, lo: int, hi: int) -> dict:
         if line.strip():
             kind, s, v = line.split()
             recs[kind].append([int(s), int(v)])
-    secs = float(out[0])
-    return {"seconds": secs, "rate": (hi - lo + 1) / secs, "records": recs}
+    secs, cpu = (float(x) for x in out[0].split())
+    return {"seconds": secs, "cpu_seconds": cpu, "rate": (hi - lo + 1) / secs, "records": recs}
+
+
+def cpu_timed(cmd: list[str]) -> dict:
+    """Run ``cmd``: wall-clock seconds and CPU seconds (user + system) of it and its children."""
+    r0 = resource.getrusage(resource.RUSAGE_CHILDREN)
+    t0 = time.perf_counter()
+    p = subprocess.run(cmd, capture_output=True, text=True)
+    dt = time.perf_counter() - t0
+    r1 = resource.getrusage(resource.RUSAGE_CHILDREN)
+    if p.returncode != 0:
+        raise SystemExit(f"command failed: {' '.join(cmd)}\n{p.stderr}")
+    cpu = (r1.ru_utime - r0.ru_utime) + (r1.ru_stime - r0.ru_stime)
+    return {"seconds": dt, "cpu_seconds": cpu, "out": p.stdout}
 
 
 def main() -> None:
@@ -58,7 +80,7 @@ def main() -> None:
     # warm-up: compile or load the kernels
     measured([*cli, "records", "3x+1", "--to", "1000", "--json", "--no-store"])
     ours = measured([*cli, "records", "3x+1", "--to", str(n), "--json", "--no-store"])
-    ours1 = measured(
+    ours1 = cpu_timed(
         [*cli, "records", "3x+1", "--to", str(n), "--json", "--workers", "1", "--no-store"]
     )
     small = measured(
@@ -78,11 +100,14 @@ def main() -> None:
         "to": n,
         "cyclewright_seconds": ours["seconds"],
         "cyclewright_one_worker_seconds": ours1["seconds"],
+        "cyclewright_one_worker_cpu_seconds": ours1["cpu_seconds"],
         "cyclewright_peak_rss_kib": ours["maxrss_kib"],
         "cyclewright_peak_rss_kib_at_n_over_10": small["maxrss_kib"],
         "plain_c_seconds": c["seconds"],
+        "plain_c_cpu_seconds": c["cpu_seconds"],
         "ratio_c_over_cyclewright": c["seconds"] / ours["seconds"],
         "ratio_c_over_cyclewright_one_worker": c["seconds"] / ours1["seconds"],
+        "ratio_c_over_cyclewright_cpu_per_core": c["cpu_seconds"] / ours1["cpu_seconds"],
         "records_agree": True,
     }
     BUILD.mkdir(exist_ok=True)
@@ -91,11 +116,14 @@ def main() -> None:
     print(
         f"  cyclewright (all cores)   {ours['seconds']:9.2f} s wall, peak {ours['maxrss_kib'] / 1024:.0f} MiB"
     )
-    print(f"  cyclewright (1 worker)    {ours1['seconds']:9.2f} s wall")
-    print(f"  plain C loop (1 core)     {c['seconds']:9.2f} s")
+    print(
+        f"  cyclewright (1 worker)    {ours1['seconds']:9.2f} s wall, {ours1['cpu_seconds']:.2f} s CPU"
+    )
+    print(f"  plain C loop (1 core)     {c['seconds']:9.2f} s wall, {c['cpu_seconds']:.2f} s CPU")
     print(
         f"  C / cyclewright           {res['ratio_c_over_cyclewright']:9.2f}x (all cores), "
-        f"{res['ratio_c_over_cyclewright_one_worker']:.2f}x (1 worker)"
+        f"{res['ratio_c_over_cyclewright_one_worker']:.2f}x (1 worker), "
+        f"{res['ratio_c_over_cyclewright_cpu_per_core']:.2f}x (CPU time, per core)"
     )
     print(f"  peak memory at N/10       {small['maxrss_kib'] / 1024:.0f} MiB")
 

@@ -10,7 +10,8 @@
  * Used by benchmarks/bench_records.py, which compiles it with gcc -O2.
  *
  * usage: plain_records LO HI
- * prints: seconds, then one line per record: kind start value
+ * prints: wall seconds and CPU seconds of the loop, then one line per record:
+ * kind start value
  */
 #include <stdint.h>
 #include <stdio.h>
@@ -30,8 +31,9 @@ int main(int argc, char **argv) {
     int nrec[3] = {0, 0, 0};
     uint64_t best[3] = {0, 0, 0};
     int have[3] = {0, 0, 0};
-    struct timespec t0, t1;
+    struct timespec t0, t1, c0, c1;
     clock_gettime(CLOCK_MONOTONIC, &t0);
+    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &c0);
     for (uint64_t s = lo; s <= hi; s++) {
         uint64_t v = s, peak = s, steps = 0, glide = 0;
         while (v != 1) {
@@ -63,7 +65,9 @@ int main(int argc, char **argv) {
         }
     }
     clock_gettime(CLOCK_MONOTONIC, &t1);
-    printf("%.6f\n", (t1.tv_sec - t0.tv_sec) + 1e-9 * (t1.tv_nsec - t0.tv_nsec));
+    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &c1);
+    printf("%.6f %.6f\n", (t1.tv_sec - t0.tv_sec) + 1e-9 * (t1.tv_nsec - t0.tv_nsec),
+           (c1.tv_sec - c0.tv_sec) + 1e-9 * (c1.tv_nsec - c0.tv_nsec));
     const char *names[3] = {"full_delay", "full_glide", "full_peak"};
     for (int k = 0; k < 3; k++)
         for (int i = 0; i < nrec[k]; i++)

@@ -1372,8 +1372,18 @@ def records(
     out = {}
     done = 0
     reused = chunks = starts_reused = 0
+    need: list[str] = []  # the side whose chunks are about to run
+
+    def prepare() -> None:
+        # the tables of small starts and of jumps, built once in the parent: forked
+        # workers share them instead of each building its own
+        for sd in need:
+            mm = _side_map(m, sd)
+            if _kernel_arrays(mm) is not None:
+                _table(mm.divisor, tuple(tuple(b) for b in mm.branches), max_steps, size)
+
     try:
-        ex = make_executor(executor, workers=workers, scheduler=scheduler)
+        ex = make_executor(executor, workers=workers, scheduler=scheduler, prepare=prepare)
         try:
             for sd in sides:
                 config = RecordsStore.config(sd, max_steps)
@@ -1395,6 +1405,7 @@ def records(
                         reused += 1
                         starts_reused += hi - lo + 1
                         gather(_from_figures(sd, lo, hi, got, max_steps))
+                need[:] = [sd] if todo else []
                 tasks = (
                     (m.divisor, tuple(tuple(b) for b in m.branches), sd, lo, hi, max_steps, size)
                     for lo, hi in todo

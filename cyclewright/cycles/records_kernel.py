@@ -692,8 +692,9 @@ def walk_chunk(
     fast = d == 2 and undiv and ma[0] == 1 and mb[0] == 0 and ma[1] >= 1 and ma[1] + mb[1] >= 1
     lanes = fast and not build and jt.shape[0] > 1 and hot.shape[0] > 1
     out = np.zeros((BLOCK, 8), np.int64)
-    last_min = 0
-    last_slot = -1
+    cur_min = 0  # the cycle minimum of the last resolved start, its basin slot and the
+    cur_slot = -1  # starts counted for it since (added to cyc_cnt on a change and on return)
+    cur_cnt = 0
     # the running sums and records in locals (written back on return)
     n_ok, n_unres, n_hard, n_noglide = sums[0], sums[1], sums[2], sums[3]
     s_del, s_udel, s_gl, s_ugl = sums[4], sums[5], sums[6], sums[7]
@@ -743,26 +744,28 @@ def walk_chunk(
             x = s + k
             st = out[k, 0]
             cmin = out[k, 7]
-            if st == _OK:
-                # basin slot
-                slot = last_slot
-                if slot < 0 or cmin != last_min:
-                    slot = -1
-                    for j in range(ncyc[0]):
-                        if cyc_min[j] == cmin:
-                            slot = j
-                            break
-                    if slot < 0 and ncyc[0] < cyc_min.shape[0]:
-                        slot = ncyc[0]
-                        cyc_min[slot] = cmin
-                        cyc_cnt[slot] = 0
-                        ncyc[0] += 1
+            if st == _OK and not (cur_slot >= 0 and cmin == cur_min):
+                # another cycle than the start before: its basin slot
+                slot = -1
+                for j in range(ncyc[0]):
+                    if cyc_min[j] == cmin:
+                        slot = j
+                        break
+                if slot < 0 and ncyc[0] < cyc_min.shape[0]:
+                    slot = ncyc[0]
+                    cyc_min[slot] = cmin
+                    cyc_cnt[slot] = 0
+                    ncyc[0] += 1
                 if slot < 0:
                     st = _HARD
                 else:
-                    cyc_cnt[slot] += 1
-                    last_min = cmin
-                    last_slot = slot
+                    if cur_slot >= 0:
+                        cyc_cnt[cur_slot] += cur_cnt
+                    cur_slot = slot
+                    cur_min = cmin
+                    cur_cnt = 0
+            if st == _OK:
+                cur_cnt += 1
             if st == _HARD:
                 hard[nhard[0]] = x
                 nhard[0] += 1
@@ -810,6 +813,8 @@ def walk_chunk(
                 b5 = abs(out[k, 6])
                 _candidate(5, x, out[k, 6], rec_s, rec_v, rec_n)
         s += n
+    if cur_slot >= 0:
+        cyc_cnt[cur_slot] += cur_cnt
     sums[0], sums[1], sums[2], sums[3] = n_ok, n_unres, n_hard, n_noglide
     sums[4], sums[5], sums[6], sums[7] = s_del, s_udel, s_gl, s_ugl
     best[0], best[1], best[2], best[3], best[4], best[5] = b0, b1, b2, b3, b4, b5
