@@ -54,7 +54,7 @@ def test_jump_rows_glides_and_bounds_are_exact(name, side):
     a, b = _side_map(maps.get(name), side).ax_b
     K = _k(a)
     jt, pw, gt, bnd = jump_tables(a, b, K)
-    G, L = int(bnd[0]), int(bnd[1])
+    G, L, Q = (int(x) for x in bnd)
     rnd = random.Random(a * 1000 + b)
     rows = [0, 1, 2, (1 << K) - 1] + [rnd.randrange(1 << K) for _ in range(150)]
     for r in rows:
@@ -63,6 +63,7 @@ def test_jump_rows_glides_and_bounds_are_exact(name, side):
         qmax = int(jt[r, 1])
         assert pw[c] == a**c
         assert a**c * qmax + B < 2**63 <= a**c * (qmax + 1) + B
+        assert Q <= qmax
         g = int(gt[r, 0])
         j, cj, qmin = g & 255, (g >> 8) & 255, g >> 16
         qs = {
@@ -232,7 +233,7 @@ def test_blocks_with_warm_records_keep_every_figure(name, side, place):
         b5 = b4 if b4 < 2 else min(2 * b4 - rnd.randrange(2), 2**63 - 1)
         qlim = min((b4 - int(bnd[1])) // int(bnd[0]), (b5 // 2 - int(bnd[1])) // int(bnd[0]))
         out = np.zeros((BLOCK, 8), np.int64)
-        _block(lo, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, b4, b5, out)
+        _block(lo, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, int(bnd[2]), b4, b5, out)
         skipped = int(((out[:n, 0] == 0) | (out[:n, 0] == 4)).sum())
         _exact_rows(
             lo, n, out, 2, km.multipliers, km.offsets, km.vmax, cap, True, True, T, tab, False,

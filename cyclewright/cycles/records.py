@@ -785,7 +785,7 @@ def _fast_parts(mm: Map, tab, built: bool) -> tuple:
         np.zeros((1, 2), np.int64),
         np.ones(1, np.int64),
         np.zeros((1, 2), np.int64),
-        np.ones(2, np.int64),
+        np.ones(3, np.int64),
         1,
     )
     ab = mm.ax_b

@@ -150,7 +150,9 @@ def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndar
       ``i < j`` and ``T^j(n) < n``), ``0`` when the first ``K`` steps of ``r``
       do not settle it; ``gt[r, 1]`` the least ``a^(c_i) 2^(K-i)``,
       ``1 <= i <= K``, so that ``T^i(n) >= gt[r, 1] q`` for those ``i``;
-    - ``bnd = [G, L]``: every ``T^i(n)``, ``0 <= i <= K``, is at most ``G q + L``.
+    - ``bnd = [G, L, Q]``: every ``T^i(n)``, ``0 <= i <= K``, is at most
+      ``G q + L``; ``Q`` the least ``jt[r, 1]`` (a jump with ``q <= Q`` never
+      passes int64, whatever ``r``).
 
     Needs ``a`` odd, ``a >= 1``, ``a + b >= 1`` (values of positive starts stay
     positive), ``b`` odd and ``a^K < 2^40``, ``|b| < 2^20``.
@@ -189,7 +191,7 @@ def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndar
     gt = np.zeros((n, 2), np.int64)
     gt[:, 0] = np.where(j > 0, j | (cj << 8) | (qmin << 16), 0)
     gt[:, 1] = amin
-    bnd = np.array([amax.max(), bmax.max()], np.int64)
+    bnd = np.array([amax.max(), bmax.max(), jt[:, 1].min()], np.int64)
     return jt, pw, gt, bnd
 
 
@@ -456,26 +458,27 @@ def _glide(s, a, b, vmax1, budget, jt, pw, gt, K):  # pragma: no cover - compile
 
 
 @njit(cache=True, inline="always")
-def _lane_jump(v, i, odd, top, bad, T, K, mask, jt, pw):  # pragma: no cover - compiled
+def _lane_jump(v, nj, odd, top, T, K, mask, jt, pw):  # pragma: no cover - compiled
     """One jump of one lane, without branches: ``v >= T`` jumps, else stays.
 
-    A jump whose ``q`` is past the row's overflow limit sets ``bad`` and ``v = 0``.
+    ``nj`` counts the jumps, ``top`` is the largest value a jump started from.
+    No overflow check: a jump from ``v`` is exact when ``v >> K`` is at most
+    every row's limit ``jt[r, 1]``, which the caller checks on ``top``
+    afterwards (a lane past it is not used).
     """
-    m = -np.int64(v >= T)
+    m = (T - 1 - v) >> 63  # -1 when v >= T, else 0
     r = v & mask
     q = v >> K
     e = jt[r, 0]
     c = e >> 48
     nv = pw[c] * q + (e & _MASK48)
-    b = np.int64(q > jt[r, 1]) & m
     top = top if top >= v else v
     v = v ^ ((v ^ nv) & m)
-    v = v & (b - 1)
-    return v, i + (K & m), odd + (c & m), top, bad | b
+    return v, nj - m, odd + (c & m), top
 
 
 @njit(cache=True)
-def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, best_pk, best_upk, out):
+def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, qsafe, best_pk, best_upk, out):
     # pragma: no cover - compiled
     """The fast figures of the starts ``s .. s+n-1`` (every one ``>= T``), four side by side.
 
@@ -488,8 +491,9 @@ def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, best_pk, be
     delay, a landing on a cycle, or a path whose peaks may reach ``best_pk`` /
     ``best_upk`` (jumped values are at most ``G (top >> K) + L``, see
     :func:`jump_tables`; they stay within the records when ``top >> K <=
-    qlim``). The four chains of dependent loads overlap; a lane that is done
-    or failed stays put while the others jump.
+    qlim``). Every jump is exact when ``top >> K <= qsafe``, the least row
+    limit ``jt[r, 1]``. The four chains of dependent loads overlap; a lane that
+    is done stays put while the others jump.
     """
     mask = (1 << K) - 1
     for g in range(0, n, LANES):
@@ -501,26 +505,25 @@ def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, best_pk, be
         i0 = i1 = i2 = i3 = 0
         o0 = o1 = o2 = o3 = 0
         t0, t1, t2, t3 = v0, v1, v2, v3
-        b0 = b1 = b2 = b3 = 0
         steps = 0
         while ((v0 >= T) | (v1 >= T) | (v2 >= T) | (v3 >= T)) & (steps <= cap):
-            v0, i0, o0, t0, b0 = _lane_jump(v0, i0, o0, t0, b0, T, K, mask, jt, pw)
-            v1, i1, o1, t1, b1 = _lane_jump(v1, i1, o1, t1, b1, T, K, mask, jt, pw)
-            v2, i2, o2, t2, b2 = _lane_jump(v2, i2, o2, t2, b2, T, K, mask, jt, pw)
-            v3, i3, o3, t3, b3 = _lane_jump(v3, i3, o3, t3, b3, T, K, mask, jt, pw)
+            v0, i0, o0, t0 = _lane_jump(v0, i0, o0, t0, T, K, mask, jt, pw)
+            v1, i1, o1, t1 = _lane_jump(v1, i1, o1, t1, T, K, mask, jt, pw)
+            v2, i2, o2, t2 = _lane_jump(v2, i2, o2, t2, T, K, mask, jt, pw)
+            v3, i3, o3, t3 = _lane_jump(v3, i3, o3, t3, T, K, mask, jt, pw)
             steps += K
         for k in range(m):
             if k == 0:
-                v, i, o, t, b = v0, i0, o0, t0, b0
+                v, i, o, t = v0, i0 * K, o0, t0
             elif k == 1:
-                v, i, o, t, b = v1, i1, o1, t1, b1
+                v, i, o, t = v1, i1 * K, o1, t1
             elif k == 2:
-                v, i, o, t, b = v2, i2, o2, t2, b2
+                v, i, o, t = v2, i2 * K, o2, t2
             else:
-                v, i, o, t, b = v3, i3, o3, t3, b3
+                v, i, o, t = v3, i3 * K, o3, t3
             row = g + k
             out[row, 0] = _WALK
-            if b != 0 or v >= T or (t >> K) > qlim:
+            if v >= T or (t >> K) > qlim or (t >> K) > qsafe:
                 continue
             e = hot[v]
             if e < 0 or (e >> 61) & 1 or i + (e & _MASK20) > cap:
@@ -712,7 +715,7 @@ def walk_chunk(
         # top >> K <= qlim: G q + L <= b4 and 2 (G q + L) <= b5
         qlim = min((b4 - bnd[1]) // bnd[0], (b5 // 2 - bnd[1]) // bnd[0])
         if lanes and s >= T:
-            _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, b4, b5, out)
+            _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, bnd[2], b4, b5, out)
         else:
             out[:n, 0] = _WALK
         _exact_rows(
