@@ -10,6 +10,8 @@ Inside
   per cycle minimum; unresolved starts; starts handed to the exact Python
   continuation (*hard*: a value would pass int64, or the basin buffer is
   full).
+- :func:`jump_tables`, :func:`hot_table`, :func:`new_table` -- the fixed-size
+  tables the walk reads (see *Skipping work*).
 - Codes of a table entry: :data:`T_UNRESOLVED`, :data:`T_UNKNOWN`.
 
 Definitions (``v_0 = s > 0``, ``v_i = T^i(s)``, cap ``C``)
@@ -40,27 +42,72 @@ path again from ``s``.
 
 Skipping work
 -------------
-For ``ax+b`` maps with ``d = 2`` whose values stay positive, a start ``s``
-is first walked step by step to its glide (every value before it is at
-least ``s``, so the glide, its odd steps and the peaks so far are exact).
-From the first value ``v < s`` on, the walk jumps ``K`` steps at a time
-(:func:`jump_table`: ``T^K(2^K q + r) = a^c q + T^K(r)``, the parities of the
-``K`` steps depending on ``r`` only) until a value below ``T``, whose delay,
-odd steps and cycle are read from a packed copy of the table
-(:func:`hot_table`). This is exact unless the landing value lies on its
-cycle (then an earlier value, inside a jump, may be the cycle's minimum):
-such starts are walked step by step. The jumps skip the values the peaks
-are taken over; a peak only matters when it beats the chunk's running
-record, so the walk bounds every jumped value by ``Amax q + Bmax`` and
-walks step by step exactly the starts whose bound reaches the record (and
-those whose peak before the glide sets one). The delay, glide and odd-step
-counts, the distributions, the basins and the record holders are the same
-as the step-by-step walk's (tests compare both, and the plain definition).
+For ``ax+b`` maps with ``d = 2`` whose values stay positive (``a`` odd,
+``a >= 1``, ``a + b >= 1``: 3x+1 and its negative side 3x-1, 3x+5, 5x+1, ...)
+the walk uses, besides the table, the jump tables of :func:`jump_tables`
+(``2^K`` rows, ``K = 16`` unless ``a^K`` passes ``2^40``). They rest on one
+identity: for ``n = 2^K q + r`` and ``0 <= i <= K``,
+``T^i(n) = a^(c_i) 2^(K-i) q + T^i(r)`` with ``c_i`` the odd steps among the
+first ``i`` steps of ``r``, because the parity of ``T^i(n)`` is that of
+``T^i(r)`` for ``i < K`` (the first term is even) [2]_. Each shortcut below
+gives the same figures as the step-by-step walk:
+
+1. *Jumps.* ``T^K(n) = a^(c_K) q + T^K(r)``, ``K`` steps and ``c_K`` odd
+   steps at once. A jump is exact while ``a^(c_K) q + T^K(r) < 2^63``; the
+   walk jumps only from values with ``q`` at most every row's limit (checked
+   on the largest value a jump starts from), else it falls back.
+2. *Landing in the table.* The jumps go on until a value ``v < T``; the
+   delay, odd steps and cycle of ``v`` come from a packed copy of the table
+   (:func:`hot_table`). The delay of the start is the steps jumped plus the
+   table's, unless ``v`` lies on its cycle (then a value inside a jump may be
+   the cycle's minimum, reached earlier): such starts take the exact walk.
+   Off the cycle no earlier value can be on it (a value on a cycle stays on
+   it), so the minimum is first reached after ``v``.
+3. *The glide from the residue.* With ``j`` the first ``i`` where
+   ``a^(c_i) < 2^i``, ``T^i(n) - n = (a^(c_i) 2^(K-i) - 2^K) q + T^i(r) - r``
+   is ``>= 0`` for ``i < j`` and ``< 0`` for ``i = j`` exactly when ``q`` is
+   at least a threshold ``qmin(r)`` (linear inequalities in ``q``, solved
+   exactly in integers). So for ``q >= qmin(r)`` the glide is ``j`` and its
+   odd steps ``c_j``, read in one look-up. Residues with no such ``j <= K``
+   (about 3% for 3x+1) leave the glide open: it is at most the steps to the
+   landing value (``v < T <= s``), so at most the delay, and :func:`_glide` finds it by
+   whole jumps while no value of the jump can be below ``s``
+   (``T^i(n) >= min_i(a^(c_i) 2^(K-i)) q``) and single steps otherwise.
+4. *Peaks skipped.* Every value of a jump from ``n`` is at most ``G q + L``
+   (``G``, ``L`` the largest ``a^(c_i) 2^(K-i)`` and ``T^i(r)`` over all rows
+   and ``i``), and an undivided value ``a v + b = 2 T(v)`` at most twice
+   that. A peak only matters when it beats the chunk's running record (the
+   record holders are the starts whose value beats every smaller start's),
+   so when ``G (top >> K) + L`` is at most the running peak record (and twice
+   it at most the undivided one), and the table's peaks of ``v`` are too, the
+   peaks are not computed: the start can set no peak record. Otherwise the
+   start takes the exact walk.
+5. *Four at a time.* :func:`_block` follows four consecutive starts side by
+   side, one jump of each per round, with no branches in the round (a start
+   below ``T`` stays put), so the four chains of dependent table loads
+   overlap. It only changes the order of the work; the records are tallied
+   start by start in increasing order afterwards (a record holder must be
+   compared with every smaller start's value first).
+
+Starts a shortcut does not settle take the exact walks, in this order: a
+start-by-start walk to the glide with jumps after it (:func:`_one_fast`,
+exact peaks when they can set a record), Brent's walk above (:func:`_one`),
+then the exact Python continuation. The delay, glide and odd-step counts, the
+distributions, the basins and the record holders are the same as the plain
+definition's (tests compare every shortcut and the whole walk with plain
+integers, and the walk with and without jumps).
+
+Fixed sizes (whatever the range): the table of ``2^20`` starts (40 MiB,
+five int64 per start) and its packed copy (8 MiB), the jump tables
+(``2^16`` rows, 2 MiB), the histograms up to the cap and the buffers.
 
 References
 ----------
 .. [1] R. P. Brent, "An improved Monte Carlo factorization algorithm",
    BIT 20 (1980) 176-184.
+.. [2] R. Terras, "A stopping time problem on the positive integers",
+   Acta Arith. 30 (1976) 241-252 (the first ``K`` parities of ``n`` depend
+   on ``n mod 2^K`` only).
 """
 
 from __future__ import annotations
@@ -581,7 +628,7 @@ def _exact_rows(
     for k in range(n):
         x = s + k
         if out[k, 0] == _GLIDE:
-            # the cycle's minimum comes after delay steps, and it is below x: so does the glide
+            # the landing value (< T <= x) comes within delay steps: so does the glide
             glide, godd = _glide(x, ma[1], mb[1], vmax[1], out[k, 1], jt, pw, gt, K)
             if glide >= 0:
                 out[k, 0] = _OK
