@@ -53,17 +53,16 @@ def test_jump_rows_glides_and_bounds_are_exact(name, side):
     # common practice, no source: every column of the jump tables against the plain steps
     a, b = _side_map(maps.get(name), side).ax_b
     K = _k(a)
-    jt, pw, gt, bnd = jump_tables(a, b, K)
+    jt, gt, bnd = jump_tables(a, b, K)
     G, L, Q = (int(x) for x in bnd)
     rnd = random.Random(a * 1000 + b)
     rows = [0, 1, 2, (1 << K) - 1] + [rnd.randrange(1 << K) for _ in range(150)]
     for r in rows:
-        c = int(jt[r, 0]) >> 48
-        B = int(jt[r, 0]) & ((1 << 48) - 1)
-        qmax = int(jt[r, 1])
-        assert pw[c] == a**c
-        assert a**c * qmax + B < 2**63 <= a**c * (qmax + 1) + B
-        assert Q <= qmax
+        c = int(jt[r, 1]) >> 48
+        B = int(jt[r, 1]) & ((1 << 48) - 1)
+        assert int(jt[r, 0]) == a**c
+        qmax = (2**63 - 1 - B) // a**c  # the row's own limit: Q is at most it
+        assert a**c * Q + B < 2**63 and Q <= qmax
         g = int(gt[r, 0])
         j, cj, qmin = g & 255, (g >> 8) & 255, g >> 16
         qs = {
@@ -223,7 +222,7 @@ def test_blocks_with_warm_records_keep_every_figure(name, side, place):
     cap = 400
     size = rec._TABLE_CONTRACTING if mm.drift_ratio() < 1 else rec._TABLE_EXPANDING
     tab, fast = rec._table(mm.divisor, tuple(tuple(b) for b in mm.branches), cap, size)
-    hot, tcmin, tmax, jt, pw, gt, bnd, K = fast
+    hot, tcmin, tmax, jt, gt, bnd, K = fast
     T = tab.shape[0]
     lo = max(PLACES[place](rnd), T)
     n = BLOCK - rnd.randrange(0, 7)
@@ -233,11 +232,11 @@ def test_blocks_with_warm_records_keep_every_figure(name, side, place):
         b5 = b4 if b4 < 2 else min(2 * b4 - rnd.randrange(2), 2**63 - 1)
         qlim = min((b4 - int(bnd[1])) // int(bnd[0]), (b5 // 2 - int(bnd[1])) // int(bnd[0]))
         out = np.zeros((BLOCK, 8), np.int64)
-        _block(lo, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, int(bnd[2]), b4, b5, out)
+        _block(lo, n, T, K, cap, jt, gt, hot, tcmin, tmax, tab, qlim, int(bnd[2]), b4, b5, out)
         skipped = int(((out[:n, 0] == 0) | (out[:n, 0] == 4)).sum())
         _exact_rows(
             lo, n, out, 2, km.multipliers, km.offsets, km.vmax, cap, True, True, T, tab, False,
-            hot, tcmin, tmax, jt, pw, gt, K, qlim, b4, b5,
+            hot, tcmin, tmax, jt, gt, K, int(bnd[2]), qlim, b4, b5,
         )  # fmt: skip
         for k, f in enumerate(figs):
             st, delay, odd, glide, uglide, peak, upk, cmin = (int(x) for x in out[k])

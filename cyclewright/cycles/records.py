@@ -771,7 +771,7 @@ _JUMP = 16
 
 
 def _fast_parts(mm: Map, tab, built: bool) -> tuple:
-    """``(hot, tcmin, tmax, jt, pw, gt, bnd, K)`` for the fast walk (one-row arrays: none).
+    """``(hot, tcmin, tmax, jt, gt, bnd, K)`` for the fast walk (one-row arrays: none).
 
     The tables are fixed in size (``2^K`` rows of the jump tables, the packed
     copy of the table of small starts), whatever the range.
@@ -783,7 +783,6 @@ def _fast_parts(mm: Map, tab, built: bool) -> tuple:
         np.zeros(1, np.int64),
         np.zeros(2, np.int64),
         np.zeros((1, 2), np.int64),
-        np.ones(1, np.int64),
         np.zeros((1, 2), np.int64),
         np.ones(3, np.int64),
         1,
@@ -797,11 +796,11 @@ def _fast_parts(mm: Map, tab, built: bool) -> tuple:
     k = _JUMP
     while k > 1 and a**k > 2**40:
         k -= 1
-    jt, pw, gt, bnd = jump_tables(a, b, k)
-    if (jt[:, 0] & ((1 << 48) - 1)).max() >= 2**47 or (gt[:, 0] >> 16).max() >= 2**46:
+    jt, gt, bnd = jump_tables(a, b, k)
+    if (jt[:, 1] & ((1 << 48) - 1)).max() >= 2**47 or (gt[:, 0] >> 16).max() >= 2**46:
         return none
     hot, tcmin, tmax = hot_table(tab, mm.step)
-    return hot, tcmin, tmax, jt, pw, gt, bnd, k
+    return hot, tcmin, tmax, jt, gt, bnd, k
 
 
 class _Accumulator:
@@ -834,7 +833,7 @@ class _Accumulator:
     def call(self, km, lo: int, hi: int, tab, fast: tuple, build: bool) -> int:
         from .records_kernel import walk_chunk
 
-        hot, tcmin, tmax, jt, pw, gt, bnd, k = fast
+        hot, tcmin, tmax, jt, gt, bnd, k = fast
         return int(
             walk_chunk(
                 lo,
@@ -852,7 +851,6 @@ class _Accumulator:
                 tcmin,
                 tmax,
                 jt,
-                pw,
                 gt,
                 bnd,
                 k,

@@ -182,24 +182,24 @@ def hot_table(tab: np.ndarray, step) -> tuple[np.ndarray, np.ndarray, np.ndarray
     return hot, mins.astype(np.int64), tmax
 
 
-def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """K steps of ``n -> n/2, (a n + b)/2`` at once, per residue ``r = n mod 2^K``.
 
     For ``n = 2^K q + r`` and ``0 <= i <= K``, ``T^i(n) = a^(c_i) 2^(K-i) q + T^i(r)``
     with ``c_i`` the odd steps among the first ``i`` steps of ``r`` (the
-    parities of those steps depend on ``r`` only). Returns ``(jt, pw, gt, bnd)``:
+    parities of those steps depend on ``r`` only). Returns ``(jt, gt, bnd)``:
 
-    - ``jt[r, 0] = T^K(r) | c_K << 48`` and ``jt[r, 1]`` the largest ``q`` with
-      ``a^(c_K) q + T^K(r) < 2^63``, so ``T^K(n) = pw[c_K] q + T^K(r)``;
-    - ``pw[c] = a^c``;
+    - ``jt[r, 0] = a^(c_K)`` and ``jt[r, 1] = T^K(r) | c_K << 48``, so
+      ``T^K(n) = jt[r, 0] q + T^K(r)`` (both loaded at once: the jump's chain
+      of dependent loads is one load long);
     - ``gt[r, 0] = j | c_j << 8 | qmin << 16`` when the glide of every ``n``
       of residue ``r`` with ``q >= qmin`` is ``j <= K`` (``T^i(n) >= n`` for
       ``i < j`` and ``T^j(n) < n``), ``0`` when the first ``K`` steps of ``r``
       do not settle it; ``gt[r, 1]`` the least ``a^(c_i) 2^(K-i)``,
       ``1 <= i <= K``, so that ``T^i(n) >= gt[r, 1] q`` for those ``i``;
     - ``bnd = [G, L, Q]``: every ``T^i(n)``, ``0 <= i <= K``, is at most
-      ``G q + L``; ``Q`` the least ``jt[r, 1]`` (a jump with ``q <= Q`` never
-      passes int64, whatever ``r``).
+      ``G q + L``; ``Q`` the largest ``q`` with ``a^(c_K) q + T^K(r) < 2^63``
+      for every row (a jump with ``q <= Q`` never passes int64).
 
     Needs ``a`` odd, ``a >= 1``, ``a + b >= 1`` (values of positive starts stay
     positive), ``b`` odd and ``a^K < 2^40``, ``|b| < 2^20``.
@@ -233,13 +233,13 @@ def jump_tables(a: int, b: int, K: int) -> tuple[np.ndarray, np.ndarray, np.ndar
         j = np.where(drop, i, j)
         cj = np.where(drop, c, cj)
     jt = np.zeros((n, 2), np.int64)
-    jt[:, 0] = x | (c << 48)
-    jt[:, 1] = (2**63 - 1 - x) // pw[c]
+    jt[:, 0] = pw[c]
+    jt[:, 1] = x | (c << 48)
     gt = np.zeros((n, 2), np.int64)
     gt[:, 0] = np.where(j > 0, j | (cj << 8) | (qmin << 16), 0)
     gt[:, 1] = amin
-    bnd = np.array([amax.max(), bmax.max(), jt[:, 1].min()], np.int64)
-    return jt, pw, gt, bnd
+    bnd = np.array([amax.max(), bmax.max(), ((2**63 - 1 - x) // pw[c]).min()], np.int64)
+    return jt, gt, bnd
 
 
 @njit(cache=True)
@@ -357,7 +357,7 @@ def _one(s, d, ma, mb, vmax, cap, undiv, use_table, T, tab):  # pragma: no cover
 
 @njit(cache=True)
 def _one_fast(
-    s, a, b, vmax1, cap, T, tab, hot, tcmin, tmax, jt, pw, gt, K, qlim, best_pk, best_upk
+    s, a, b, vmax1, cap, T, tab, hot, tcmin, tmax, jt, gt, K, qsafe, qlim, best_pk, best_upk
 ):  # pragma: no cover - compiled
     """:func:`_one` for ``ax+b`` maps whose values stay positive (a >= 1, a + b >= 1).
 
@@ -384,11 +384,11 @@ def _one_fast(
         if jumps:
             r = v & mask
             q = v >> K
-            if q <= jt[r, 1] and gt[r, 1] * q >= s:
+            if q <= qsafe and gt[r, 1] * q >= s:
                 if v > top:
                     top = v
-                e = jt[r, 0]
-                v = pw[e >> 48] * q + (e & _MASK48)
+                e = jt[r, 1]
+                v = jt[r, 0] * q + (e & _MASK48)
                 odd += e >> 48
                 i += K
                 jumped = True
@@ -428,12 +428,12 @@ def _one_fast(
     while v >= T:
         r = v & mask
         q = v >> K
-        if q > jt[r, 1] or i > cap:
+        if q > qsafe or i > cap:
             return (-1, 0, 0, 0, 0, 0, 0, 0)
         if v > top:
             top = v
-        e = jt[r, 0]
-        v = pw[e >> 48] * q + (e & _MASK48)
+        e = jt[r, 1]
+        v = jt[r, 0] * q + (e & _MASK48)
         odd += e >> 48
         i += K
         jumped = True
@@ -472,7 +472,7 @@ def _one_fast(
 
 
 @njit(cache=True)
-def _glide(s, a, b, vmax1, budget, jt, pw, gt, K):  # pragma: no cover - compiled
+def _glide(s, a, b, vmax1, budget, jt, gt, K, qsafe):  # pragma: no cover - compiled
     """The glide of ``s`` and its odd steps for positive ``ax+b`` walks, or ``(-1, 0)``.
 
     Whole jumps while no value of the jump can be below ``s`` (``gt[r, 1] q
@@ -487,9 +487,9 @@ def _glide(s, a, b, vmax1, budget, jt, pw, gt, K):  # pragma: no cover - compile
             return -1, 0
         r = v & mask
         q = v >> K
-        if q <= jt[r, 1] and gt[r, 1] * q >= s:
-            e = jt[r, 0]
-            v = pw[e >> 48] * q + (e & _MASK48)
+        if q <= qsafe and gt[r, 1] * q >= s:
+            e = jt[r, 1]
+            v = jt[r, 0] * q + (e & _MASK48)
             odd += e >> 48
             i += K
         elif v & 1:
@@ -505,27 +505,27 @@ def _glide(s, a, b, vmax1, budget, jt, pw, gt, K):  # pragma: no cover - compile
 
 
 @njit(cache=True, inline="always")
-def _lane_jump(v, nj, odd, top, T, K, mask, jt, pw):  # pragma: no cover - compiled
+def _lane_jump(v, nj, odd, top, T, K, mask, jt):  # pragma: no cover - compiled
     """One jump of one lane, without branches: ``v >= T`` jumps, else stays.
 
     ``nj`` counts the jumps, ``top`` is the largest value a jump started from.
     No overflow check: a jump from ``v`` is exact when ``v >> K`` is at most
-    every row's limit ``jt[r, 1]``, which the caller checks on ``top``
+    ``Q`` (:func:`jump_tables`), which the caller checks on ``top``
     afterwards (a lane past it is not used).
     """
     m = (T - 1 - v) >> 63  # -1 when v >= T, else 0
     r = v & mask
     q = v >> K
-    e = jt[r, 0]
+    e = jt[r, 1]
     c = e >> 48
-    nv = pw[c] * q + (e & _MASK48)
+    nv = jt[r, 0] * q + (e & _MASK48)
     top = top if top >= v else v
     v = v ^ ((v ^ nv) & m)
     return v, nj - m, odd + (c & m), top
 
 
 @njit(cache=True)
-def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, qsafe, best_pk, best_upk, out):
+def _block(s, n, T, K, cap, jt, gt, hot, tcmin, tmax, tab, qlim, qsafe, best_pk, best_upk, out):
     # pragma: no cover - compiled
     """The fast figures of the starts ``s .. s+n-1`` (every one ``>= T``), four side by side.
 
@@ -538,8 +538,8 @@ def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, qsafe, best
     delay, a landing on a cycle, or a path whose peaks may reach ``best_pk`` /
     ``best_upk`` (jumped values are at most ``G (top >> K) + L``, see
     :func:`jump_tables`; they stay within the records when ``top >> K <=
-    qlim``). Every jump is exact when ``top >> K <= qsafe``, the least row
-    limit ``jt[r, 1]``. The four chains of dependent loads overlap; a lane that
+    qlim``). Every jump is exact when ``top >> K <= qsafe`` (``Q`` of
+    :func:`jump_tables`). The four chains of dependent loads overlap; a lane that
     is done stays put while the others jump.
     """
     mask = (1 << K) - 1
@@ -554,10 +554,10 @@ def _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, qsafe, best
         t0, t1, t2, t3 = v0, v1, v2, v3
         steps = 0
         while ((v0 >= T) | (v1 >= T) | (v2 >= T) | (v3 >= T)) & (steps <= cap):
-            v0, i0, o0, t0 = _lane_jump(v0, i0, o0, t0, T, K, mask, jt, pw)
-            v1, i1, o1, t1 = _lane_jump(v1, i1, o1, t1, T, K, mask, jt, pw)
-            v2, i2, o2, t2 = _lane_jump(v2, i2, o2, t2, T, K, mask, jt, pw)
-            v3, i3, o3, t3 = _lane_jump(v3, i3, o3, t3, T, K, mask, jt, pw)
+            v0, i0, o0, t0 = _lane_jump(v0, i0, o0, t0, T, K, mask, jt)
+            v1, i1, o1, t1 = _lane_jump(v1, i1, o1, t1, T, K, mask, jt)
+            v2, i2, o2, t2 = _lane_jump(v2, i2, o2, t2, T, K, mask, jt)
+            v3, i3, o3, t3 = _lane_jump(v3, i3, o3, t3, T, K, mask, jt)
             steps += K
         for k in range(m):
             if k == 0:
@@ -611,9 +611,9 @@ def _exact_rows(
     tcmin,
     tmax,
     jt,
-    pw,
     gt,
     K,
+    qsafe,
     qlim,
     best_pk,
     best_upk,
@@ -629,7 +629,7 @@ def _exact_rows(
         x = s + k
         if out[k, 0] == _GLIDE:
             # the landing value (< T <= x) comes within delay steps: so does the glide
-            glide, godd = _glide(x, ma[1], mb[1], vmax[1], out[k, 1], jt, pw, gt, K)
+            glide, godd = _glide(x, ma[1], mb[1], vmax[1], out[k, 1], jt, gt, K, qsafe)
             if glide >= 0:
                 out[k, 0] = _OK
                 out[k, 3] = glide
@@ -652,9 +652,9 @@ def _exact_rows(
                 tcmin,
                 tmax,
                 jt,
-                pw,
                 gt,
                 K,
+                qsafe,
                 qlim,
                 best_pk,
                 best_upk,
@@ -709,7 +709,6 @@ def walk_chunk(
     tcmin,
     tmax,
     jt,
-    pw,
     gt,
     bnd,
     K,
@@ -737,7 +736,7 @@ def walk_chunk(
     record, hard or unresolved buffer is full (the caller empties it and calls
     again from the returned start). With ``build`` the starts below ``T`` fill
     the table ``tab`` (the fast walk then reads ``tab`` itself and never jumps).
-    ``jt, pw, gt, bnd, K`` are :func:`jump_tables` (``jt`` of one row: no jumps).
+    ``jt, gt, bnd, K`` are :func:`jump_tables` (``jt`` of one row: no jumps).
     """
     fast = d == 2 and undiv and ma[0] == 1 and mb[0] == 0 and ma[1] >= 1 and ma[1] + mb[1] >= 1
     lanes = fast and not build and jt.shape[0] > 1 and hot.shape[0] > 1
@@ -762,7 +761,7 @@ def walk_chunk(
         # top >> K <= qlim: G q + L <= b4 and 2 (G q + L) <= b5
         qlim = min((b4 - bnd[1]) // bnd[0], (b5 // 2 - bnd[1]) // bnd[0])
         if lanes and s >= T:
-            _block(s, n, T, K, cap, jt, pw, gt, hot, tcmin, tmax, tab, qlim, bnd[2], b4, b5, out)
+            _block(s, n, T, K, cap, jt, gt, hot, tcmin, tmax, tab, qlim, bnd[2], b4, b5, out)
         else:
             out[:n, 0] = _WALK
         _exact_rows(
@@ -783,9 +782,9 @@ def walk_chunk(
             tcmin,
             tmax,
             jt,
-            pw,
             gt,
             K,
+            bnd[2],
             qlim,
             b4,
             b5,
