@@ -543,6 +543,8 @@ def _block(s, n, T, K, cap, jt, gt, hot, tcmin, tmax, tab, qlim, qsafe, best_pk,
     is done stays put while the others jump.
     """
     mask = (1 << K) - 1
+    qcut = min(qlim, qsafe)
+    table_peaks = tmax[0] > best_pk or tmax[1] > best_upk  # else the table's peaks never matter
     for g in range(0, n, LANES):
         m = min(LANES, n - g)
         v0 = s + g
@@ -570,14 +572,12 @@ def _block(s, n, T, K, cap, jt, gt, hot, tcmin, tmax, tab, qlim, qsafe, best_pk,
                 v, i, o, t = v3, i3 * K, o3, t3
             row = g + k
             out[row, 0] = _WALK
-            if v >= T or (t >> K) > qlim or (t >> K) > qsafe:
+            if v >= T or (t >> K) > qcut:
                 continue
             e = hot[v]
             if e < 0 or (e >> 61) & 1 or i + (e & _MASK20) > cap:
                 continue
-            if tmax[0] > best_pk and tab[v, 2] > best_pk:
-                continue
-            if tmax[1] > best_upk and tab[v, 3] > best_upk:
+            if table_peaks and (tab[v, 2] > best_pk or tab[v, 3] > best_upk):
                 continue
             x = s + row
             ge = gt[x & mask, 0]
