@@ -287,3 +287,94 @@ def test_graph_bound_is_known_before_the_walk():
     # the starts of a quick graph stay well inside the bound: it gives its result
     g = cw.functional_graph("3x+1", 100, max_steps=10**9)
     assert g.cycle_minima() == [1] and g.graph.number_of_nodes() <= big.nodes
+
+
+# ---------------------------------------------------------------- audit of the extremes
+# Found by re-running the extremes as a hostile tester would (the project's rule for
+# bad input and huge values, docs/limits.md; common practice, no source).
+
+
+def test_huge_results_of_the_api_print_under_pythons_digit_limit():
+    # valid types whose figures pass 4300 digits: computed and shown without lifting
+    # Python's limit on integer/text conversion (the command line lifts it; the API must not need it)
+    import sys
+
+    import cyclewright as cw
+
+    assert sys.get_int_max_str_digits() in (0, 4300)
+    old = sys.get_int_max_str_digits()
+    sys.set_int_max_str_digits(4300)
+    try:
+        c = cw.count("3x+1", 20000, 12619)  # D = 2^20000 - 3^12619 has 6021 digits
+        assert "digits" in repr(c) and "necklaces exceed the limit" in c.enumeration_note
+        r = cw.solve("3x+1", "1^10000")  # the cycle of 1^10000: elements of about 4771 digits
+        assert "digits" in repr(r)
+        assert (
+            "digits" in cw.count("3x+1", 20, 12, limit=10**5000).enumeration_note
+        )  # the limit as a threshold
+    finally:
+        sys.set_int_max_str_digits(old)
+
+
+def test_count_of_a_long_type_with_one_odd_step_has_a_bound():
+    # k = 2000, x = 1: Lambda = 2000 ln 2 - ln 3 is far above what exp() takes; the real
+    # bound is then below 1 (its float estimate used to overflow): 2^2000 - 3 > 0, exact
+    import cyclewright as cw
+
+    c = cw.count("3x+1", 2000, 1, limit=0)
+    assert c.denominator == 2**2000 - 3 and c.necklaces == 1
+
+
+def test_count_refuses_an_enumeration_estimated_too_long(monkeypatch):
+    import cyclewright as cw
+    from cyclewright.cycles import counting
+
+    # one necklace of length 10^5 costs minutes (each letter's rotation compared, numerators
+    # of 10^5 bits): refused before it starts
+    with pytest.raises(cw.InputError, match="would take about"):
+        cw.count("3x+1", 100_000, 1)
+    # the mechanism at a small size: a budget of 0 s refuses, lift_limits lets it through
+    monkeypatch.setattr(counting, "MAX_ENUMERATION_SECONDS", 0.0)
+    with pytest.raises(cw.InputError, match="would take about"):
+        cw.count("3x+1", 13, 8)
+    with cw.lift_limits():
+        assert cw.count("3x+1", 13, 8).necklaces == 99  # Lagarias 1985 counts, from memory
+
+
+def test_sweep_refuses_a_run_estimated_too_long(monkeypatch):
+    import cyclewright as cw
+    from cyclewright.cycles import sweep as sweep_module
+
+    monkeypatch.setattr(sweep_module, "MAX_SWEEP_SECONDS", 0.0)
+    with pytest.raises(cw.InputError, match="would take about .* narrow the range of x"):
+        cw.sweep("3x+1", range(1, 41))
+    with cw.lift_limits():
+        assert len(cw.sweep("3x+1", range(1, 41))) == 40
+
+
+def test_sweep_contents_are_iterative_for_large_divisors():
+    # every way to write x as d - 1 counts, in the order of the plain recursive definition
+    from cyclewright.cycles.sweep import _contents_rest
+
+    def plain(total, parts):
+        if parts == 1:
+            yield (total,)
+            return
+        for first in range(total, -1, -1):
+            for rest in plain(total - first, parts - 1):
+                yield (first, *rest)
+
+    for d in range(2, 7):
+        for x in range(0, 6):
+            assert list(_contents_rest(d, x)) == list(plain(x, d - 1))
+    # divisor 1000: stars and bars, C(2 + 998, 998) contents, and no recursion depth
+    assert sum(1 for _ in _contents_rest(1000, 2)) == 499_500
+
+
+def test_scan_of_growing_orbits_refuses_a_step_cap_beyond_memory():
+    # 5x+1 orbits grow on average: at a step cap of 10^9 each worker would keep 8 GB of
+    # history (the compiled kernel allocated it and died with MemoryError)
+    import cyclewright as cw
+
+    with pytest.raises(cw.InputError, match="orbits grow on average.*lower --max-steps"):
+        cw.scan("5x+1", 1000, max_steps=10**9, store=False, workers=1)

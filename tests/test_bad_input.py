@@ -508,3 +508,114 @@ def test_old_spelling_note_joins_a_refusal_in_the_command_body(ws, capsys):
     code, out, err = run_main(["sweep", "3x+1", "--odd", "1..3", "--rows", "2"], capsys)
     assert code == 0 and out
     assert err.strip().splitlines()[-1] == "note: --rows is an old spelling of --show"
+
+
+# ---------------------------------------------------------------- audit of the extremes
+MAP_DIV_1000 = "[big]\ndivisor = 1000\n" + "".join(
+    f"branches.{r} = {{multiplier = 1001, offset = {-r}}}\n" for r in range(1000)
+)
+
+AUDIT_CASES: list[tuple[str, list[str]]] = [
+    # an output where no file can be created: refused before the work, not an internal failure
+    ("orbit-plot-unwritable-dir", ["orbit", "3x+1", "27", "--plot", "/proc/x.png"]),
+    ("sweep-csv-unwritable-dir", ["sweep", "3x+1", "--odd", "1..3", "--csv", "/proc/x.csv"]),
+    ("study-out-unwritable", ["study", "study_ok.toml", "--out", "/proc/o"]),
+    ("study-out-under-a-file", ["study", "study_ok.toml", "--out", "good.toml/o"]),
+    ("demo-out-unwritable", ["demo", "--out", "/proc/d"]),
+    (
+        "census-certificate-no-dir",
+        ["census", "3x+5", "--max-length", "8", "--no-store", "--certificate", "nodir/c.json"],
+    ),
+    (
+        "census-certificate-is-the-store",
+        [
+            "census",
+            "3x+5",
+            "--max-length",
+            "8",
+            "--store",
+            "new.sqlite",
+            "--certificate",
+            "new.sqlite",
+        ],
+    ),
+    # an output that is an input of the command, even with --force
+    (
+        "sweep-csv-is-the-map-file",
+        ["sweep", "tri", "--odd", "1..3", "--maps", "good.toml", "--csv", "good.toml", "--force"],
+    ),
+    (
+        "graph-gexf-is-the-map-file",
+        ["graph", "tri", "--to", "10", "--maps", "good.toml", "--gexf", "good.toml", "--force"],
+    ),
+    (
+        "sweep-csv-is-the-store",
+        [
+            "sweep",
+            "3x+1",
+            "--odd",
+            "1..3",
+            "--csv",
+            "store.sqlite",
+            "--force",
+            "--maps",
+            "store.sqlite",
+        ],
+    ),
+    # two outputs naming one file
+    (
+        "sweep-plot-and-csv-same",
+        ["sweep", "3x+1", "--odd", "1..10", "--plot", "a.png", "--csv", "a.png"],
+    ),
+    ("compare-plot-and-csv-same", ["compare", "3x+1", "--plot", "a.png", "--csv", "a.png"]),
+    ("scan-store-empty-path", ["scan", "3x+1", "--to", "100", "--store", ""]),
+    # work that would not finish, refused before it starts
+    ("sweep-divisor-1000", ["sweep", "big", "--odd", "1..2", "--maps", "div1000.toml"]),
+    ("count-one-odd-step-10^5", ["count", "3x+1", "--length", "100000", "--odd", "1"]),
+    (
+        "scan-growing-orbits-step-cap",
+        ["scan", "5x+1", "--to", "1000", "--max-steps", "10^9", "--no-store"],
+    ),
+    # a map file that is a pipe: opening it would wait for a writer forever
+    ("mapfile-fifo", ["maps", "--maps", "pipe.toml"]),
+]
+
+
+@pytest.mark.parametrize("args", [c[1] for c in AUDIT_CASES], ids=[c[0] for c in AUDIT_CASES])
+def test_audit_cases_are_one_line_exit_2_and_change_nothing(ws, args, capsys):
+    import os
+
+    (ws / "div1000.toml").write_text(MAP_DIV_1000)
+    os.mkfifo(ws / "pipe.toml")
+    before = _snapshot(ws)
+    code, out, err = run_main(args, capsys)
+    lines = err.strip().splitlines()
+    assert code == 2, (code, err[:500])
+    assert len(lines) == 1 and lines[0].startswith("error: "), err[:500]
+    assert "Traceback" not in err and "internal failure" not in err
+    assert out == "", out[:300]
+    assert _snapshot(ws) == before
+
+
+def test_valid_long_type_counts_where_its_float_estimate_overflowed(ws, capsys):
+    # k = 2000, x = 1: the bound's float estimate overflowed (internal failure); a valid type
+    code, out, err = run_main(["count", "3x+1", "--length", "2000", "--odd", "1"], capsys)
+    assert code == 0 and "internal failure" not in err and "k=2000, x=1" in out
+
+
+def test_certificate_with_a_huge_bound_or_repeated_cycles_fails_its_check(ws, capsys):
+    # a tampered certificate is "does not hold" (exit 1, fields named), never an internal
+    # failure, and a cycle repeated many times is found before any is iterated
+    good = json.loads((ws / "cert.json").read_text())
+    huge = json.loads(json.dumps(good))
+    huge["plans"]["positive"]["bound"] = 10**4000
+    (ws / "huge_bound.json").write_text(json.dumps(huge))
+    many = json.loads(json.dumps(good))
+    many["cycles"] = many["cycles"] * 20000
+    (ws / "many.json").write_text(json.dumps(many))
+    for name in ("huge_bound.json", "many.json"):
+        code, out, err = run_main(["verify", name], capsys)
+        assert code == 1 and "internal failure" not in err, (name, err[:300])
+        assert "does NOT hold" in out
+    code, out, _ = run_main(["verify", "many.json"], capsys)
+    assert "listed twice" in out

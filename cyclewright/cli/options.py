@@ -635,6 +635,8 @@ def resolve_store(store: str | None, no_store: bool) -> str | bool | None:
         raise BadInput("--store and --no-store exclude each other")
     if no_store:
         return False
+    if store is not None and not str(store).strip():
+        raise BadInput("--store: the path is empty")
     if not store:
         return None
     p = Path(store)

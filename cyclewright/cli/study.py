@@ -627,7 +627,12 @@ def run_study(
     params = {"study": jsonable(study.to_dict())}
     _check_out_dir(out_dir, params, force)
     rates = _preflight(study, workers)  # refusals before anything is written
-    out_dir.mkdir(parents=True, exist_ok=True)
+    try:
+        out_dir.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise StudyError(
+            f"--out {out}: cannot create the directory ({exc.strerror or exc})"
+        ) from None
     # Mark the folder as this study's at once: a run killed midway resumes
     # here without --force (its stores keep what was finished).
     sj = out_dir / "study.json"

@@ -817,6 +817,10 @@ def _bound_floor(m: Map, K: int, side: str, above: int) -> tuple[int, tuple[int,
         return None
     growth = (b if side == "positive" else -b) > 0
     want = "above" if growth else "below"  # growth: 2^k > a^x, so k/x lies above log_2 a
+    try:
+        above_f = float(above)
+    except OverflowError:  # no bound of a length up to K comes near a recorded bound this large
+        return None
     tries = 0
     for s in semiconvergents(continued_fraction_log(a, 2, 40)):
         if s.p > min(K, _EXACT_BOUND_LENGTH) or tries >= 3:
@@ -828,7 +832,7 @@ def _bound_floor(m: Map, K: int, side: str, above: int) -> tuple[int, tuple[int,
             estimate = math.inf
         else:
             estimate = abs(b) / a * (1 + s.q / lam)
-        if estimate <= above * (1 + 1e-6) + 2:
+        if estimate <= above_f * (1 + 1e-6) + 2:
             continue
         tries += 1
         content = (s.p - s.q, s.q)
@@ -1146,6 +1150,17 @@ def _verify(doc, v, rescan, workers, minutes, progress, estimator) -> None:
         return
     if not _structure(doc, m, v):
         return
+    # a cycle listed twice is found before any is iterated (a file repeating one cycle
+    # many times would otherwise cost an exact iteration per copy)
+    seen: dict = {}
+    for i, rec in enumerate(doc["cycles"]):
+        j = seen.setdefault((rec.get("side"), rec.get("minimum")), i)
+        if j != i:
+            v.problems.append(
+                f"cycles[{i}]: the cycle with minimum {rec['minimum']} is listed twice "
+                f"(also cycles[{j}])"
+            )
+            return
     cycles = _cycles(doc, m, v, progress)
     if cycles is not None:
         _regenerate(doc, m, cycles, v)

@@ -63,7 +63,14 @@ from .integer_cycle import IntegerCycle, cycle_from_element
 from .intervals import Interval, _log_form
 from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED
-from .limits import check_range, check_type_length
+from .limits import (
+    MAX_ENUMERATION_SECONDS,
+    check_range,
+    check_type_length,
+    int_digits,
+    limits_lifted,
+    short_int,
+)
 from .linear_forms import (
     LinearFormBound,
     _best_approximation_form,
@@ -98,8 +105,9 @@ DEFAULT_SWEEP_LIMIT = 10**4
 """The same for each row of a ``sweep`` (kept small so that sweeps stay interactive)."""
 
 _BYTES_PER_LISTED = 240  # an IntegerCycle without its strings and elements, CPython, roughly
-_SECONDS_PER_LETTER = 2e-7  # enumeration cost per necklace letter on a 2020s CPU (rough)
-_MAX_SECONDS = 86400.0  # enumerations estimated above a day are refused
+# enumeration cost per necklace letter, growing with k (numerators of about k bits); measured
+# on 3x+1 for k = 30 .. 1004 (1.1e-6 .. 2.0e-5 s a letter), rough on any other machine
+_SECONDS_PER_LETTER = 1e-6
 
 
 # ------------------------------------------------------------------ results
@@ -505,10 +513,11 @@ class TypeCount(OfContent, Presentable):
 
 
 def _short(n: int) -> str:
-    s = str(n)
-    if len(s.lstrip("-")) <= 24:
-        return s
-    return f"{s[:6]}…({len(s.lstrip('-'))} digits)"
+    # never converts a huge integer whole (Python refuses more than 4300 digits as text)
+    d = int_digits(n)
+    if d <= 24:
+        return str(n)
+    return f"{short_int(n, 6).split('…')[0]}…({d} digits)"
 
 
 def _fmt_log10(l10: float) -> str:
@@ -607,8 +616,8 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
     necklace is an integer cycle and is listed, ``240 + 2k`` bytes each plus
     its ``k`` elements (a pointer and an integer of about ``k`` bits each:
     ``k (36 + k // 8)`` bytes).
-    Time: about ``2e-7 (1 + k/2000)`` seconds per letter (rough; numerators
-    have about ``k`` bits).
+    Time: about ``1e-6 (1 + k/50)`` seconds per letter (rough; numerators
+    have about ``k`` bits, and each necklace's rotations are compared).
 
     >>> mem, secs = enumeration_estimate(10**6, 30)
     >>> mem
@@ -617,7 +626,7 @@ def enumeration_estimate(necklaces: int, k: int) -> tuple[int, float]:
     per = _BYTES_PER_LISTED + 2 * k + k * (36 + k // 8)
     # numerators have about k bits: big-integer steps slow down for long words
     work = float(min(necklaces * k, 10**300))  # beyond floats the estimate is "forever" anyway
-    secs = work * _SECONDS_PER_LETTER * (1 + k / 2000)
+    secs = work * _SECONDS_PER_LETTER * (1 + k / 50)
     return necklaces * per, (secs if necklaces * k < 10**300 else float("inf"))
 
 
@@ -649,7 +658,7 @@ def count(
         Enumerate the necklaces when there are at most this many
         (default ``10**6``). A limit that would let the enumeration list
         more integer cycles than half the memory holds, or run for more than
-        a day, is refused (:class:`~cyclewright.cycles.errors.InputError`, with the estimate).
+        :data:`~cyclewright.cycles.limits.MAX_ENUMERATION_SECONDS` (liftable), is refused (:class:`~cyclewright.cycles.errors.InputError`, with the estimate).
     progress : ProgressCallback, optional
         Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
         (phase ``"enumerate"``, unit ``"necklaces"``) every 65536 necklaces
@@ -738,7 +747,7 @@ def _count_content(
                 f"{_fmt_bytes(mem)} to list integer cycles (budget {_fmt_bytes(budget)}) and about "
                 f"{duration_text(secs)}; lower the limit"
             )
-        if secs > _MAX_SECONDS:
+        if secs > MAX_ENUMERATION_SECONDS and not limits_lifted():
             raise InputError(
                 f"enumerating {_sci(neck)} necklaces of length {kk} (allowed by the limit "
                 f"{_fmt_count(limit)}) would take about {duration_text(secs)}; lower the limit"
@@ -754,14 +763,14 @@ def _count_content(
                 "unrealized": EXACT.value,
             }
         )
-        note = f"all {neck} necklaces enumerated (limit {limit})"
+        note = f"all {short_int(neck)} necklaces enumerated (limit {short_int(limit)})"
     else:
         smallest = largest = None
         cycles = None
         unrealized = None
         cand = mb.integer if mb.applies else None
         labels["candidates"] = PROVED.value  # None when no bound applies (nothing claimed)
-        note = f"not enumerated: {neck} necklaces exceed the limit {limit}"
+        note = f"not enumerated: {short_int(neck)} necklaces exceed the limit {short_int(limit)}"
     if m.multipliers_prime_to_divisor():
         followed, real_neck, real_prim = words, neck, prim
     else:

@@ -63,6 +63,8 @@ __all__ = [
     "MAX_COMPARE_TO",
     "MAX_COMPARE_SCAN",
     "MAX_EXTRA_LENGTHS",
+    "MAX_SWEEP_SECONDS",
+    "MAX_ENUMERATION_SECONDS",
     "MAX_NEXT_TYPES",
     "MAX_GRAPH_STARTS",
     "MAX_GRAPH_NODES",
@@ -203,6 +205,15 @@ MAX_TYPE_LENGTH = 100_000
 
 #: Most further lengths per x a sweep adds beyond the critical one.
 MAX_EXTRA_LENGTHS = 1000
+
+#: Longest necklace enumeration of one type (``count``'s ``limit``), estimated
+#: before it starts (seconds; liftable).
+MAX_ENUMERATION_SECONDS = 60.0
+
+#: Longest sweep run (seconds), estimated before it starts from a few of its
+#: rows timed at x spread over the range (the cost of a row grows with x, its
+#: length and the necklaces it enumerates); liftable.
+MAX_SWEEP_SECONDS = 60.0
 
 #: Most further possible types a floor lists.
 MAX_NEXT_TYPES = 1000

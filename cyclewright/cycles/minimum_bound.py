@@ -212,7 +212,10 @@ def _estimate(st: _Setup, lam: float) -> float:
     if len(st.S) == 1:
         a, b, c = st.S[0]
         beta = b / a
-        den = math.expm1(lam / c)
+        try:
+            den = math.expm1(lam / c)
+        except OverflowError:  # Λ/c above ~709: the real bound is below 10^-300, i.e. about 0
+            return 0.0
         if den == 0:
             return math.inf
         return beta / den

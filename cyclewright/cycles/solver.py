@@ -38,6 +38,7 @@ from .itinerary import (
     primitive_root,
 )
 from .labels import EXACT
+from .limits import short_int
 
 __all__ = ["RationalCycle", "solve", "cycle_representative", "lagarias_primitive"]
 
@@ -211,14 +212,23 @@ class RationalCycle:
         w = format_itinerary(self.itinerary, self.map.divisor)
         if self.fixed_point is None:
             return f"RationalCycle({self.map.label}, {w}: {self.note})"
-        shown = ", ".join(str(e) for e in self.elements[:8]) + (
+        shown = ", ".join(_short_value(e) for e in self.elements[:8]) + (
             ", ..." if len(self.elements) > 8 else ""
         )
         kind = "integral" if self.integral else "rational"
         extra = "" if self.realized else " (itinerary not realized)"
         return (
-            f"RationalCycle({self.map.label}, {w}: {kind} {{{shown}}}, D={self.denominator}{extra})"
+            f"RationalCycle({self.map.label}, {w}: {kind} {{{shown}}}, "
+            f"D={short_int(self.denominator)}{extra})"
         )
+
+
+def _short_value(v) -> str:
+    # an element for the repr: integers and rationals of any size, never converted whole
+    # (Python refuses integers of more than 4300 digits as text)
+    if isinstance(v, Fraction) and v.denominator != 1:
+        return f"{short_int(v.numerator)}/{short_int(v.denominator)}"
+    return short_int(int(v))
 
 
 def solve(m: Map, itinerary: str | Sequence[int]) -> RationalCycle:

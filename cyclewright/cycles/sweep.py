@@ -35,13 +35,14 @@ from .errors import InputError
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED
 from .limits import (
     MAX_EXTRA_LENGTHS,
+    MAX_SWEEP_SECONDS,
     MAX_TYPE_LENGTH,
     check_members,
     check_range,
     check_type_length,
     limits_lifted,
 )
-from .presentation import Presentable, Table
+from .presentation import Presentable, Table, duration_text
 from .progress import ProgressCallback, report
 from .sides import DEFAULT_SIDE, PerSide, Side, on_sides, parse_side
 
@@ -181,15 +182,21 @@ def _contents_rest(d: int, x: int):
         yield (x,)
         return
 
-    def rec(total, parts):
-        if parts == 1:
-            yield (total,)
+    # every way to write x as d - 1 counts, the first count falling from x to 0 (descending
+    # lexicographic order); iterative, so a divisor of 1000 is no deeper than one of 3
+    parts = d - 1
+    comp = [x] + [0] * (parts - 1)
+    while True:
+        yield tuple(comp)
+        i = parts - 2
+        while i >= 0 and comp[i] == 0:
+            i -= 1
+        if i < 0:
             return
-        for first in range(total, -1, -1):
-            for rest in rec(total - first, parts - 1):
-                yield (first, *rest)
-
-    yield from rec(x, d - 1)
+        comp[i] -= 1
+        comp[i + 1] = sum(comp[i + 1 :]) + 1
+        for j in range(i + 2, parts):
+            comp[j] = 0
 
 
 @dataclass
@@ -461,7 +468,54 @@ def sweep(
         raise InputError(
             f"this sweep would have about {n_rest * (extra_lengths + 1)} rows; narrow the range of x"
         )
+    if not limits_lifted():
+        _check_time(m, xs, extra_lengths, side, limit)
     return on_sides(side, lambda s: _sweep(m, xs, extra_lengths, s, limit, progress))
+
+
+def _check_time(m: Map, xs: list[int], extra_lengths: int, side: str, limit: int) -> None:
+    """Refuse a sweep whose estimated time is above :data:`MAX_SWEEP_SECONDS`, before it runs.
+
+    The values of x are cut into at most 16 consecutive groups; the largest x of
+    each group (rows cost more as x grows) has its first and last rows timed, and
+    the group counts as that many times its size. Building the rows' lengths is
+    timed with them, since for large x it costs as much as a row. Timing stops
+    after a few seconds (the estimate then covers the groups timed so far).
+    """
+    d = m.divisor
+    groups = min(len(xs), 16)
+    bounds = [round(i * len(xs) / groups) for i in range(groups + 1)]
+    sides = ["positive", "negative"] if side == "both" else [side]
+    _count_content(m, (1, *next(_contents_rest(d, 1))), limit, None)  # warm caches, untimed
+    started = time.perf_counter()
+    estimate, complete = 0.0, True
+    for g in range(groups):
+        x = xs[bounds[g + 1] - 1]
+        n_contents = math.comb(x + d - 2, d - 2) if d > 2 else 1
+        for s in sides:
+            per_content = []
+            for rest in itertools.islice(_contents_rest(d, x), 2):
+                t0 = time.perf_counter()
+                lengths = critical_lengths(m, rest, extra_lengths, s)
+                t_lengths = time.perf_counter() - t0
+                picked = sorted({lengths[0], lengths[-1]}) if lengths else []
+                t0 = time.perf_counter()
+                for kk in picked:
+                    _count_content(m, (kk - x, *rest), limit, None, side_hint=s)
+                t_rows = (time.perf_counter() - t0) / max(len(picked), 1)
+                per_content.append(t_lengths + t_rows * len(lengths))
+            size = (bounds[g + 1] - bounds[g]) * n_contents
+            estimate += size * sum(per_content) / len(per_content)
+        if time.perf_counter() - started > 5.0 and g < groups - 1:
+            complete = False
+            break
+    if estimate > MAX_SWEEP_SECONDS:
+        raise InputError(
+            f"this sweep (x up to {xs[-1]}, {extra_lengths} extra lengths) would take about "
+            f"{duration_text(estimate)}{'' if complete else ' or more'} here (estimated from "
+            f"rows timed now); one sweep runs at most about {duration_text(MAX_SWEEP_SECONDS)}: "
+            "narrow the range of x or split it"
+        )
 
 
 def _sweep(m: Map, xs: list[int], extra_lengths: int, side: str, limit: int, progress) -> Sweep:

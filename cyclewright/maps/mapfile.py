@@ -111,6 +111,8 @@ def read_limited(
     p = Path(path)
     if p.is_dir():
         raise error(f"{p}: is a directory, not a {what}")
+    if p.exists() and not p.is_file():  # a pipe or a device: opening may wait forever
+        raise error(f"{p}: is not a regular file, not a {what}")
     try:
         with open(p, "rb") as fh:
             size = os.fstat(fh.fileno()).st_size

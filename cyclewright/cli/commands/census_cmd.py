@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import os
+from pathlib import Path
+
 import click
 
 from cyclewright.cycles.census import (
@@ -15,6 +18,7 @@ from cyclewright.cycles.census import (
 from cyclewright.cycles.certificate import write_certificate
 
 from ..errors import BadInput
+from ..files import check_output
 from ..options import (
     IntExpr,
     all_offsets_option,
@@ -121,6 +125,13 @@ def census_cmd(
         raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
     check_census_length(m, K, method)
+    # the certificate's path is checked before the census runs, not after it
+    cert_file = check_output(cert_path, "--certificate")
+    store_path = kw["store"]
+    if cert_file is not None and isinstance(store_path, (str, os.PathLike)):
+        s = Path(store_path)
+        if s.resolve() == cert_file.resolve():
+            raise BadInput("--certificate and --store name the same file")
     if plan_only:
         _plan(m, K, side, method, workers, max_scan, as_json)
         return

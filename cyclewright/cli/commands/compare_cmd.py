@@ -14,7 +14,7 @@ from cyclewright.cycles.records import RECORDS_STORE_ABOVE
 from cyclewright.maps import MapError, parse_shorthand
 
 from ..errors import BadInput
-from ..files import check_figure_path, check_output
+from ..files import check_distinct, check_figure_path, check_output
 from ..options import (
     all_offsets_option,
     csv_option,
@@ -141,6 +141,7 @@ def compare_cmd(
     check_compare(
         **{k: v for k, v in given.items() if v is not None}, max_steps=max_steps, workers=workers
     )
+    check_distinct(csv_path, plot_path)
     check_output(csv_path, "--csv")
     check_figure_path(plot_path, "--plot")
     ms = resolve_maps(map_specs, offsets, map_files, all_offsets)

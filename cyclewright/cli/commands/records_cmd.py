@@ -12,7 +12,7 @@ from cyclewright.cycles.records import records
 from cyclewright.cycles.records_plan import check_minutes, check_plan, plan_records
 
 from ..errors import BadInput
-from ..files import atomic_write, check_figure_path, check_output
+from ..files import atomic_write, check_distinct, check_figure_path, check_output
 from ..options import (
     csv_option,
     executor_options,
@@ -131,6 +131,7 @@ def records_cmd(
         raise BadInput("--json and --latex exclude each other")
     if csv_path == "-" and (as_json or as_latex):
         raise BadInput("--csv - writes to stdout; give --csv a file name with --json or --latex")
+    check_distinct(csv_path, plot_path)
     if csv_path != "-":
         check_output(csv_path, "--csv", force)
     check_figure_path(plot_path, "--plot", force)

@@ -13,7 +13,7 @@ from cyclewright.cycles.sides import PerSide
 from cyclewright.cycles.sweep import sweep
 
 from ..errors import BadInput
-from ..files import atomic_write, check_figure_path, check_output
+from ..files import atomic_write, check_distinct, check_figure_path, check_output
 from ..options import (
     IntExpr,
     csv_option,
@@ -95,6 +95,7 @@ def sweep_cmd(
         limit = DEFAULT_SWEEP_LIMIT
     if as_json and csv_path == "-":
         raise BadInput("--json and --csv - both write to stdout; give --csv a file name")
+    check_distinct(csv_path, plot_path)
     for path, what in ((csv_path, "--csv"), (plot_path, "--plot")):
         check_output(path, what, force)
     check_figure_path(plot_path, "--plot", force)

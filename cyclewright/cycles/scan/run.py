@@ -19,6 +19,7 @@ from ..limits import (
     DEFAULT_MAX_STEPS,
     MAX_CHUNKS,
     MAX_STEP_CAP,
+    check_memory,
     check_range,
     check_step_cap,
     check_workers,
@@ -280,6 +281,8 @@ def scan(
     if executor not in ("local", "dask"):
         raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
     cap = max_cycle_length if max_cycle_length is not None else max_steps
+    if executor == "local":
+        _check_growing_orbits(m, cap, workers)
     cs = chunk_size or default_chunk_size(m)
 
     from .executors import make_executor
@@ -315,6 +318,30 @@ def scan(
                 led.close()
     finally:
         ex.close()
+
+
+def _check_growing_orbits(m: Map, cap: int, workers: int | None) -> None:
+    """Refuse a step cap whose orbits could not fit the memory budget, for maps whose orbits grow.
+
+    When orbits grow on average (drift above 0, e.g. 5x+1), most starts run to the
+    step cap: each worker then keeps a history of ``cap + 1`` hashes (8 bytes each)
+    and two values of up to ``cap`` times the multiplier's bits.
+    """
+    import os
+
+    from cyclewright.maps.drift import drift_exact
+
+    if drift_exact(m)[1] <= 1:
+        return
+    bits = max(abs(a) for a in m.multipliers).bit_length()
+    per_worker = 8 * (cap + 1) + 2 * (cap * bits) // 8
+    n = workers or os.cpu_count() or 1
+    check_memory(
+        n * per_worker,
+        f"a scan of {m.label} (its orbits grow on average, so most run to the step cap) "
+        f"with step cap {cap} on {n} worker(s)",
+        hint="lower --max-steps",
+    )
 
 
 def _detail(side: str, unresolved: int) -> str:
