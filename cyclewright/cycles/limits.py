@@ -212,8 +212,9 @@ MAX_ENUMERATION_SECONDS = 60.0
 
 #: Longest sweep run (seconds), estimated before it starts from a few of its
 #: rows timed at x spread over the range (the cost of a row grows with x, its
-#: length and the necklaces it enumerates); liftable.
-MAX_SWEEP_SECONDS = 60.0
+#: length and the necklaces it enumerates; rows timed alone cost up to a few
+#: times what they cost inside a sweep, so the estimate leans high); liftable.
+MAX_SWEEP_SECONDS = 600.0
 
 #: Most further possible types a floor lists.
 MAX_NEXT_TYPES = 1000

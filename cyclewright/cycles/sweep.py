@@ -476,36 +476,44 @@ def sweep(
 def _check_time(m: Map, xs: list[int], extra_lengths: int, side: str, limit: int) -> None:
     """Refuse a sweep whose estimated time is above :data:`MAX_SWEEP_SECONDS`, before it runs.
 
-    The values of x are cut into at most 16 consecutive groups; the largest x of
-    each group (rows cost more as x grows) has its first and last rows timed, and
-    the group counts as that many times its size. Building the rows' lengths is
-    timed with them, since for large x it costs as much as a row. Timing stops
-    after a few seconds (the estimate then covers the groups timed so far).
+    The values of x are cut into at most 16 consecutive groups; the first and
+    last x of each group have their first and last rows timed (building the
+    rows' lengths too: for large x it costs as much as a row), and a group
+    counts as its size times the mean of its two ends. Timing stops after a few
+    seconds (the estimate then covers the groups timed so far).
     """
     d = m.divisor
     groups = min(len(xs), 16)
     bounds = [round(i * len(xs) / groups) for i in range(groups + 1)]
     sides = ["positive", "negative"] if side == "both" else [side]
     _count_content(m, (1, *next(_contents_rest(d, 1))), limit, None)  # warm caches, untimed
+    cost: dict[int, float] = {}
+
+    def per_x(x: int) -> float:
+        if x not in cost:
+            n_contents = math.comb(x + d - 2, d - 2) if d > 2 else 1
+            total = 0.0
+            for s in sides:
+                per_content = []
+                for rest in itertools.islice(_contents_rest(d, x), 2):
+                    t0 = time.perf_counter()
+                    lengths = critical_lengths(m, rest, extra_lengths, s)
+                    t_lengths = time.perf_counter() - t0
+                    picked = sorted({lengths[0], lengths[-1]}) if lengths else []
+                    t0 = time.perf_counter()
+                    for kk in picked:
+                        _count_content(m, (kk - x, *rest), limit, None, side_hint=s)
+                    t_rows = (time.perf_counter() - t0) / max(len(picked), 1)
+                    per_content.append(t_lengths + t_rows * len(lengths))
+                total += n_contents * sum(per_content) / len(per_content)
+            cost[x] = total
+        return cost[x]
+
     started = time.perf_counter()
     estimate, complete = 0.0, True
     for g in range(groups):
-        x = xs[bounds[g + 1] - 1]
-        n_contents = math.comb(x + d - 2, d - 2) if d > 2 else 1
-        for s in sides:
-            per_content = []
-            for rest in itertools.islice(_contents_rest(d, x), 2):
-                t0 = time.perf_counter()
-                lengths = critical_lengths(m, rest, extra_lengths, s)
-                t_lengths = time.perf_counter() - t0
-                picked = sorted({lengths[0], lengths[-1]}) if lengths else []
-                t0 = time.perf_counter()
-                for kk in picked:
-                    _count_content(m, (kk - x, *rest), limit, None, side_hint=s)
-                t_rows = (time.perf_counter() - t0) / max(len(picked), 1)
-                per_content.append(t_lengths + t_rows * len(lengths))
-            size = (bounds[g + 1] - bounds[g]) * n_contents
-            estimate += size * sum(per_content) / len(per_content)
+        first, last = xs[bounds[g]], xs[bounds[g + 1] - 1]
+        estimate += (bounds[g + 1] - bounds[g]) * (per_x(first) + per_x(last)) / 2
         if time.perf_counter() - started > 5.0 and g < groups - 1:
             complete = False
             break

@@ -125,7 +125,13 @@ def census_cmd(
         raise BadInput("--offsets applies to a family template such as 3x+k")
     m = resolve_map(map_spec, map_files)
     check_census_length(m, K, method)
-    # the certificate's path is checked before the census runs, not after it
+    # the certificate's path is checked before the census runs, not after it (census has
+    # no --force: an existing certificate is never replaced)
+    if cert_path and Path(cert_path).is_file():
+        raise BadInput(
+            f"--certificate {cert_path} exists; refusing to overwrite a certificate "
+            "(choose another name)"
+        )
     cert_file = check_output(cert_path, "--certificate")
     store_path = kw["store"]
     if cert_file is not None and isinstance(store_path, (str, os.PathLike)):
