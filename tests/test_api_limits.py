@@ -376,5 +376,5 @@ def test_scan_of_growing_orbits_refuses_a_step_cap_beyond_memory():
     # history (the compiled kernel allocated it and died with MemoryError)
     import cyclewright as cw
 
-    with pytest.raises(cw.InputError, match="orbits grow on average.*lower --max-steps"):
+    with pytest.raises(cw.InputError, match="orbits grow on average.*lower max_steps"):
         cw.scan("5x+1", 1000, max_steps=10**9, store=False, workers=1)

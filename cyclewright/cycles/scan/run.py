@@ -340,7 +340,8 @@ def _check_growing_orbits(m: Map, cap: int, workers: int | None) -> None:
         n * per_worker,
         f"a scan of {m.label} (its orbits grow on average, so most run to the step cap) "
         f"with step cap {cap} on {n} worker(s)",
-        hint="lower --max-steps",
+        hint="lower max_steps",
+        param="max_steps",
     )
 
 
