@@ -316,6 +316,10 @@ NO_TWIN = {
     "MAX_COMPARE_SCAN": "not a refusal of an input: compare's row says its census was not run",
     "MAX_GRAPH_NODES": "reached while the graph is walked, not by one input value "
     "(the API case is in test_api_limits.py)",
+    "MAX_ENUMERATION_SECONDS": "an estimate of time, not one input value; its sentence names "
+    "no parameter (the API case is in test_api_limits.py)",
+    "MAX_SWEEP_SECONDS": "an estimate from rows timed now, not one input value; its sentence "
+    "names no parameter (the API case is in test_api_limits.py)",
 }
 
 
