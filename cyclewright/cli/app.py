@@ -148,6 +148,25 @@ def _accept_leading_minus(cmd: click.Command) -> None:
         return original(ctx, args)
 
     cmd.parse_args = parse_args
+    make_parser = cmd.make_parser
+
+    def make_minus_parser(ctx: click.Context):
+        # click would read "-3x+1" as the short options -3, -x ... and give -x
+        # the value "+1" (count's -x is --odd): such a token is an argument in
+        # every command, whatever short options the command has
+        parser = make_parser(ctx)
+        process = parser._process_opts
+
+        def process_opts(arg: str, state) -> None:
+            if _NEGATIVE.match(arg):
+                state.largs.append(arg)
+                return
+            process(arg, state)
+
+        parser._process_opts = process_opts
+        return parser
+
+    cmd.make_parser = make_minus_parser
     cmd._minus_ok = True
 
 

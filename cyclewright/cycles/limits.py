@@ -43,6 +43,8 @@ import math
 import os
 from collections.abc import Iterator
 
+from cyclewright.maps.text import quote
+
 from .errors import InputError
 
 __all__ = [
@@ -324,21 +326,6 @@ def short_int(n: int, digits: int = 20) -> str:
     head = a // 10 ** (d - digits)
     tail = a % 10**digits
     return f"{'-' if n < 0 else ''}{head}…{tail:0{digits}d} ({d} digits)"
-
-
-def quote(text: object, width: int = 48) -> str:
-    """``repr(text)``, shortened in the middle when longer than ``width`` characters.
-
-    >>> quote("10^9")
-    "'10^9'"
-    >>> quote("1" * 1000)
-    "'11111111111111111111…11111111111111111111' (1000 characters)"
-    """
-    s = text if isinstance(text, str) else str(text)
-    if len(s) <= width:
-        return repr(s)
-    keep = max(width // 2 - 4, 4)
-    return f"{s[:keep]!r}"[:-1] + "…" + f"{s[-keep:]!r}"[1:] + f" ({len(s)} characters)"
 
 
 def limit_text(value: int) -> str:

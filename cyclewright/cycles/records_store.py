@@ -101,8 +101,59 @@ def records_path_for(store, m: Map) -> Path | None:
     if p.is_dir():
         return p / default_records_path(m).name
     if p.name.endswith(SUFFIX):
-        return p
+        return p  # an existing one is checked when opened (RecordsStore)
+    if p.exists() or p.is_symlink():
+        _check_scan_store(p, m)
     return p.with_name(f"{p.stem}{SUFFIX}")
+
+
+def _named(m: Map) -> str:
+    f = m.formula()
+    return m.label if f == m.label else f"{m.label} = {f}"
+
+
+def _check_scan_store(p: Path, m: Map) -> None:
+    """Refuse an existing ``store`` file that is not a scan store of ``m``.
+
+    The records store is named after the file, so a file that is no store
+    (a map file, a picture) or a scan store of another map would otherwise
+    be taken silently. Read only: nothing is written.
+    """
+    from .scan.store import store_info
+
+    def refuse(why: str) -> StoreError:
+        return StoreError.of(
+            f"store {p}: {why}; nothing was changed; use another ",
+            Name("store"),
+            " (a directory, a scan store of this map or a records store)",
+        )
+
+    if not p.is_file():
+        raise refuse("not a regular file")
+    try:
+        with open(p, "rb") as fh:
+            head = fh.read(len(_HEADER))
+    except OSError as exc:
+        raise refuse(f"cannot be read ({exc.strerror or exc})") from None
+    if head != _HEADER:
+        raise refuse("not a cyclewright store")
+    try:
+        info = store_info(p)
+    except (OSError, sqlite3.Error) as exc:
+        raise refuse(f"cannot be read ({exc})") from None
+    problem = info.get("problem") or ""
+    if problem.startswith("busy"):
+        return  # a scan is writing it: a scan store, checked again when opened
+    if info.get("map_key") is None:
+        raise refuse(problem or "not a cyclewright scan store")
+    if info["map_key"] != m.key:
+        theirs = info.get("map_label") or "?"
+        if info.get("formula") and info["formula"] != theirs:
+            theirs = f"{theirs} = {info['formula']}"
+        raise refuse(
+            f"holds scans of {theirs}, not of {_named(m)} "
+            "(the map definition differs)"
+        )
 
 
 class RecordsStore:

@@ -298,6 +298,10 @@ def stores(where: str | os.PathLike | None = None) -> StoresListing:
     from .scan.store import list_stores, store_info
 
     now = time.time()
+    if where is not None and not Path(where).is_dir() and not Path(where).is_file():
+        if Path(where).exists():
+            raise StoreError(f"{where} is not a cyclewright results store (not a regular file)")
+        raise StoreError(f"no store and no directory at {where}")
     if where is not None and Path(where).is_file():
         kind = store_kind(where)
         if kind is None:

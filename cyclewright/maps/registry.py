@@ -27,6 +27,7 @@ from importlib import metadata
 from .mapfile import load_map_file, user_map_files
 from .model import Map, MapError
 from .shorthand import looks_like_shorthand, parse_shorthand
+from .text import quote
 
 __all__ = ["ENTRY_POINT_GROUP", "Catalog", "load_catalog", "get", "as_map", "discover_plugins"]
 
@@ -161,7 +162,7 @@ class Catalog:
         known = ", ".join(self.names()[:12])
         hint = f" (plugin problems: {'; '.join(self.problems)})" if self.problems else ""
         raise MapError(
-            f"unknown map {spec!r}: not in the catalog ({known}, ...) and not ax+b shorthand{hint}"
+            f"unknown map {quote(spec)}: not in the catalog ({known}, ...) and not ax+b shorthand{hint}"
         )
 
 
@@ -278,5 +279,5 @@ def as_map(spec: str | Map) -> Map:
     if isinstance(spec, Map):
         return spec
     if not isinstance(spec, str):
-        raise MapError(f"expected a Map or a map name, got {spec!r}")
+        raise MapError(f"expected a Map or a map name, got {quote(spec)}")
     return get(spec)

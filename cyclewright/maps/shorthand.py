@@ -16,6 +16,7 @@ from __future__ import annotations
 import re
 
 from .model import Map, MapError
+from .text import quote
 
 __all__ = ["parse_shorthand", "looks_like_shorthand"]
 
@@ -60,7 +61,7 @@ def parse_shorthand(text: str, *, undivided: bool = False) -> Map:
     """
     m = _PATTERN.match(text)
     if not m:
-        raise MapError(f"{text!r} is not of the form ax+b (for example 3x+1, 5x-1, 181x+1)")
+        raise MapError(f"{quote(text)} is not of the form ax+b (for example 3x+1, 5x-1, 181x+1)")
     sign, digits, bsign, bdigits = m.groups()
     a = int(digits) if digits else 1
     if sign == "-":
