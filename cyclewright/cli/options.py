@@ -539,8 +539,27 @@ width_option = _shared(
 
 
 def plot_options(f):
-    """``--plot FILE`` and ``--width``: every command that draws a figure takes both."""
-    return plot_option(width_option(f))
+    """``--plot FILE`` and ``--width``: every command that draws a figure takes both.
+
+    ``--width`` sizes the figure of ``--plot``; given without ``--plot`` (no
+    figure to size) it is refused rather than ignored.
+    """
+
+    @functools.wraps(f)
+    def checked(*args, **kwargs):
+        ctx = click.get_current_context()
+        given = ctx.get_parameter_source("width")
+        if kwargs.get("plot_path") is None and given not in (
+            None,
+            click.core.ParameterSource.DEFAULT,
+        ):
+            raise BadInput(
+                "--width sizes the figure of --plot, and no --plot is given; "
+                "add --plot FILE or leave --width out"
+            )
+        return f(*args, **kwargs)
+
+    return plot_option(width_option(checked))
 
 
 force_option = _shared(
