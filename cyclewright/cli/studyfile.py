@@ -7,7 +7,6 @@ Schema
     [study]
     title = "Six maps side by side"          # required
     description = "..."                      # optional, Markdown
-    store = "results.sqlite"                 # optional; relative to the output directory
 
     [maps]
     use = ["3x+1", "5x+1", "3x+7"]           # names, aliases or ax+b shorthand
@@ -313,7 +312,6 @@ class Study:
     description: str
     maps: list[Map]
     analyses: list[AnalysisSpec]
-    store: str | None = None
     raw: dict = field(default_factory=dict, repr=False)
     #: ``[report]``: the figure formats and the figures' width
     figures: tuple[str, ...] = ("png",)
@@ -367,16 +365,13 @@ def parse_study(
     st = data.get("study")
     if not isinstance(st, Mapping):
         raise StudyError(f"{origin}: [study]: missing (it needs at least a title)")
-    _only(st, {"title", "description", "store"}, origin, "[study]")
+    _only(st, {"title", "description"}, origin, "[study]")
     title = st.get("title")
     if not isinstance(title, str) or not title.strip():
         raise StudyError(f"{origin}: [study]: key 'title': must be a non-empty string")
     description = st.get("description", "")
     if not isinstance(description, str):
         raise StudyError(f"{origin}: [study]: key 'description': must be a string")
-    store = st.get("store")
-    if store is not None and (not isinstance(store, str) or not store.strip()):
-        raise StudyError(f"{origin}: [study]: key 'store': must be a file name")
 
     # ---- maps
     mt = data.get("maps", {})
@@ -498,7 +493,6 @@ def parse_study(
         description,
         study_maps,
         specs,
-        store,
         dict(data),
         figures=report["figures"],
         width=report["width"],
