@@ -924,8 +924,8 @@ def compare(
         check_plan(
             plan,
             MAX_RECORDS_MINUTES,
-            option="of compare's records",
-            raise_it="run records with a larger --max-minutes",
+            option="records' max_minutes",
+            raise_it="a comparison keeps the records' default limit",
         )
         rates[m.key] = plan.rate if plan.seconds_per_start > 0 else None
     profiles = []
