@@ -619,3 +619,80 @@ def test_certificate_with_a_huge_bound_or_repeated_cycles_fails_its_check(ws, ca
         assert "does NOT hold" in out
     code, out, _ = run_main(["verify", "many.json"], capsys)
     assert "listed twice" in out
+
+
+# ---------------------------------------------------------------- stores, --width, study keys
+SMALL_FILES = {
+    "study_store_key.toml": (
+        "[study]\ntitle = 't'\nstore = 'results.sqlite'\n[maps]\nuse = ['3x+1']\n"
+        "[[analysis]]\nkind = 'floor'\n"
+    ),
+}
+
+SMALL_CASES: list[tuple[str, list[str]]] = [
+    # a --store file that is no store, or a scan store of another map: the records
+    # store named after it would be written beside it
+    ("records-store-is-a-map-file", ["records", "3x+1", "--to", "100", "--store", "good.toml"]),
+    ("records-store-of-another-map", ["records", "5x+1", "--to", "100", "--store", "store.sqlite"]),
+    ("stores-list-a-map-file", ["stores", "list", "--store", "good.toml"]),
+    ("stores-list-nothing-there", ["stores", "list", "--store", "nowhere"]),
+    # --width sizes the --plot figure: without --plot it would be ignored
+    ("orbit-width-without-plot", ["orbit", "3x+1", "7", "--width", "double"]),
+    ("sweep-width-without-plot", ["sweep", "3x+1", "--odd", "1..3", "--width", "4"]),
+    ("records-width-without-plot", ["records", "3x+1", "--to", "10", "--width", "single"]),
+    ("graph-width-without-plot", ["graph", "3x+1", "--to", "10", "--width", "single"]),
+    ("compare-width-without-plot", ["compare", "3x+1", "--width", "single"]),
+    # a study key that was read and never used
+    ("study-store-key", ["study", "study_store_key.toml", "--out", "o"]),
+]
+
+
+@pytest.mark.parametrize("args", [c[1] for c in SMALL_CASES], ids=[c[0] for c in SMALL_CASES])
+def test_small_cases_one_line_exit_2_and_change_nothing(ws, args, capsys):
+    for name, text in SMALL_FILES.items():
+        (ws / name).write_text(text)
+    before = _snapshot(ws)
+    code, out, err = run_main(args, capsys)
+    lines = err.strip().splitlines()
+    assert code == 2, (code, err[:500])
+    assert len(lines) == 1 and lines[0].startswith("error: "), err[:500]
+    assert out == "" and "Traceback" not in err
+    assert _snapshot(ws) == before
+    assert not (ws / "good-records.db").exists()
+
+
+def test_records_store_beside_a_scan_store_of_the_same_map(ws, capsys):
+    # the case the check must keep: a scan store of this map names its records store
+    code, out, err = run_main(["records", "3x+1", "--to", "100", "--store", "store.sqlite"], capsys)
+    assert code == 0, err
+    assert (ws / "store-records.db").is_file()
+
+
+def test_refusals_name_the_store_and_why(ws, capsys):
+    code, _, err = run_main(["records", "5x+1", "--to", "100", "--store", "store.sqlite"], capsys)
+    assert code == 2 and "holds scans of 3x+1, not of 5x+1" in err and "--store" in err
+    code, _, err = run_main(["stores", "list", "--store", "good.toml"], capsys)
+    assert code == 2 and "good.toml is not a cyclewright results store" in err
+
+
+def test_a_map_starting_with_minus_reads_the_same_in_every_command(ws, capsys):
+    # count has a short option -x: "-3x+1" must still be the map, as in orbit
+    code, out, err = run_main(["count", "-3x+1", "--length", "5", "--odd", "3"], capsys)
+    assert code == 0, err
+    assert out.startswith("-3x+1, type k=5, x=3")
+    code, out, err = run_main(["orbit", "-3x+1", "7"], capsys)
+    assert code == 0 and out.startswith("-3x+1, start 7")
+
+
+def test_unknown_map_quotes_a_long_word_shortened(ws, capsys):
+    word = "x" * 100_000
+    code, _, err = run_main(["orbit", word, "7"], capsys)
+    assert code == 2 and len(err) < 400
+    assert "unknown map 'xxxxxxxxxxxxxxxxxxxx…xxxxxxxxxxxxxxxxxxxx' (100000 characters):" in err
+
+
+def test_a_large_negative_start_quotes_the_bound_as_a_limit(ws, capsys):
+    # docs/limits.md "One wording per limit": the bound as a power, the input as typed
+    code, _, err = run_main(["orbit", "3x+1", "-10^5000"], capsys)
+    assert code == 2
+    assert err.strip() == "error: N must be at least -10^1000, got -10^5000"

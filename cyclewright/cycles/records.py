@@ -1343,6 +1343,9 @@ def records(
     from .records_plan import check_plan, plan_records
 
     check_workers(workers)
+    from .records_store import RecordsStore, records_path_for
+
+    spot = records_path_for(store, m)  # a store file that is no store of m: refused first
     plan = plan_records(
         m,
         to,
@@ -1362,9 +1365,6 @@ def records(
     check_range(csize, "chunk_size", minimum=1)
     size = min((_TABLE_CONTRACTING if m.drift_ratio() < 1 else _TABLE_EXPANDING), to + 1)
     undiv = m.ax_b is not None
-    from .records_store import RecordsStore, records_path_for
-
-    spot = records_path_for(store, m)
     led = RecordsStore(spot, m) if spot is not None else None
     total = (to - start + 1) * len(sides)
     out = {}

@@ -150,10 +150,7 @@ def _check_scan_store(p: Path, m: Map) -> None:
         theirs = info.get("map_label") or "?"
         if info.get("formula") and info["formula"] != theirs:
             theirs = f"{theirs} = {info['formula']}"
-        raise refuse(
-            f"holds scans of {theirs}, not of {_named(m)} "
-            "(the map definition differs)"
-        )
+        raise refuse(f"holds scans of {theirs}, not of {_named(m)} (the map definition differs)")
 
 
 class RecordsStore:
