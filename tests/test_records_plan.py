@@ -215,4 +215,5 @@ def test_compare_refuses_its_records_before_any_map_is_worked_on(monkeypatch):
     with pytest.raises(cw.InputError) as info:
         cw.compare(["3x+1"], max_length=8, to=10**5, store=False, workers=1)
     msg = str(info.value)
-    assert "of compare's records" in msg and "run records with a larger --max-minutes" in msg
+    # API messages name parameters, never an option of the command line
+    assert "(records' max_minutes)" in msg and "--" not in msg
