@@ -279,5 +279,5 @@ def as_map(spec: str | Map) -> Map:
     if isinstance(spec, Map):
         return spec
     if not isinstance(spec, str):
-        raise MapError(f"expected a Map or a map name, got {quote(spec)}")
+        raise MapError(f"expected a Map or a map name, got {spec!r}")
     return get(spec)
