@@ -682,6 +682,11 @@ def test_a_map_starting_with_minus_reads_the_same_in_every_command(ws, capsys):
     assert out.startswith("-3x+1, type k=5, x=3")
     code, out, err = run_main(["orbit", "-3x+1", "7"], capsys)
     assert code == 0 and out.startswith("-3x+1, start 7")
+    # and in a group's subcommands
+    code, out, err = run_main(["maps", "show", "-3x+1"], capsys)
+    assert code == 0 and out.startswith("-3x+1"), err
+    code, out, err = run_main(["stores", "remove", "-3x+1"], capsys)
+    assert code == 2 and err.startswith("error: -3x+1 has no store"), err
 
 
 def test_unknown_map_quotes_a_long_word_shortened(ws, capsys):

@@ -77,6 +77,10 @@ class _LazyGroup(click.Group):
                 return None
             raise
         for cmd in getattr(mod, "COMMANDS", ()):
+            # a group's subcommands too (``maps show -3x+1``, ``stores remove -3x+1``)
+            for sub in getattr(cmd, "commands", {}).values():
+                _accept_leading_minus(sub)
+                _speak_in_option_words(sub)
             _accept_leading_minus(cmd)
             _speak_in_option_words(cmd)
             self.add_command(cmd)

@@ -142,5 +142,5 @@ def remove_cmd(map_specs, store, everything: bool, caches: bool, map_files, as_j
 
 COMMANDS = [stores_group]
 # the group's own arguments are subcommand names: click parses the options of
-# each subcommand itself (a map starting with "-" goes after "--")
+# each subcommand itself (the subcommands read a map such as -3x+1, see app.py)
 stores_group._minus_ok = True
