@@ -8,6 +8,13 @@ Inside
   workers assumed and the wall time (heuristic).
 - :func:`plan_records`, :func:`plan_excursions` -- measure the compiled walk
   that run would use, on small pieces of the run's own range.
+- :func:`plan_scan` -- the same for :func:`~cyclewright.cycles.scan.run.scan`:
+  a contracting map's chunks timed on the chunk grid with the residue sieve
+  counted (:func:`~cyclewright.cycles.scan.rate.estimate_scan`), a map whose
+  orbits grow timed by :func:`growing_seconds`.
+- :func:`growing_seconds` -- one start's time for a map whose orbits grow:
+  the real chunk walked with step caps growing fourfold, the time at the
+  real cap extrapolated (leaning high).
 - :func:`measure_pieces` -- the sampler both use: any piece function timed
   on growing pieces at :data:`~cyclewright.cycles.scan.rate.PARTS` places
   across the range, after one untimed piece that loads the kernels and
@@ -62,6 +69,8 @@ __all__ = [
     "WalkPlan",
     "plan_records",
     "plan_excursions",
+    "plan_scan",
+    "growing_seconds",
     "measure_pieces",
     "check_plan",
     "check_minutes",
@@ -480,6 +489,201 @@ def plan_excursions(
         return lambda a, b: _walk_range(a, b, sign, m.divisor, ma, mb, max_steps, _LIMIT)
 
     return _plan("excursions", m, start, to, sides, max_steps, 1, rate, piece_for, budget)
+
+
+def growing_seconds(
+    run_capped: Callable[[int], object],
+    cap: int,
+    *,
+    pieces: int = 1,
+    budget: float = DEFAULT_BUDGET,
+    clock: Callable[[], float] = time.perf_counter,
+) -> tuple[float, int, float]:
+    """Seconds per start at step cap ``cap`` of a walk whose values grow (heuristic, leaning high).
+
+    An orbit that climbs gains about the same number of bits every step, so
+    its ``i``-th step costs about ``alpha + beta i`` and a walk of ``c`` steps
+    ``alpha c + beta c^2 / 2``. ``run_capped(c)`` (the run's own chunk on
+    ``pieces`` starts, with step cap ``c``) is timed for ``c = 16, 64, 256,
+    ...`` up to ``cap``, until the next cap would take more than the budget;
+    at ``cap`` itself the time is measured, below it the two last caps give
+    ``alpha`` and ``beta`` and the larger of that fit and the straight
+    scaling ``t(c) cap / c`` (or, the fit failing, ``t(c) (cap / c)^2``) is
+    taken. A start that closes a cycle early costs less than this.
+
+    Parameters
+    ----------
+    run_capped : callable
+        Walks the sample starts with the step cap given.
+    cap : int
+        The run's step cap.
+    pieces : int
+        Starts walked per call (the time is divided by them).
+    budget : float
+        Seconds of timing.
+    clock : callable
+        The timer (a fake one in tests).
+
+    Returns
+    -------
+    (float, int, float)
+        Seconds per start at ``cap``, the largest cap timed, and its seconds.
+
+    Examples
+    --------
+    >>> t = {"now": 0.0}
+    >>> def walk(c):                       # a fake walk: 1 us + 1 ns x step, per step
+    ...     t["now"] += 1e-6 * c + 1e-9 * c * c
+    >>> s, c, _ = growing_seconds(walk, 10**7, clock=lambda: t["now"])
+    >>> c < 10**7, 0.9e5 < s < 1.1e5       # about 10 s + 10^5 s
+    (True, True)
+
+    References
+    ----------
+    None: a measurement of this machine (see the module docstring).
+    """
+    c, prev = min(16, cap), None
+    spent = 0.0
+    while True:
+        t0 = clock()
+        run_capped(c)
+        dt = max(clock() - t0, 1e-9)
+        spent += dt
+        if c >= cap or spent + 16 * dt > budget:
+            break
+        prev = (c, dt)
+        c = min(cap, 4 * c)
+    if c >= cap:
+        return dt / pieces, c, dt
+    straight = dt * cap / c
+    if prev is not None and prev[0] * 4 == c:
+        c1, t1 = prev
+        beta = max(0.0, dt - 4 * t1) / (12 * c1 * c1)
+        alpha = max(0.0, (t1 - beta * c1 * c1) / c1)
+        fitted = alpha * cap + beta * cap * cap
+    else:
+        fitted = dt * (cap / c) ** 2
+    return max(straight, fitted) / pieces, c, dt
+
+
+def plan_scan(
+    m: Map | str,
+    to: int,
+    *,
+    start: int = 1,
+    side: Side = DEFAULT_SIDE,
+    max_steps: int,
+    max_cycle_length: int | None = None,
+    workers: int | None = None,
+    executor: str = "local",
+    chunk_size: int | None = None,
+    rate: float | None = None,
+    budget: float = DEFAULT_BUDGET,
+) -> WalkPlan:
+    """Estimate a :func:`~cyclewright.cycles.scan.run.scan` before it starts (heuristic).
+
+    A map that contracts on average (drift ratio below 1): each side's chunks
+    are timed on the chunk grid across the range, the sieve's skipped
+    classes counted (:func:`~cyclewright.cycles.scan.rate.estimate_scan`).
+    A map whose orbits grow: a few starts near the middle of the range are
+    walked by the scan's chunk with step caps growing to the real one
+    (:func:`growing_seconds`; leaning high), times the range's starts. Not
+    measured when the range is quick (:func:`is_quick`) or ``rate`` is
+    given. Every start of the range is counted, those already in a store
+    too. The arguments are those of ``scan``, already checked.
+
+    Parameters
+    ----------
+    m : Map or str
+    to, start : int
+    side : {"positive", "negative", "both"}
+    max_steps : int
+    max_cycle_length : int, optional
+        When given, the scan's cap is this cycle-length bound.
+    workers : int, optional
+        As for ``scan`` (None: every core of the local executor; a Dask run
+        is counted as ``workers`` workers, 1 when not given).
+    executor : {"local", "dask"}
+    chunk_size : int, optional
+    rate : float, optional
+        Starts per second per worker, instead of a measurement.
+    budget : float
+        Seconds of timed sampling in all.
+
+    Returns
+    -------
+    WalkPlan
+
+    Examples
+    --------
+    >>> p = plan_scan("3x+1", 2**63 - 1, max_steps=1000, workers=2, rate=1e9)
+    >>> p.what, p.seconds > 365 * 86400           # 9.2e18 starts at 10^9 a second on 2 workers
+    ('scan', True)
+    >>> plan_scan("3x+1", 1000, max_steps=1000).source.startswith("not measured")
+    True
+
+    References
+    ----------
+    None: a measurement of this machine (see the module docstring).
+    """
+    m = as_map(m)
+    n = _workers(workers, executor)
+    sides = tuple(sides_of(side))
+    bound = max_cycle_length is not None
+    cap = max_cycle_length if bound else max_steps
+    starts = (to - start + 1) * len(sides)
+    if rate is not None or is_quick(starts, cap):
+        return _plan("scan", m, start, to, sides, cap, n, rate, lambda s: None, budget)
+    from .scan.chunks import ChunkTask, default_chunk_size, run_chunk
+    from .scan.rate import estimate_scan
+
+    growing = m.drift_ratio() >= 1
+    branches = tuple(tuple(b) for b in m.branches)
+    total = 0.0
+    samples: list[Sample] = []
+    timed = 0
+    for s in sides:
+        if not growing:
+            e = estimate_scan(
+                m,
+                to,
+                side=s,
+                start=start,
+                max_cycle_length=cap,
+                budget=budget / len(sides),
+                chunk_size=chunk_size or default_chunk_size(m),
+                length_bound=bound,
+            )
+            total += e.seconds
+            samples += e.samples
+            timed += e.sample_starts
+            continue
+        k = min(4, to - start + 1)
+        mid = start + (to - start + 1 - k) // 2
+
+        def walk(c: int, s: str = s, mid: int = mid, k: int = k) -> object:
+            return run_chunk(ChunkTask(m.divisor, branches, s, mid, mid + k - 1, c, bound))
+
+        walk(1)  # untimed: loads the kernels
+        per_start, c, dt = growing_seconds(walk, cap, pieces=k, budget=budget / len(sides))
+        total += per_start * (to - start + 1)
+        samples.append(Sample(mid, mid + k - 1, k, dt, start, to, to - start + 1))
+        timed += k
+        growing_cap = c
+    if growing:
+        source = (
+            f"measured now: {timed:,} starts walked with step caps up to {growing_cap:,}, "
+            "scaled to the cap (orbits grow; leaning high), one worker"
+        )
+    else:
+        source = (
+            f"measured now: {timed:,} starts timed in {len(samples)} "
+            f"place{'s' if len(samples) != 1 else ''} (the sieve counted), one worker"
+        )
+    per_start = total / starts
+    return WalkPlan(
+        "scan", m, start, to, sides, cap, starts, tuple(samples), per_start, n, total / n, source
+    )
 
 
 def check_minutes(max_minutes: float, what: str = "max_minutes") -> float:

@@ -43,6 +43,18 @@ from ..render import (
     write_csv,
 )
 
+
+def max_minutes_option(f):
+    """``--max-minutes M`` (records and scan)."""
+    return click.option(
+        "--max-minutes",
+        default=f"{MAX_RECORDS_MINUTES:g}",
+        show_default=True,
+        metavar="M",
+        help="Refuse a run whose estimated time (measured now, heuristic) is above M minutes.",
+    )(f)
+
+
 _EPILOG = """\b
 Examples:
   cyclewright records 3x+1 --to 10^6
@@ -82,13 +94,7 @@ refused, with the estimate, when that is above --max-minutes (heuristic;
 @force_option
 @maps_option
 @store_options
-@click.option(
-    "--max-minutes",
-    default=f"{MAX_RECORDS_MINUTES:g}",
-    show_default=True,
-    metavar="M",
-    help="Refuse a run whose estimated time (measured now, heuristic) is above M minutes.",
-)
+@max_minutes_option
 @plan_option
 @json_option
 def records_cmd(
@@ -117,13 +123,7 @@ def records_cmd(
     m = resolve_map(map_spec, map_files)
     if to < 1:
         raise BadInput(f"--to must be at least 1, got {to}")
-    try:
-        limit = float(max_minutes)
-    except ValueError:
-        raise BadInput(f"--max-minutes must be a number, got {max_minutes!r}") from None
-    if limit == float("inf"):
-        raise BadInput(f"--max-minutes must be a finite number of minutes, got {max_minutes!r}")
-    check_minutes(limit, "--max-minutes")  # the API's check and words
+    limit = parse_minutes(max_minutes)
     if plan_only:
         _plan(m, to, start, side, max_steps, workers, executor, limit, as_json)
         return
@@ -173,21 +173,19 @@ def records_cmd(
     _print(r, show)
 
 
-def show_plan(plan) -> None:
-    """The estimate on stderr before a run of a second or more (a short run starts at once)."""
-    if plan.seconds >= 1.0:
-        for line in plan.lines():
-            stderr_console().print(f"plan: {line}", highlight=False)
+def parse_minutes(max_minutes: str) -> float:
+    """``--max-minutes`` as a number of minutes >= 0 (records and scan), in the API's words."""
+    try:
+        limit = float(max_minutes)
+    except ValueError:
+        raise BadInput(f"--max-minutes must be a number, got {max_minutes!r}") from None
+    if limit == float("inf"):
+        raise BadInput(f"--max-minutes must be a finite number of minutes, got {max_minutes!r}")
+    return check_minutes(limit, "--max-minutes")  # the API's check and words
 
 
-def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> None:
-    """``--plan``: the estimate and whether the run would be refused; nothing runs."""
-    if start < 1 or to < start:
-        raise BadInput(f"empty range: {start}..{to}")
-    # the API's refusals name the options (cli/app.py)
-    plan = plan_records(
-        m, to, start=start, side=side, max_steps=max_steps, workers=workers, executor=executor
-    )
+def print_plan(plan, limit: float, as_json: bool) -> None:
+    """``--plan``: the estimate and whether the run would be refused (records and scan)."""
     try:
         check_plan(plan, limit)
         refused = ""
@@ -205,6 +203,24 @@ def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> N
             "use more --workers, or --executor dask --scheduler ADDRESS",
             highlight=False,
         )
+
+
+def show_plan(plan) -> None:
+    """The estimate on stderr before a run of a second or more (a short run starts at once)."""
+    if plan.seconds >= 1.0:
+        for line in plan.lines():
+            stderr_console().print(f"plan: {line}", highlight=False)
+
+
+def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> None:
+    """``--plan``: the estimate and whether the run would be refused; nothing runs."""
+    if start < 1 or to < start:
+        raise BadInput(f"empty range: {start}..{to}")
+    # the API's refusals name the options (cli/app.py)
+    plan = plan_records(
+        m, to, start=start, side=side, max_steps=max_steps, workers=workers, executor=executor
+    )
+    print_plan(plan, limit, as_json)
 
 
 def csv_rows(r):

@@ -6,6 +6,7 @@ import click
 
 from cyclewright.cycles.scan.run import scan
 
+from ..errors import BadInput
 from ..numbers import MAX_CHUNKS
 from ..options import (
     IntExpr,
@@ -17,6 +18,7 @@ from ..options import (
     maps_option,
     max_length_option,
     max_steps_option,
+    plan_option,
     resolve_map,
     resolve_store,
     show_option,
@@ -27,6 +29,7 @@ from ..options import (
 )
 from ..progress import progress_display
 from ..render import emit_json, show_table, stdout_console
+from .records_cmd import max_minutes_option, parse_minutes, print_plan, show_plan
 
 _EPILOG = """\b
 Examples:
@@ -45,6 +48,11 @@ length K. Ranges are of absolute values; the negative side scans -N .. -M.
 Finished chunks are kept in the store (default: one file per map in the user
 data directory, $CYCLEWRIGHT_DATA_DIR overrides), so an interrupted scan
 resumes where it stopped.
+\b
+Before it starts, the scan is timed on pieces of its own range (a map whose
+orbits grow: a few starts walked with growing step caps, scaled to the cap,
+leaning high) and refused, with the estimate, when that is above
+--max-minutes (heuristic; --plan shows the estimate only).
 """
 
 
@@ -69,6 +77,8 @@ resumes where it stopped.
     is_flag=True,
     help="Refuse (exit 2) instead of recomputing a stored chunk that fails its checks.",
 )
+@max_minutes_option
+@plan_option
 @show_option
 @maps_option
 @json_option
@@ -87,12 +97,20 @@ def scan_cmd(
     scheduler,
     chunk_size,
     no_recompute,
+    max_minutes,
+    plan_only,
     show,
     map_files,
     as_json,
 ) -> None:
     """Every integer cycle of MAP whose minimum lies in [M, N], by an exact scan of the starts."""
     m = resolve_map(map_spec, map_files)
+    limit = parse_minutes(max_minutes)
+    if plan_only:
+        _plan(
+            m, to, start, side, workers, max_steps, max_length, executor, chunk_size, limit, as_json
+        )
+        return
     with progress_display() as show_progress:
         result = scan(
             m,
@@ -109,11 +127,36 @@ def scan_cmd(
             chunk_size=chunk_size,
             recompute=not no_recompute,
             notice=show_progress.notice,
+            max_minutes=limit,
+            on_plan=show_plan,
         )
     if as_json:
         emit_json(result.to_dict())
         return
     _print(result, show)
+
+
+def _plan(m, to, start, side, workers, max_steps, max_length, executor, chunk_size, limit, as_json):
+    """``--plan``: the estimate and whether the scan would be refused; nothing runs."""
+    from cyclewright.cycles.records_plan import plan_scan
+    from cyclewright.cycles.scan.run import scan_arguments
+
+    if start < 1 or to < start:
+        raise BadInput(f"empty range: {start}..{to}")
+    # the API's checks and refusals, naming the options (cli/app.py)
+    scan_arguments(m, to, start, side, workers, max_steps, max_length, chunk_size, executor)
+    plan = plan_scan(
+        m,
+        to,
+        start=start,
+        side=side,
+        max_steps=max_steps,
+        max_cycle_length=max_length,
+        workers=workers,
+        executor=executor,
+        chunk_size=chunk_size,
+    )
+    print_plan(plan, limit, as_json)
 
 
 def _print(r, show_n: int) -> None:

@@ -230,6 +230,7 @@ def estimate_scan(
     start: int = 1,
     budget: float = DEFAULT_BUDGET,
     chunk_size: int | None = None,
+    length_bound: bool = True,
 ) -> ScanEstimate:
     """Measure one side's scan of ``[start, to]`` in cycle-length mode on one worker (heuristic).
 
@@ -259,6 +260,9 @@ def estimate_scan(
         Seconds of timed sampling.
     chunk_size : int, optional
         The scan's chunk size (default: the map's).
+    length_bound : bool
+        True (the census): ``max_cycle_length`` is a cycle-length bound;
+        False (a scan with a step cap): it is the step cap.
 
     Returns
     -------
@@ -285,7 +289,7 @@ def estimate_scan(
     branches = tuple(tuple(b) for b in m.branches)
 
     def task(a: int, b: int) -> ChunkTask:
-        return ChunkTask(m.divisor, branches, side, a, b, cap, True)
+        return ChunkTask(m.divisor, branches, side, a, b, cap, length_bound)
 
     total = to - start + 1
     parts = PARTS if total >= PARTS * cs else 1

@@ -18,6 +18,7 @@ from ..integer_cycle import IntegerCycle
 from ..limits import (
     DEFAULT_MAX_STEPS,
     MAX_CHUNKS,
+    MAX_RECORDS_MINUTES,
     MAX_STEP_CAP,
     check_memory,
     check_range,
@@ -55,6 +56,7 @@ __all__ = [
     "scan",
     "check_store_for_maps",
     "check_chunks",
+    "scan_arguments",
 ]
 
 
@@ -155,6 +157,46 @@ def check_chunks(starts_per_side: int, n_sides: int, chunk_size: int) -> int:
     return chunks
 
 
+def scan_arguments(m, to, start, side, workers, max_steps, max_cycle_length, chunk_size, executor):
+    """The arguments of :func:`scan` checked, in its words (:class:`InputError`); nothing runs.
+
+    Returns ``(map, to, start, sides, workers, max_steps, max_cycle_length,
+    chunk_size)``.
+    """
+    m = as_map(m)
+    to = _as_int(to, "to")
+    start = _as_int(start, "start")
+    if start < 1:
+        raise InputError(
+            f"start = {start}: ranges are of absolute values and start at 1 or above "
+            "(use side='negative' for negative starts)"
+        )
+    if to < start:
+        raise InputError(f"empty range: to = {to} is below start = {start}")
+    check_scan_end(to)
+    sides = sides_of(side)
+    if workers is not None:
+        workers = check_workers(_as_int(workers, "workers"))
+    max_steps = check_step_cap(_as_int(max_steps, "max_steps"))
+    if max_cycle_length is not None:
+        max_cycle_length = check_step_cap(
+            _as_int(max_cycle_length, "max_cycle_length"), "max_cycle_length"
+        )
+    if chunk_size is not None:
+        chunk_size = _as_int(chunk_size, "chunk_size")
+        check_range(
+            chunk_size,
+            "chunk_size",
+            minimum=1,
+            maximum=MAX_STEP_CAP,
+            why="the store holds it as a 64-bit integer",
+        )
+        check_chunks(to - start + 1, len(sides), chunk_size)
+    if executor not in ("local", "dask"):
+        raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
+    return m, to, start, sides, workers, max_steps, max_cycle_length, chunk_size
+
+
 def scan(
     m: Map | str,
     to: int,
@@ -171,6 +213,9 @@ def scan(
     chunk_size: int | None = None,
     recompute: bool = True,
     notice: Callable[[str], None] | None = None,
+    max_minutes: float | None = MAX_RECORDS_MINUTES,
+    rate: float | None = None,
+    on_plan: Callable | None = None,
 ) -> ScanResult:
     """Find every integer cycle whose minimum lies in ``[start, to]``, exactly.
 
@@ -215,6 +260,20 @@ def scan(
     notice : callable, optional
         Receives one-line messages (a damaged chunk recomputed, a busy
         store waited for, chunks another run is computing); default: stderr.
+    max_minutes : float or None
+        Refuse (:class:`InputError`, before anything runs) a scan whose
+        estimated wall time is above this many minutes (default
+        :data:`~cyclewright.cycles.limits.MAX_RECORDS_MINUTES`; the estimate
+        is measured now on pieces of the range,
+        :func:`~cyclewright.cycles.records_plan.plan_scan`, heuristic).
+        None, or inside :func:`~cyclewright.cycles.limits.lift_limits`:
+        never refused.
+    rate : float, optional
+        Starts per second per worker for that estimate, instead of a
+        measurement.
+    on_plan : callable, optional
+        Receives the :class:`~cyclewright.cycles.records_plan.WalkPlan`
+        before the scan starts.
 
     Returns
     -------
@@ -249,41 +308,34 @@ def scan(
     Lagarias 1985, 1990; Terras 1976 (see the module docstring).
     """
     t0 = time.perf_counter()
-    m = as_map(m)
-    to = _as_int(to, "to")
-    start = _as_int(start, "start")
-    if start < 1:
-        raise InputError(
-            f"start = {start}: ranges are of absolute values and start at 1 or above "
-            "(use side='negative' for negative starts)"
-        )
-    if to < start:
-        raise InputError(f"empty range: to = {to} is below start = {start}")
-    check_scan_end(to)
-    sides = sides_of(side)
-    if workers is not None:
-        workers = check_workers(_as_int(workers, "workers"))
-    max_steps = check_step_cap(_as_int(max_steps, "max_steps"))
-    if max_cycle_length is not None:
-        max_cycle_length = check_step_cap(
-            _as_int(max_cycle_length, "max_cycle_length"), "max_cycle_length"
-        )
-    if chunk_size is not None:
-        chunk_size = _as_int(chunk_size, "chunk_size")
-        check_range(
-            chunk_size,
-            "chunk_size",
-            minimum=1,
-            maximum=MAX_STEP_CAP,
-            why="the store holds it as a 64-bit integer",
-        )
-        check_chunks(to - start + 1, len(sides), chunk_size)
-    if executor not in ("local", "dask"):
-        raise InputError(f"unknown executor {executor!r}: use 'local' or 'dask'")
+    m, to, start, sides, workers, max_steps, max_cycle_length, chunk_size = scan_arguments(
+        m, to, start, side, workers, max_steps, max_cycle_length, chunk_size, executor
+    )
     cap = max_cycle_length if max_cycle_length is not None else max_steps
     if executor == "local":
         _check_growing_orbits(m, cap, workers)
     cs = chunk_size or default_chunk_size(m)
+    from ..records_plan import check_minutes, check_plan, plan_scan
+
+    if max_minutes is not None:
+        check_minutes(max_minutes)
+    plan = None
+    if max_minutes is not None or on_plan is not None:
+        plan = plan_scan(
+            m,
+            to,
+            start=start,
+            side=side,
+            max_steps=max_steps,
+            max_cycle_length=max_cycle_length,
+            workers=workers,
+            executor=executor,
+            chunk_size=cs,
+            rate=rate,
+        )  # measured on pieces of the range: refused here, before any chunk
+        check_plan(plan, max_minutes)
+        if on_plan is not None:
+            on_plan(plan)
 
     from .executors import make_executor
 
