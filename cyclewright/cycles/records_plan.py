@@ -75,6 +75,7 @@ __all__ = [
     "check_plan",
     "check_minutes",
     "is_quick",
+    "growth_bits",
     "records_memory",
     "DEFAULT_BUDGET",
     "QUICK_SECONDS",
@@ -83,8 +84,28 @@ __all__ = [
 #: Seconds of timed sampling per side (after the untimed first piece).
 DEFAULT_BUDGET = 0.3
 
+#: A contracting map's scan of fewer than 10^8 starts with ``starts * cap`` at most
+#: this is not measured (its starts drop within a few steps; under a few seconds).
+NOMINAL_SCAN_WORK = 10**11
+
 #: Sampling stops early once the run is estimated below this many seconds on one worker.
 QUICK_SECONDS = 1.0
+
+
+def _label(m: Map) -> str:
+    """The map's label, its middle cut out when longer than 60 characters (a huge multiplier)."""
+    t = m.label
+    return t if len(t) <= 60 else f"{t[:24]}…{t[-24:]} ({len(t)} characters)"
+
+
+def growth_bits(m: Map) -> int:
+    """Bits a value may gain in one step: those of the largest multiplier (1 at least).
+
+    >>> from cyclewright import maps
+    >>> growth_bits(maps.get("3x+1")), growth_bits(maps.get("5x+1"))
+    (2, 3)
+    """
+    return max(1, max(abs(a) for a in m.multipliers).bit_length())
 
 
 def is_quick(starts: int, max_steps: int) -> bool:
@@ -280,7 +301,7 @@ class WalkPlan:
         side = " and ".join(self.sides)
         rate = f"{self.rate:.2g} starts/s per worker" if self.seconds_per_start > 0 else "-"
         return [
-            f"{self.what} of {self.map.label} over {self.start:,}..{self.to:,} ({side} "
+            f"{self.what} of {_label(self.map)} over {self.start:,}..{self.to:,} ({side} "
             f"side{'s' if len(self.sides) > 1 else ''}), step cap {self.max_steps:,}: "
             f"{self.starts:,} starts",
             f"about {duration_text(self.seconds)} at {rate} x {self.workers} "
@@ -588,8 +609,10 @@ def plan_scan(
     A map whose orbits grow: a few starts near the middle of the range are
     walked by the scan's chunk with step caps growing to the real one
     (:func:`growing_seconds`; leaning high), times the range's starts. Not
-    measured when the range is quick (:func:`is_quick`) or ``rate`` is
-    given. Every start of the range is counted, those already in a store
+    measured when the range is quick (:func:`is_quick`, with a growing
+    map's starts weighed by :func:`growth_bits`), when ``rate`` is given, or
+    for a contracting map's scan of fewer than 10^8 starts with ``starts x
+    cap`` at most :data:`NOMINAL_SCAN_WORK` (the census's nominal rate). Every start of the range is counted, those already in a store
     too. The arguments are those of ``scan``, already checked.
 
     Parameters
@@ -632,12 +655,32 @@ def plan_scan(
     bound = max_cycle_length is not None
     cap = max_cycle_length if bound else max_steps
     starts = (to - start + 1) * len(sides)
-    if rate is not None or is_quick(starts, cap):
+    growing = m.drift_ratio() >= 1
+    # a growing map's values gain up to growth_bits a step: its work grows with them
+    if rate is not None or is_quick(starts * (growth_bits(m) if growing else 1), cap):
         return _plan("scan", m, start, to, sides, cap, n, rate, lambda s: None, budget)
+    from .census import MEASURE_ABOVE, NOMINAL_RATE
+
+    if not growing and starts < MEASURE_ABOVE and starts * cap <= NOMINAL_SCAN_WORK:
+        # a contracting map's starts drop within a few steps: under a few seconds
+        per = 1.0 / NOMINAL_RATE
+        return WalkPlan(
+            "scan",
+            m,
+            start,
+            to,
+            sides,
+            cap,
+            starts,
+            (),
+            per,
+            n,
+            starts * per / n,
+            "not measured: fewer than 10^8 starts of a contracting map, nominal rate",
+        )
     from .scan.chunks import ChunkTask, default_chunk_size, run_chunk
     from .scan.rate import estimate_scan
 
-    growing = m.drift_ratio() >= 1
     branches = tuple(tuple(b) for b in m.branches)
     total = 0.0
     samples: list[Sample] = []
@@ -672,7 +715,9 @@ def plan_scan(
         growing_cap = c
     if growing:
         source = (
-            f"measured now: {timed:,} starts walked with step caps up to {growing_cap:,}, "
+            f"measured now: {timed:,} starts walked to the step cap, one worker"
+            if growing_cap >= cap
+            else f"measured now: {timed:,} starts walked with step caps up to {growing_cap:,}, "
             "scaled to the cap (orbits grow; leaning high), one worker"
         )
     else:
@@ -766,7 +811,7 @@ def check_plan(
     )
     w = plan.workers
     raise InputError.of(
-        f"{plan.what} of {plan.map.label} over {plan.start:,}..{plan.to:,} "
+        f"{plan.what} of {_label(plan.map)} over {plan.start:,}..{plan.to:,} "
         f"({' and '.join(plan.sides)} side{'s' if len(plan.sides) > 1 else ''}, step cap "
         f"{plan.max_steps:,}): {plan.starts:.3g} starts, about {duration_text(plan.seconds)} "
         f"at {plan.rate:.2g} starts/s per worker x {w} worker{'s' if w != 1 else ''} "

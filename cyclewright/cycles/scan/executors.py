@@ -3,7 +3,9 @@
 Inside
 ------
 - :class:`LocalExecutor` -- a pool of worker processes on this machine (all
-  cores by default); one worker, or one task, runs in the calling process.
+  cores by default); one worker, or one task, runs in the calling process
+  unless the work is long (``isolate``: then in one worker process, so the
+  caller answers a stop signal within a second).
 - :class:`DaskExecutor` -- the same tasks on a Dask distributed cluster,
   given the scheduler's address (optional extra ``cluster``). A scheduler
   that cannot be reached within the timeout raises
@@ -194,6 +196,11 @@ class LocalExecutor:
     prepare : callable, optional
         Called once in the parent before the pool starts (with the fork start
         method the workers inherit what it loaded, e.g. compiled kernels).
+    isolate : bool
+        Run even one worker's tasks in a worker process (not in the calling
+        process): a long compiled call then never keeps the caller from
+        answering a stop signal, which Python handles only between bytecodes.
+        For work expected to take a second or more.
 
     Examples
     --------
@@ -204,16 +211,24 @@ class LocalExecutor:
 
     name = "local"
 
-    def __init__(self, workers: int | None = None, prepare: Callable[[], None] | None = None):
+    def __init__(
+        self,
+        workers: int | None = None,
+        prepare: Callable[[], None] | None = None,
+        isolate: bool = False,
+    ):
         if workers is not None:
             check_workers(workers)
         self.workers = int(workers) if workers is not None else default_workers()
         self.prepare = prepare
+        self.isolate = isolate
 
     def map_unordered(self, fn: Callable, tasks: Iterable) -> Iterator:
         it = iter(tasks)
         head = [t for _, t in zip(range(2 * self.workers), it)]
-        if self.workers == 1 or len(head) <= 1:
+        if not head:
+            return
+        if (self.workers == 1 or len(head) <= 1) and not self.isolate:
             if self.prepare is not None:  # compile first: an interrupt then ends it at once
                 self.prepare()
                 check_interrupt()
@@ -476,8 +491,9 @@ def make_executor(
     scheduler: str | None = None,
     timeout: float = DEFAULT_DASK_TIMEOUT,
     prepare: Callable[[], None] | None = None,
+    isolate: bool = False,
 ):
-    """``"local"`` -> :class:`LocalExecutor`; ``"dask"`` -> :class:`DaskExecutor` (needs ``scheduler``).
+    """``"local"`` -> :class:`LocalExecutor` (``isolate``: see there); ``"dask"`` -> :class:`DaskExecutor` (needs ``scheduler``).
 
     >>> make_executor("local", workers=2).describe()
     'local (2 workers)'
@@ -490,7 +506,7 @@ def make_executor(
                 Name("executor"),
                 " dask)",
             )
-        return LocalExecutor(workers, prepare)
+        return LocalExecutor(workers, prepare, isolate)
     if name == "dask":
         if not scheduler:
             raise InputError.of(

@@ -49,6 +49,10 @@ from .store import (
     prove_cycle_rows,
 )
 
+#: A scan estimated to take this many seconds or more runs its chunks in worker
+#: processes even with one worker (see :class:`~.executors.LocalExecutor`).
+ISOLATE_SECONDS = 1.0
+
 _CLAIM_GROUP = 16  # chunks claimed per store transaction
 _CLAIM_POLL = 0.5  # seconds between looks at chunks another run is computing
 
@@ -340,7 +344,13 @@ def scan(
     from .executors import make_executor
 
     ex = make_executor(
-        executor, workers=workers, scheduler=scheduler, prepare=_prepare_parent(m, sides, cap, to)
+        executor,
+        workers=workers,
+        scheduler=scheduler,
+        prepare=_prepare_parent(m, sides, cap, to),
+        # work of a second or more runs in worker processes even on one worker: a long
+        # compiled call in this process would not answer a stop signal until it returns
+        isolate=plan is None or plan.seconds >= ISOLATE_SECONDS,
     )
     try:
         if notice is None:
