@@ -215,6 +215,7 @@ def _scan(ctx: StudyContext, spec: AnalysisSpec) -> Section:
             max_steps=p["max_steps"],
             store=ctx.stores,
             workers=ctx.workers,
+            max_minutes=None,  # estimated and checked before the study started (_preflight)
         )
         uses.append(r.store_use)
         t_counts, t_cycles = r.tables()
@@ -592,6 +593,9 @@ def _preflight(study: Study, workers: int | None) -> dict:
 
     rates: dict = {}
     for i, spec in enumerate(study.analyses, 1):
+        if spec.kind == "scan":
+            _preflight_scan(i, spec, workers)
+            continue
         if spec.kind != "records":
             continue
         p = spec.params
@@ -609,6 +613,21 @@ def _preflight(study: Study, workers: int | None) -> dict:
             check_plan(plan, p["max_minutes"], option=f"max_minutes of analysis {i}")
             rates[(id(spec), m.key)] = plan.rate if plan.seconds_per_start > 0 else None
     return rates
+
+
+def _preflight_scan(i: int, spec, workers: int | None) -> None:
+    """Estimate a scan analysis, map by map, and refuse it beyond its ``max_minutes``."""
+    from cyclewright.cycles.errors import InputError
+    from cyclewright.cycles.records_plan import check_plan, plan_scan
+
+    p = spec.params
+    if p["from"] > p["to"]:
+        raise InputError(f"analysis {i} (scan): empty range {p['from']}..{p['to']}")
+    for m in spec.maps:
+        plan = plan_scan(
+            m, p["to"], start=p["from"], side=p["side"], max_steps=p["max_steps"], workers=workers
+        )
+        check_plan(plan, p["max_minutes"], option=f"max_minutes of analysis {i}")
 
 
 def run_study(

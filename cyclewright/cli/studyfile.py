@@ -250,6 +250,7 @@ PARAMS: dict[str, dict[str, tuple[Callable, object]]] = {
         "from": (_int(1, limit=check_scan_end), 1),
         "side": (SIDE, DEFAULT_SIDE),
         "max_steps": (_int(limit=check_step_cap), DEFAULT_MAX_STEPS),
+        "max_minutes": (_minutes, MAX_RECORDS_MINUTES),
     },
     "census": {
         "max_length": (_int(1, MAX_CENSUS_LENGTH), 30),

@@ -780,6 +780,8 @@ def census(
             executor=executor,
             scheduler=scheduler,
             chunk_size=chunk_size,
+            max_minutes=None,  # the census's own plan was checked (max_scan)
+            isolate=plan.seconds >= 1.0,
         )
         store_path = r.store_path
         use = use + r.store_use

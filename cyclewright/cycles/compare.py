@@ -974,6 +974,7 @@ def compare(
                 workers=workers,
                 executor=executor,
                 scheduler=scheduler,
+                max_minutes=None,  # bounded by MAX_COMPARE_TO, refused before the comparison
             )
             use = use + sr.store_use
             met[side] = list(sr.minima.get(side, ()))

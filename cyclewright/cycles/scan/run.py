@@ -220,6 +220,7 @@ def scan(
     max_minutes: float | None = MAX_RECORDS_MINUTES,
     rate: float | None = None,
     on_plan: Callable | None = None,
+    isolate: bool | None = None,
 ) -> ScanResult:
     """Find every integer cycle whose minimum lies in ``[start, to]``, exactly.
 
@@ -278,6 +279,11 @@ def scan(
     on_plan : callable, optional
         Receives the :class:`~cyclewright.cycles.records_plan.WalkPlan`
         before the scan starts.
+    isolate : bool, optional
+        Run the chunks in worker processes even on one worker, so that a stop
+        signal ends the scan within a second (a long compiled call in this
+        process answers none until it returns). None: when the estimate says
+        :data:`ISOLATE_SECONDS` or more, or when there is no estimate.
 
     Returns
     -------
@@ -350,7 +356,7 @@ def scan(
         prepare=_prepare_parent(m, sides, cap, to),
         # work of a second or more runs in worker processes even on one worker: a long
         # compiled call in this process would not answer a stop signal until it returns
-        isolate=plan is None or plan.seconds >= ISOLATE_SECONDS,
+        isolate=(plan is None or plan.seconds >= ISOLATE_SECONDS) if isolate is None else isolate,
     )
     try:
         if notice is None:
