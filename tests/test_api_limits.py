@@ -96,6 +96,19 @@ CHILD = textwrap.dedent(
         "records-memory-step-cap-10^6": lambda: cw.records(
             "5x+1", 1000, max_steps=10**6, store=False
         ),
+        # scan: timed on pieces of the range (sieve counted), refused with the estimate;
+        # no machine classifies 2^63 starts in 30 minutes
+        "scan-to-2^63-1": lambda: cw.scan("3x+1", 2**63 - 1, store=False),
+        "scan-rate-given": lambda: cw.scan("3x+1", 10**9, rate=1e3, workers=2, store=False),
+        "scan-max-minutes-negative": lambda: cw.scan("3x+1", 100, max_minutes=-1, store=False),
+        # orbits that grow: a few starts walked with growing step caps; a limit of
+        # 0.001 min (60 ms) is below any machine's time for 1000 walks of 10^7 steps
+        "scan-growing-5x+1": lambda: cw.scan(
+            "5x+1", 1000, max_steps=10**7, workers=1, max_minutes=0.001, store=False
+        ),
+        "scan-cycle-length-rate": lambda: cw.scan(
+            "3x+1", 10**12, max_cycle_length=1000, rate=1e6, workers=1, store=False
+        ),
     }
 
     def alarm(*_):
@@ -158,6 +171,11 @@ EXPECTED: dict[str, tuple[str, str]] = {
     "records-to-2^63-1": ("InputError", "9.22e+18 starts, about"),
     "records-rate-given": ("InputError", "x 2 workers (rate given; heuristic)"),
     "records-memory-step-cap-10^6": ("InputError", "of memory, more than the 2.1 GB allowed"),
+    "scan-to-2^63-1": ("InputError", "scan of 3x+1 over 1..9,223,372,036,854,775,807"),
+    "scan-rate-given": ("InputError", "about 6 days at 1e+03 starts/s per worker x 2 workers"),
+    "scan-max-minutes-negative": ("InputError", "max_minutes must be a number of minutes >= 0"),
+    "scan-growing-5x+1": ("InputError", "scaled to the cap (orbits grow; leaning high)"),
+    "scan-cycle-length-rate": ("InputError", "beyond the limit of 30 min (max_minutes)"),
 }
 
 

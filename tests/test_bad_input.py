@@ -701,3 +701,38 @@ def test_a_large_negative_start_quotes_the_bound_as_a_limit(ws, capsys):
     code, _, err = run_main(["orbit", "3x+1", "-10^5000"], capsys)
     assert code == 2
     assert err.strip() == "error: N must be at least -10^1000, got -10^5000"
+
+
+# ------------------------------------------------ scan: the time refused up front
+SCAN_TIME_CASES = [
+    # the range's chunks timed (sieve counted): 2^63 starts take years on any machine
+    ["scan", "3x+1", "--to", "2^63-1", "--no-store"],
+    ["scan", "3x+1", "--to", "2^63-1", "--side", "both", "--max-length", "1000"],
+    # orbits that grow: walks with growing step caps, scaled; 0.001 min is 60 ms
+    [
+        "scan",
+        "5x+1",
+        "--to",
+        "1000",
+        "--max-steps",
+        "10^7",
+        "--workers",
+        "1",
+        "--max-minutes",
+        "0.001",
+    ],
+    ["scan", "3x+1", "--to", "100", "--max-minutes", "-1"],
+    ["scan", "3x+1", "--to", "100", "--max-minutes", "inf"],
+    ["scan", "3x+1", "--to", "100", "--max-minutes", "soon"],
+]
+
+
+@pytest.mark.parametrize("args", SCAN_TIME_CASES, ids=lambda a: " ".join(a[1:]))
+def test_scan_time_is_refused_before_any_work(ws, args, capsys):
+    before = _snapshot(ws)
+    code, out, err = run_main(args, capsys)
+    assert code == 2 and out == "" and err.count("\n") == 1 and err.startswith("error: ")
+    assert "Traceback" not in err and _snapshot(ws) == before  # no store, nothing written
+    if "--max-minutes" not in args or args[-1] == "0.001":
+        assert "beyond the limit of" in err and "(--max-minutes): raise it" in err
+        assert "heuristic" in err and "--workers" in err

@@ -292,6 +292,14 @@ CASES: list[tuple] = [
         "--max-minutes",
     ),
     (
+        "MAX_RECORDS_MINUTES",
+        "scan-max-minutes-negative",
+        lambda: cw.scan("3x+1", 100, max_minutes=-1, store=False),
+        "max_minutes",
+        ["scan", "3x+1", "--to", "100", "--max-minutes", "-1", "--no-store"],
+        "--max-minutes",
+    ),
+    (
         "MAX_WIDTH",  # cycles/figures.py
         "orbit-width-20",
         lambda: figure_width(20),
@@ -440,6 +448,15 @@ def test_a_time_limit_says_the_api_sentence_in_option_words(work, capsys):
         "(--max-minutes): raise it, use more --workers or a Dask cluster (--executor dask, --scheduler ADDRESS"
         in line
     )
+    # the scan's refusal: the same sentence, built by the same check
+    exc = _api_error(lambda: cw.scan("3x+1", 2**63 - 1, workers=2, store=False))
+    assert exc.param == "max_minutes" and str(exc).startswith("scan of 3x+1 over")
+    expected = exc.renamed(
+        {"max_minutes": "--max-minutes", "workers": "--workers", "executor": "--executor"}
+        | {"scheduler": "--scheduler"}
+    )
+    line = _cli_line(["scan", "3x+1", "--to", "2^63-1", "--workers", "2", "--no-store"], capsys)
+    assert words(line) == "error: " + words(expected)
 
 
 def test_every_limit_has_a_case_or_a_reason():

@@ -20,10 +20,13 @@ from cyclewright.cycles.records_plan import (
     QUICK_SECONDS,
     WalkPlan,
     check_plan,
+    growing_seconds,
+    growth_bits,
     is_quick,
     measure_pieces,
     plan_excursions,
     plan_records,
+    plan_scan,
     records_memory,
 )
 
@@ -217,3 +220,92 @@ def test_compare_refuses_its_records_before_any_map_is_worked_on(monkeypatch):
     msg = str(info.value)
     # API messages name parameters, never an option of the command line
     assert "(records' max_minutes)" in msg and "--" not in msg
+
+
+# ------------------------------------------------------------------ scan
+def test_growing_walks_are_scaled_from_growing_caps_leaning_high():
+    # a walk whose i-th step costs alpha + beta * i (values gaining the same bits every
+    # step: common practice, no source) costs alpha c + beta c^2 / 2 for c steps
+    t = {"now": 0.0}
+    caps = []
+
+    def walk(c, alpha=1e-6, beta=2e-9):
+        caps.append(c)
+        t["now"] += alpha * c + beta * c * c / 2
+
+    per, c, dt = growing_seconds(walk, 10**7, pieces=4, budget=0.3, clock=lambda: t["now"])
+    assert caps == [16 * 4**i for i in range(len(caps))] and c == caps[-1] < 10**7
+    true = (1e-6 * 10**7 + 1e-9 * 10**14) / 4
+    assert true * 0.99 <= per <= true * 1.01  # the fit is exact on this model
+    # a walk of constant cost per step: the straight scaling, never less
+    t["now"] = 0.0
+    per, c, _ = growing_seconds(
+        lambda c: t.__setitem__("now", t["now"] + 1e-5 * c), 10**8, clock=lambda: t["now"]
+    )
+    assert per == pytest.approx(1e-5 * 10**8, rel=1e-6)
+    # the cap reached within the budget: measured, not scaled
+    t["now"] = 0.0
+    per, c, dt = growing_seconds(
+        lambda c: t.__setitem__("now", t["now"] + 1e-6 * c), 1000, pieces=2, clock=lambda: t["now"]
+    )
+    assert c == 1000 and per == pytest.approx(1e-6 * 1000 / 2)
+
+
+def test_scan_plan_with_a_given_rate_and_its_refusal():
+    p = plan_scan("3x+1", 2**63 - 1, side="both", max_steps=1000, workers=2, rate=1e9)
+    assert p.what == "scan" and p.starts == 2 * (2**63 - 1) and p.samples == ()
+    assert p.seconds == pytest.approx(2 * (2**63 - 1) / (1e9 * 2))
+    with pytest.raises(cw.InputError) as info:
+        check_plan(p, 30)
+    msg = str(info.value)
+    assert msg.startswith("scan of 3x+1 over 1..9,223,372,036,854,775,807 (positive and")
+    assert "beyond the limit of 30 min (max_minutes)" in msg and "\n" not in msg
+    with cw.lift_limits():
+        assert check_plan(p, 30) is p
+    # a cycle-length bound is the scan's cap
+    q = plan_scan("3x+1", 10**12, max_steps=1000, max_cycle_length=77, workers=1, rate=1e6)
+    assert q.max_steps == 77 and q.seconds == pytest.approx(10**6)
+    # small contracting scans are not measured; small growing ones are weighed by their bits
+    assert plan_scan("3x+1", 10**6, max_steps=1000).source.startswith("not measured")
+    assert growth_bits(cw.maps.get("7x+1")) == 3
+
+
+def test_scan_plan_times_the_real_chunks():
+    # shape only (no speed): samples inside the range, a positive time, the sieve named
+    p = plan_scan("3x+1", 10**12, max_steps=1000, workers=1, budget=0.05)
+    assert p.samples and p.seconds_per_start > 0 and "sieve" in p.source
+    assert all(1 <= s.lo <= s.hi <= 10**12 for s in p.samples)
+    g = plan_scan("5x+1", 1000, max_steps=10**6, workers=1, budget=0.05)
+    assert g.samples and g.seconds > 0 and "step cap" in g.source
+    assert all(1 <= s.lo <= s.hi <= 1000 for s in g.samples)
+
+
+def test_a_huge_multiplier_is_shortened_in_the_plan():
+    from cyclewright.maps import Map
+
+    m = Map(2, [(1, 0), (10**4000 + 1, 1)])
+    p = plan_scan(m, 100, max_steps=1000, workers=1, rate=1e-3)
+    assert "(4004 characters)" in p.lines()[0] and len(p.lines()[0]) < 200
+    with pytest.raises(cw.InputError) as info:
+        check_plan(p, 30)
+    assert len(str(info.value)) < 600
+
+
+def test_scan_refuses_before_any_work_and_plan_option(capsys, tmp_path, monkeypatch):
+    import json
+
+    monkeypatch.chdir(tmp_path)
+    calls = []
+    with pytest.raises(cw.InputError, match="beyond the limit of 1 min"):
+        cw.scan("3x+1", 10**9, rate=1e3, max_minutes=1, store="s.sqlite", on_plan=calls.append)
+    assert calls == [] and list(tmp_path.iterdir()) == []  # no store created
+    r = cw.scan("3x+5", 400, rate=1e3, max_minutes=60, store=False, on_plan=calls.append)
+    assert [p.starts for p in calls] == [400]
+    assert r.minima["positive"] == (1, 5, 19, 23, 187, 347)  # OEIS A226607
+    code, out, err = _run(["scan", "3x+1", "--to", "10^12", "--plan", "--json"], capsys)
+    doc = json.loads(out)
+    assert code == 0 and doc["what"] == "scan" and doc["starts"] == 10**12
+    args = ["scan", "3x+1", "--to", "10^12", "--plan", "--max-minutes", "0"]
+    code, out, err = _run(args, capsys)
+    assert code == 0 and "would be refused" in out
+    assert list(tmp_path.iterdir()) == []  # nothing written

@@ -74,6 +74,7 @@ def _handlers_installed(pid: int) -> bool:
 
 
 _ARGS = ["5x+1", "--to", "60000", "--chunk-size", "2000", "--workers", "2", "--json"]
+_ARGS += ["--max-minutes", "100000"]  # timed by the stores, not refused by the estimate
 _TOTAL = 30
 
 
@@ -184,11 +185,11 @@ def _stopped_at(cmd, env, delay, signum):
         proc.send_signal(signum)
     out, err = proc.communicate(timeout=300)
     assert "Traceback" not in err, (cmd, delay, err)
-    lines = [x for x in err.splitlines() if not x.startswith("progress:")]
+    lines = [x for x in err.splitlines() if not x.startswith(("progress:", "plan:"))]
     return proc.returncode, out, lines, kids
 
 
-_LONG_SCAN = ["scan", "3x+1", "--to", "10^15", "--no-store"]
+_LONG_SCAN = ["scan", "3x+1", "--to", "10^15", "--no-store", "--max-minutes", "100000000"]
 
 
 @pytest.mark.parametrize("sig", ["SIGINT", "SIGTERM", "SIGHUP"])
@@ -203,6 +204,49 @@ def test_a_stop_signal_at_any_moment_ends_the_command(tmp_path, sig):
         assert code == 128 + signum, (delay, lines)
         assert lines == ["error: interrupted"] and out == "", (delay, lines)
         assert _gone(kids)
+
+
+@pytest.mark.parametrize("sig", ["SIGTERM", "SIGINT"])
+def test_one_worker_in_a_long_compiled_walk_still_stops_at_once(tmp_path, sig):
+    # 5x+1 orbits grow (Lagarias 1985, from memory: most 5x+1 orbits diverge), so a
+    # start walked for 10^7 steps is one long call into compiled and big-integer code,
+    # during which Python runs no signal handler. Even with one worker the scan runs
+    # it in a worker process: the command answers the signal, ends the worker and
+    # says one line. The wait is for the worker to exist, never for a speed.
+    env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba"))
+    signum = getattr(signal, sig)
+    cmd = [sys.executable, "-m", "cyclewright", "scan", "5x+1", "--to", "1000"]
+    cmd += ["--max-steps", "10^7", "--workers", "1", "--no-store", "--max-minutes", "1000000"]
+    proc = subprocess.Popen(
+        cmd,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        env=env,
+        start_new_session=True,
+    )
+    deadline = time.monotonic() + 300
+    kids: set[int] = set()
+    while not kids and proc.poll() is None:
+        assert time.monotonic() < deadline
+        kids = _children(proc.pid)
+        time.sleep(0.02)
+    time.sleep(1.0)  # well inside the walk (it takes minutes)
+    assert proc.poll() is None, proc.communicate()
+    if signum == signal.SIGINT:
+        os.killpg(proc.pid, signum)
+    else:
+        proc.send_signal(signum)
+    try:
+        out, err = proc.communicate(timeout=60)  # a safety net: it ends within a second
+    except subprocess.TimeoutExpired:
+        os.killpg(proc.pid, signal.SIGKILL)
+        proc.communicate()
+        pytest.fail("the scan kept running after the stop signal")
+    lines = [x for x in err.splitlines() if not x.startswith(("progress:", "plan:"))]
+    assert proc.returncode == 128 + signum, err
+    assert lines[-1] == "error: interrupted" and "Traceback" not in err and out == ""
+    assert _gone(kids)
 
 
 # ----------------------------------------------------------------- Dask clusters

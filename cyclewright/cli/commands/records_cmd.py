@@ -209,7 +209,7 @@ def show_plan(plan) -> None:
     """The estimate on stderr before a run of a second or more (a short run starts at once)."""
     if plan.seconds >= 1.0:
         for line in plan.lines():
-            stderr_console().print(f"plan: {line}", highlight=False)
+            stderr_console().print(f"plan: {line}", highlight=False, soft_wrap=True)
 
 
 def _plan(m, to, start, side, max_steps, workers, executor, limit, as_json) -> None:
