@@ -45,9 +45,10 @@ from collections.abc import Iterator
 
 from cyclewright.maps.text import quote
 
-from .errors import InputError
+from .errors import InputError, Name
 
 __all__ = [
+    "refuse_time",
     "DEFAULT_MAX_STEPS",
     "DEFAULT_CEILING",
     "wait_seconds",
@@ -609,3 +610,44 @@ MAX_RECORDS_MINUTES = 30.0
 #: A ``records`` or ``excursions`` range with ``starts * max_steps^2`` at most
 #: this is not timed before it runs (well under a second of work).
 QUICK_WALK_WORK = 10**9
+
+
+def refuse_time(
+    head: str,
+    seconds: float,
+    source: str,
+    max_minutes: float,
+    *,
+    at: str = "",
+    option: str = "max_minutes",
+    raise_it: str = "raise it",
+    ways: tuple = (),
+    last: str = "use a smaller range",
+):
+    """Raise the one refusal of a run estimated beyond its time limit (one wording everywhere).
+
+    ``HEAD, about T AT (SOURCE; heuristic); beyond the limit of M min (OPTION):
+    RAISE_IT, WAYS..., LAST`` -- records, excursions, scan
+    (:func:`~cyclewright.cycles.records_plan.check_plan`), a family census
+    and a comparison say their estimate in these words. ``option`` and any
+    :class:`~cyclewright.cycles.errors.Name` in ``ways`` are parameters, so
+    the command line says its options.
+
+    Examples
+    --------
+    >>> refuse_time("census of 3 members", 5400, "2 members timed", 30)
+    Traceback (most recent call last):
+    ...
+    cyclewright.cycles.errors.InputError: census of 3 members, about 90 min (2 members timed; heuristic); beyond the limit of 30 min (max_minutes): raise it, or use a smaller range
+    """
+    from .presentation import duration_text
+
+    raise InputError.of(
+        f"{head}, about {duration_text(seconds)}{at} ({source}; heuristic); "
+        f"beyond the limit of {max_minutes:g} min (",
+        Name(option),
+        f"): {raise_it}, ",
+        *ways,
+        "or ",
+        last,
+    )

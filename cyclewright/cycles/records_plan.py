@@ -60,7 +60,13 @@ from cyclewright.maps import Map, as_map
 
 from .errors import InputError, Name
 from .labels import EXACT, HEURISTIC
-from .limits import MAX_RECORDS_MINUTES, QUICK_WALK_WORK, check_memory, limits_lifted
+from .limits import (
+    MAX_RECORDS_MINUTES,
+    QUICK_WALK_WORK,
+    check_memory,
+    limits_lifted,
+    refuse_time,
+)
 from .presentation import duration_text
 from .scan.rate import PARTS, Sample, _median_sample
 from .sides import DEFAULT_SIDE, Side, sides_of
@@ -810,14 +816,15 @@ def check_plan(
         else ()
     )
     w = plan.workers
-    raise InputError.of(
+    refuse_time(
         f"{plan.what} of {_label(plan.map)} over {plan.start:,}..{plan.to:,} "
         f"({' and '.join(plan.sides)} side{'s' if len(plan.sides) > 1 else ''}, step cap "
-        f"{plan.max_steps:,}): {plan.starts:.3g} starts, about {duration_text(plan.seconds)} "
-        f"at {plan.rate:.2g} starts/s per worker x {w} worker{'s' if w != 1 else ''} "
-        f"({plan.source}; heuristic); beyond the limit of {max_minutes:g} min (",
-        Name(option),
-        f"): {raise_it}, ",
-        *ways,
-        "or use a smaller range",
+        f"{plan.max_steps:,}): {plan.starts:.3g} starts",
+        plan.seconds,
+        plan.source,
+        max_minutes,
+        at=f" at {plan.rate:.2g} starts/s per worker x {w} worker{'s' if w != 1 else ''}",
+        option=option,
+        raise_it=raise_it,
+        ways=ways,
     )
