@@ -73,10 +73,12 @@ from .limits import (
     MAX_CF_CENSUS_LENGTH,
     MAX_FAMILY_MEMBERS,
     MAX_ITINERARY_WORK,
+    MAX_RECORDS_MINUTES,
     check_members,
     check_range,
     check_workers,
     limits_lifted,
+    refuse_time,
 )
 from .presentation import Presentable, Table, duration_text
 from .progress import ProgressCallback, report
@@ -1041,6 +1043,8 @@ def census_family(
     side: Side = DEFAULT_SIDE,
     all_k: bool = False,
     progress: ProgressCallback | None = None,
+    max_minutes: float | None = MAX_RECORDS_MINUTES,
+    member_seconds: float | None = None,
     **kw,
 ) -> FamilyCensus:
     """The census of every member ``ax+k`` (or ``ax-k``) of a family.
@@ -1060,6 +1064,19 @@ def census_family(
     progress : ProgressCallback, optional
         Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
         (phase ``"family"``, unit ``"maps"``) after each member.
+    max_minutes : float or None
+        Refuse (:class:`InputError`) a family whose whole run is estimated
+        above this many minutes (default
+        :data:`~cyclewright.cycles.limits.MAX_RECORDS_MINUTES`): with more
+        than :data:`FAMILY_TIMED` members, the first member runs untimed
+        (it loads the kernels), then the plans of :data:`FAMILY_TIMED`
+        members spread over the family are scaled to it (refused at once
+        beyond the limit), then those members run timed and their times,
+        each standing for its part of the family, are summed (heuristic).
+        Their results are kept. None, or inside
+        :func:`~cyclewright.cycles.limits.lift_limits`: never refused.
+    member_seconds : float, optional
+        Seconds per member for that estimate, instead of a measurement.
     **kw
         Passed to :func:`census` (``store``, ``workers``, ``max_scan``...).
         Without ``store``, members whose scans have fewer than
@@ -1107,9 +1124,97 @@ def census_family(
         )
     family = [parse_shorthand(f"{a}x{'+' if sign > 0 else '-'}{k}") for k in members]
     check_store_for_maps(kw.get("store"), family, "a family census")
-    rows = []
     kw.setdefault("_store_above", FAMILY_STORE_ABOVE)
+    done: dict[int, Census] = {}
+    if max_minutes is not None and not limits_lifted() and len(family) > FAMILY_TIMED:
+        done = _time_family(template, family, max_length, side, max_minutes, member_seconds, kw)
+    rows = []
     for i, m in enumerate(family, start=1):
-        rows.append(census(m, max_length, side=side, **kw))
+        r = done.get(i - 1)
+        rows.append(r if r is not None else census(m, max_length, side=side, **kw))
         report(progress, "family", i, len(members), "maps", m.label)
     return FamilyCensus(template, max_length, side, tuple(rows))
+
+
+#: A family census of more members than this is timed before it runs (this many
+#: members, spread over the family) and refused beyond ``max_minutes``.
+FAMILY_TIMED = 4
+
+
+def _family_parts(n: int, parts: int = FAMILY_TIMED) -> list[tuple[int, int]]:
+    """(index near the middle, size) of ``parts`` equal parts of ``n`` members (the first skipped).
+
+    >>> _family_parts(3333)
+    [(417, 833), (1250, 833), (2083, 833), (2916, 833)]
+    """
+    out = []
+    for j in range(parts):
+        lo, hi = 1 + j * (n - 1) // parts, 1 + (j + 1) * (n - 1) // parts
+        if hi > lo:
+            out.append(((lo + hi) // 2, hi - lo))
+    return out
+
+
+def _time_family(template, family, max_length, side, max_minutes, member_seconds, kw) -> dict:
+    """Estimate the family's whole run and refuse it beyond ``max_minutes``; the members run."""
+    import time
+
+    from .records_plan import check_minutes
+
+    check_minutes(max_minutes)
+    n = len(family)
+    head = f"census of the family {template} ({n:,} members, length <= {max_length:,})"
+    ways: tuple = ()
+    last = "use fewer members (a smaller range of ks)"
+    if member_seconds is not None:
+        if not member_seconds > 0:
+            raise InputError(f"member_seconds must be a positive number, got {member_seconds!r}")
+        seconds = member_seconds * n
+        if seconds > max_minutes * 60:
+            refuse_time(
+                head, seconds, "seconds per member given", max_minutes, ways=ways, last=last
+            )
+        return {}
+    parts = _family_parts(n)
+    # the plans first (the scans' times, without running them): refused at once beyond
+    planned = 0.0
+    for i, size in parts:
+        try:
+            p = plan_census(
+                family[i],
+                max_length,
+                side=side,
+                method=kw.get("method", "auto"),
+                workers=kw.get("workers"),
+                rate=kw.get("rate"),
+                max_scan=kw.get("max_scan", MAX_SCAN),
+            )
+        except InputError:
+            continue  # that member's census refuses itself, in its own words
+        planned += p.seconds * size
+    if planned > max_minutes * 60:
+        refuse_time(
+            head,
+            planned,
+            f"the scans of {len(parts)} members planned, scaled to the family",
+            max_minutes,
+            ways=ways,
+            last=last,
+        )
+    done = {0: census(family[0], max_length, side=side, **kw)}  # untimed: loads the kernels
+    seconds = 0.0
+    for i, size in parts:
+        t0 = time.perf_counter()
+        done[i] = census(family[i], max_length, side=side, **kw)
+        seconds += (time.perf_counter() - t0) * size
+    if seconds > max_minutes * 60:
+        refuse_time(
+            head,
+            seconds,
+            f"measured now: {len(parts) + 1} members run, {len(parts)} of them timed, "
+            "scaled to the family",
+            max_minutes,
+            ways=ways,
+            last=last,
+        )
+    return done

@@ -50,7 +50,7 @@ from cyclewright.maps import Map, as_map
 
 from .census import Census, census
 from .counting import count
-from .errors import InputError
+from .errors import InputError, Name
 from .itinerary import OfContent
 from .labels import CERTIFIED, EXACT, HEURISTIC, PROVED, ROUNDED, Label
 from .limits import (
@@ -66,6 +66,8 @@ from .limits import (
     check_step_cap,
     check_type_length,
     check_workers,
+    limits_lifted,
+    refuse_time,
 )
 from .minimum_bound import minimum_bound
 from .necklaces import contents_of_length, lyndon_count, necklace_count
@@ -846,6 +848,7 @@ def compare(
     count_limit: int = 10**5,
     progress: ProgressCallback | None = None,
     max_scan: int = MAX_COMPARE_SCAN,
+    max_minutes: float | None = MAX_RECORDS_MINUTES,
 ) -> Comparison:
     """Profiles of several maps with the same parameters.
 
@@ -880,6 +883,15 @@ def compare(
         :data:`~cyclewright.cycles.limits.MAX_COMPARE_SCAN`); a census
         beyond it is refused at once and its row says so (run ``census``
         for it).
+    max_minutes : float or None
+        Refuse (:class:`InputError`) a comparison whose whole run is
+        estimated above this many minutes (default
+        :data:`~cyclewright.cycles.limits.MAX_RECORDS_MINUTES`), before any
+        map is worked on: the records (timed, as they are for their own
+        limit) and the scan of ``1..N`` (:func:`~cyclewright.cycles.records_plan.plan_scan`)
+        of every map, summed (heuristic; the census, counts and floor are
+        not counted). None, or inside
+        :func:`~cyclewright.cycles.limits.lift_limits`: never refused.
     progress : ProgressCallback, optional
         Called with a :class:`~cyclewright.cycles.progress.ProgressEvent`
         (phase ``"compare"``, unit ``"maps"``, the map and stage as detail)
@@ -914,9 +926,10 @@ def compare(
     check_store_for_maps(store, maps_, "a comparison")
     # the records of each map are timed up front (records_plan) and refused before any
     # map is worked on; the runs then reuse the measured rate instead of timing again
-    from .records_plan import check_plan, plan_records
+    from .records_plan import check_minutes, check_plan, plan_records, plan_scan
 
     rates: dict = {}
+    whole = 0.0
     for m in maps_ if max_steps <= MAX_RECORDS_STEP_CAP else ():
         plan = plan_records(
             m, to, side="positive", max_steps=max_steps, workers=workers, executor=executor
@@ -928,6 +941,24 @@ def compare(
             raise_it="a comparison keeps the records' default limit",
         )
         rates[m.key] = plan.rate if plan.seconds_per_start > 0 else None
+        whole += plan.seconds
+    if max_minutes is not None and not limits_lifted():
+        check_minutes(max_minutes)
+        for m in maps_:
+            whole += plan_scan(
+                m, to, side="both", max_steps=max_steps, workers=workers, executor=executor
+            ).seconds
+        if whole > max_minutes * 60:
+            n = len(maps_)
+            refuse_time(
+                f"comparison of {n} map{'s' if n != 1 else ''} (to {to:,}, step cap {max_steps:,})",
+                whole,
+                "the records and the scan of every map timed now and summed; the census, "
+                "counts and floors not counted",
+                max_minutes,
+                ways=("use more ", Name("workers"), ", use a smaller ", Name("to"), ", "),
+                last="compare fewer maps",
+            )
     profiles = []
     for i, m in enumerate(maps_):
 

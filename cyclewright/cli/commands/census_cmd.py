@@ -16,6 +16,7 @@ from cyclewright.cycles.census import (
     plan_census,
 )
 from cyclewright.cycles.certificate import write_certificate
+from cyclewright.cycles.limits import MAX_RECORDS_MINUTES
 
 from ..errors import BadInput
 from ..files import check_output
@@ -38,6 +39,7 @@ from ..options import (
 )
 from ..progress import with_progress
 from ..render import emit_json, show_table, stderr_console, stdout_console
+from .records_cmd import parse_minutes
 
 __all__ = ["COMMANDS"]
 
@@ -83,6 +85,14 @@ __all__ = ["COMMANDS"]
     show_default=True,
     help="Refuse scans longer than this.",
 )
+@click.option(
+    "--max-minutes",
+    default=f"{MAX_RECORDS_MINUTES:g}",
+    show_default=True,
+    metavar="M",
+    help="A family (--offsets): refuse it when its whole run is estimated above M minutes "
+    "(a few members timed first, heuristic).",
+)
 @executor_options
 @plan_option
 @maps_option
@@ -100,6 +110,7 @@ def census_cmd(
     no_store,
     workers,
     max_scan,
+    max_minutes,
     executor,
     scheduler,
     plan_only,
@@ -117,8 +128,10 @@ def census_cmd(
         "max_scan": max_scan,
         "method": method,
     }
+    limit = parse_minutes(max_minutes)
     if "k" in map_spec.replace(" ", "").lower().split("x")[-1]:
         check_census_length(None, K)
+        kw["max_minutes"] = limit
         _family(map_spec, offsets, K, side, all_offsets, cert_path, kw, as_json)
         return
     if offsets is not None:

@@ -36,6 +36,7 @@ from ..options import (
 )
 from ..progress import with_progress
 from ..render import emit_json, show_table, stdout_console, write_csv
+from .records_cmd import max_minutes_option, parse_minutes
 
 __all__ = ["COMMANDS", "resolve_maps"]
 
@@ -114,6 +115,7 @@ _HELP = (
 @store_options
 @workers_option
 @executor_options
+@max_minutes_option
 @maps_option
 @json_option
 @latex_tables
@@ -133,9 +135,11 @@ def compare_cmd(
     workers,
     executor,
     scheduler,
+    max_minutes,
     map_files,
     as_json,
 ):
+    limit = parse_minutes(max_minutes)
     given = {"max_length": max_length, "to": to, "odd": odd}
     # the API's limits, refused before any output is checked or map resolved
     check_compare(
@@ -154,6 +158,7 @@ def compare_cmd(
         workers=workers,
         executor=executor,
         scheduler=scheduler,
+        max_minutes=limit,
     )
     if csv_path:
         target = sys.stdout if csv_path == "-" else csv_path
