@@ -106,6 +106,11 @@ CHILD = textwrap.dedent(
         "scan-growing-5x+1": lambda: cw.scan(
             "5x+1", 1000, max_steps=10**7, workers=1, max_minutes=0.001, store=False
         ),
+        # a family's and a comparison's whole run, estimated before it starts
+        "family-whole-time": lambda: census_family(
+            "3x+k", range(1, 10001), 20, member_seconds=1.0, store=False
+        ),
+        "compare-whole-time": lambda: cw.compare(["5x+1", "7x+1"], max_minutes=0, store=False),
         "scan-cycle-length-rate": lambda: cw.scan(
             "3x+1", 10**12, max_cycle_length=1000, rate=1e6, workers=1, store=False
         ),
@@ -175,6 +180,11 @@ EXPECTED: dict[str, tuple[str, str]] = {
     "scan-rate-given": ("InputError", "about 6 days at 1e+03 starts/s per worker x 2 workers"),
     "scan-max-minutes-negative": ("InputError", "max_minutes must be a number of minutes >= 0"),
     "scan-growing-5x+1": ("InputError", "scaled to the cap (orbits grow; leaning high)"),
+    "family-whole-time": (
+        "InputError",
+        "census of the family 3x+k (3,333 members, length <= 20), about 56 min",
+    ),
+    "compare-whole-time": ("InputError", "comparison of 2 maps (to 100,000, step cap 1,000)"),
     "scan-cycle-length-rate": ("InputError", "beyond the limit of 30 min (max_minutes)"),
 }
 

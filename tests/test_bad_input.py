@@ -724,6 +724,11 @@ SCAN_TIME_CASES = [
     ["scan", "3x+1", "--to", "100", "--max-minutes", "-1"],
     ["scan", "3x+1", "--to", "100", "--max-minutes", "inf"],
     ["scan", "3x+1", "--to", "100", "--max-minutes", "soon"],
+    # a family census and a comparison as a whole: any estimate is above 0 minutes
+    ["census", "3x+k", "--offsets", "1..10000", "--max-length", "20", "--max-minutes", "0"],
+    ["census", "3x+k", "--offsets", "1..100", "--max-length", "20", "--max-minutes", "-1"],
+    ["compare", "5x+1", "7x+1", "--no-store", "--max-minutes", "0"],
+    ["compare", "3x+1", "--no-store", "--max-minutes", "-1"],
 ]
 
 
@@ -733,6 +738,8 @@ def test_scan_time_is_refused_before_any_work(ws, args, capsys):
     code, out, err = run_main(args, capsys)
     assert code == 2 and out == "" and err.count("\n") == 1 and err.startswith("error: ")
     assert "Traceback" not in err and _snapshot(ws) == before  # no store, nothing written
-    if "--max-minutes" not in args or args[-1] == "0.001":
+    if "--max-minutes" not in args or args[-1] in ("0.001", "0"):
         assert "beyond the limit of" in err and "(--max-minutes): raise it" in err
-        assert "heuristic" in err and "--workers" in err
+        assert "heuristic" in err
+    if args[0] == "scan" and "--max-minutes" not in args or args[-1] == "0.001":
+        assert "--workers" in err

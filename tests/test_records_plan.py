@@ -309,3 +309,40 @@ def test_scan_refuses_before_any_work_and_plan_option(capsys, tmp_path, monkeypa
     code, out, err = _run(args, capsys)
     assert code == 0 and "would be refused" in out
     assert list(tmp_path.iterdir()) == []  # nothing written
+
+
+# ------------------------------------------------- a family census, a comparison
+def test_a_family_is_estimated_as_a_whole_and_its_timed_members_are_kept():
+    from cyclewright.cycles.census import FAMILY_TIMED, _family_parts, census_family
+
+    # the parts: FAMILY_TIMED members near the middles of equal parts after the first
+    parts = _family_parts(101)
+    assert len(parts) == FAMILY_TIMED and sum(size for _, size in parts) == 100
+    assert all(0 < i < 101 for i, _ in parts)
+    # a given time per member: 10 members of 10 s are beyond 1 min, refused at once
+    with pytest.raises(cw.InputError) as info:
+        census_family("3x+k", range(1, 31), 10, member_seconds=10.0, max_minutes=1, store=False)
+    msg = str(info.value)
+    assert msg.startswith("census of the family 3x+k (10 members, length <= 10), about 100 s")
+    assert "(max_minutes): raise it, or use fewer members" in msg and "heuristic" in msg
+    with cw.lift_limits():
+        census_family("3x+k", range(1, 31), 3, member_seconds=10.0, max_minutes=1, store=False)
+    # measured: the members timed first are the family's own rows, in order
+    timed = census_family("3x+k", range(1, 31), 12, workers=1, store=False)
+    plain = census_family("3x+k", range(1, 31), 12, workers=1, store=False, max_minutes=None)
+    assert [r["primitive_minima"] for r in timed.records()] == [
+        r["primitive_minima"] for r in plain.records()
+    ]
+    # the members are the k prime to 6 (Lagarias 1990, the 3x+k family)
+    assert [r["k"] for r in timed.records()][:3] == [1, 5, 7]
+
+
+def test_a_comparison_is_estimated_as_a_whole_before_any_map():
+    # any measured time is above a limit of 0 minutes: refused before the first map
+    calls = []
+    with pytest.raises(cw.InputError) as info:
+        cw.compare(["5x+1"], max_minutes=0, store=False, progress=calls.append)
+    msg = str(info.value)
+    assert msg.startswith("comparison of 1 map (to 100,000, step cap 1,000), about")
+    assert "beyond the limit of 0 min (max_minutes): raise it, use more workers" in msg
+    assert calls == []  # no map worked on
