@@ -85,6 +85,9 @@ RECIPES: dict[str, tuple[tuple, dict]] = {
     "plan_records": ((300,), {"side": "both", "max_steps": 100, "rate": 1e6}),
     "plan_excursions": ((300,), {"side": "both", "max_steps": 100, "rate": 1e6}),
     "records_memory": ((1000,), {"workers": 2}),
+    "plan_scan": ((300,), {"side": "both", "max_steps": 100, "rate": 1e6}),
+    "growth_bits": ((), {}),
+    "scan_arguments": ((300, 1, "both", 1, 100, None, None, "local"), {}),
 }
 
 # Takes several maps: the first argument is a sequence of maps.

@@ -104,13 +104,14 @@ def _label(m: Map) -> str:
     return t if len(t) <= 60 else f"{t[:24]}…{t[-24:]} ({len(t)} characters)"
 
 
-def growth_bits(m: Map) -> int:
+def growth_bits(m: Map | str) -> int:
     """Bits a value may gain in one step: those of the largest multiplier (1 at least).
 
     >>> from cyclewright import maps
     >>> growth_bits(maps.get("3x+1")), growth_bits(maps.get("5x+1"))
     (2, 3)
     """
+    m = as_map(m)
     return max(1, max(abs(a) for a in m.multipliers).bit_length())
 
 
