@@ -49,6 +49,7 @@ from cyclewright.cycles.figures import WIDTH_HELP as FIGURE_WIDTH_HELP
 from cyclewright.cycles.limits import (
     DEFAULT_CEILING,
     DEFAULT_MAX_STEPS,
+    MAX_RECORDS_MINUTES,
     check_step_cap,
     check_type_length,
     check_workers,
@@ -96,6 +97,7 @@ __all__ = [
     "from_option",
     "workers_option",
     "plan_option",
+    "max_minutes_option",
     "executor_options",
     "out_option",
     "csv_option",
@@ -585,6 +587,18 @@ plan_option = _shared(
     help=(
         "Only print the plan with its time estimate (heuristic) and whether the run "
         "would be refused; nothing runs."
+    ),
+)
+
+max_minutes_option = _shared(
+    "--max-minutes",
+    "max_minutes",
+    default=f"{MAX_RECORDS_MINUTES:g}",
+    show_default=True,
+    metavar="M",
+    help=(
+        "Refuse a run whose estimated time (measured now, heuristic) is above M minutes "
+        "(census: a family of maps as a whole)."
     ),
 )
 

@@ -16,7 +16,6 @@ from cyclewright.cycles.census import (
     plan_census,
 )
 from cyclewright.cycles.certificate import write_certificate
-from cyclewright.cycles.limits import MAX_RECORDS_MINUTES
 
 from ..errors import BadInput
 from ..files import check_output
@@ -29,6 +28,7 @@ from ..options import (
     map_argument,
     maps_option,
     max_length_option,
+    max_minutes_option,
     offsets_option,
     plan_option,
     resolve_map,
@@ -85,14 +85,7 @@ __all__ = ["COMMANDS"]
     show_default=True,
     help="Refuse scans longer than this.",
 )
-@click.option(
-    "--max-minutes",
-    default=f"{MAX_RECORDS_MINUTES:g}",
-    show_default=True,
-    metavar="M",
-    help="A family (--offsets): refuse it when its whole run is estimated above M minutes "
-    "(a few members timed first, heuristic).",
-)
+@max_minutes_option
 @executor_options
 @plan_option
 @maps_option

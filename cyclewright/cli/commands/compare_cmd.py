@@ -23,6 +23,7 @@ from ..options import (
     latex_tables,
     maps_option,
     max_length_option,
+    max_minutes_option,
     max_steps_option,
     odd_option,
     offsets_option,
@@ -36,7 +37,7 @@ from ..options import (
 )
 from ..progress import with_progress
 from ..render import emit_json, show_table, stdout_console, write_csv
-from .records_cmd import max_minutes_option, parse_minutes
+from .records_cmd import parse_minutes
 
 __all__ = ["COMMANDS", "resolve_maps"]
 

@@ -7,7 +7,6 @@ import sys
 import click
 
 from cyclewright.cycles.errors import InputError
-from cyclewright.cycles.limits import MAX_RECORDS_MINUTES
 from cyclewright.cycles.records import records
 from cyclewright.cycles.records_plan import check_minutes, check_plan, plan_records
 
@@ -22,6 +21,7 @@ from ..options import (
     latex_option,
     map_argument,
     maps_option,
+    max_minutes_option,
     max_steps_option,
     plan_option,
     plot_options,
@@ -42,18 +42,6 @@ from ..render import (
     stdout_console,
     write_csv,
 )
-
-
-def max_minutes_option(f):
-    """``--max-minutes M`` (records and scan)."""
-    return click.option(
-        "--max-minutes",
-        default=f"{MAX_RECORDS_MINUTES:g}",
-        show_default=True,
-        metavar="M",
-        help="Refuse a run whose estimated time (measured now, heuristic) is above M minutes.",
-    )(f)
-
 
 _EPILOG = """\b
 Examples:

@@ -17,6 +17,7 @@ from ..options import (
     map_argument,
     maps_option,
     max_length_option,
+    max_minutes_option,
     max_steps_option,
     plan_option,
     resolve_map,
@@ -29,7 +30,7 @@ from ..options import (
 )
 from ..progress import progress_display
 from ..render import emit_json, show_table, stdout_console
-from .records_cmd import max_minutes_option, parse_minutes, print_plan, show_plan
+from .records_cmd import parse_minutes, print_plan, show_plan
 
 _EPILOG = """\b
 Examples:
