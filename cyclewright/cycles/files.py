@@ -12,16 +12,23 @@ Inside
   permissions any new file gets under the process's umask (``0644`` under the
   usual ``022``), so shared results come out shared.
 - :func:`file_mode` -- that mode.
+- :func:`remove_sqlite_store` -- delete an SQLite results store (with its
+  journal files) unless a live process uses it; one procedure for the scan
+  stores and the records stores, which differ only in how they recognise
+  their files and their users.
 """
 
 from __future__ import annotations
 
 import os
+import sqlite3
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
-__all__ = ["data_dir", "cache_dir", "atomic_write", "file_mode"]
+from .errors import StoreError
+
+__all__ = ["data_dir", "cache_dir", "atomic_write", "file_mode", "remove_sqlite_store"]
 
 
 def data_dir() -> Path:
@@ -84,3 +91,76 @@ def file_mode() -> int:
     mask = os.umask(0)  # reading the umask means setting it: put it back at once
     os.umask(mask)
     return 0o666 & ~mask
+
+
+def remove_sqlite_store(
+    path: str | os.PathLike,
+    *,
+    kind: str,
+    header: bytes,
+    is_ours: Callable[[sqlite3.Connection], bool],
+    live_users: Callable[[sqlite3.Connection], list[tuple[int, str]]],
+    busy: Callable[[sqlite3.Error], bool],
+) -> int:
+    """Delete an SQLite results store and its journal files; the bytes freed.
+
+    Parameters
+    ----------
+    path : path-like
+    kind : str
+        What the store is called in messages (``"scan store"``).
+    header : bytes
+        The file's first bytes (SQLite's header): anything else is not ours.
+    is_ours : callable
+        Whether an open connection shows one of our stores of this kind.
+    live_users : callable
+        The ``(pid, host)`` of live processes using it, read under an
+        exclusive lock (nobody else may write while it goes).
+    busy : callable
+        Whether an SQLite error means another process holds the file.
+
+    Raises
+    ------
+    StoreError
+        No such file, not a store of this kind, or another process uses it;
+        nothing is removed then. An unreadable or damaged file that starts
+        like a store is still ours to remove.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise StoreError(f"no {kind} at {p}")
+    not_ours = f"{p} is not a cyclewright {kind}; nothing was removed"
+    with open(p, "rb") as fh:
+        if fh.read(len(header)) != header:
+            raise StoreError(not_ours)
+    try:
+        conn = sqlite3.connect(str(p), timeout=0.2, isolation_level=None)
+        try:
+            if not is_ours(conn):
+                raise StoreError(not_ours)
+            conn.execute("BEGIN EXCLUSIVE")  # nobody else may hold it while it goes
+            live = live_users(conn)
+            if live:
+                conn.execute("ROLLBACK")
+                who = ", ".join(f"process {pid} on {host}" for pid, host in live)
+                raise StoreError(f"{kind} {p} is in use by {who}; nothing was removed")
+            freed = p.stat().st_size
+            p.unlink()
+            conn.execute("ROLLBACK")
+        finally:
+            conn.close()
+    except sqlite3.Error as exc:
+        if busy(exc):
+            raise StoreError(
+                f"{kind} {p} is in use by another process; nothing was removed"
+            ) from None
+        freed = p.stat().st_size  # an unreadable or damaged file: still ours to remove
+        p.unlink()
+    for extra in ("-journal", "-wal", "-shm"):
+        side = p.with_name(p.name + extra)
+        try:
+            freed += side.stat().st_size
+            side.unlink()
+        except OSError:
+            pass
+    return freed

@@ -54,7 +54,7 @@ from cyclewright.maps import Map
 from cyclewright.maps.registry import as_map
 
 from .errors import Name, StoreError
-from .files import data_dir
+from .files import data_dir, remove_sqlite_store
 
 __all__ = [
     "RecordsStore",
@@ -464,53 +464,29 @@ def remove_records_store(path: str | os.PathLike) -> int:
     StoreError
         The file is not a records store, or another process has it open.
     """
-    p = Path(path)
-    if not p.is_file():
-        raise StoreError(f"no records store at {p}")
-    with open(p, "rb") as fh:
-        if fh.read(len(_HEADER)) != _HEADER:
-            raise StoreError(f"{p} is not a cyclewright records store; nothing was removed")
-    try:
-        conn = sqlite3.connect(str(p), timeout=0.2, isolation_level=None)
-        try:
-            tables = {
-                r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")
-            }
-            fmt = None
-            if "meta" in tables:
-                row = conn.execute("SELECT value FROM meta WHERE key = 'format'").fetchone()
-                fmt = row[0] if row else None
-            if "chunks" not in tables or not str(fmt or "").startswith("records-"):
-                raise StoreError(f"{p} is not a cyclewright records store; nothing was removed")
-            conn.execute("BEGIN EXCLUSIVE")  # nobody else may write while it goes
-            live = []
-            if "users" in tables:
-                live = [
-                    (int(pid), str(host))
-                    for pid, host in conn.execute("SELECT pid, host FROM users").fetchall()
-                    if _alive(int(pid), str(host))
-                ]
-            if live:
-                conn.execute("ROLLBACK")
-                who = ", ".join(f"process {pid} on {host}" for pid, host in live)
-                raise StoreError(f"records store {p} is in use by {who}; nothing was removed")
-            freed = p.stat().st_size
-            p.unlink()
-            conn.execute("ROLLBACK")
-        finally:
-            conn.close()
-    except sqlite3.Error as exc:
-        if "locked" in str(exc) or "busy" in str(exc):
-            raise StoreError(
-                f"records store {p} is in use by another process; nothing was removed"
-            ) from None
-        freed = p.stat().st_size  # an unreadable or damaged file: still ours to remove
-        p.unlink()
-    for extra in ("-journal", "-wal", "-shm"):
-        side = p.with_name(p.name + extra)
-        try:
-            freed += side.stat().st_size
-            side.unlink()
-        except OSError:
-            pass
-    return freed
+
+    def tables(conn: sqlite3.Connection) -> set[str]:
+        return {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+
+    def is_ours(conn: sqlite3.Connection) -> bool:
+        names = tables(conn)
+        fmt = None
+        if "meta" in names:
+            row = conn.execute("SELECT value FROM meta WHERE key = 'format'").fetchone()
+            fmt = row[0] if row else None
+        return "chunks" in names and str(fmt or "").startswith("records-")
+
+    def live(conn: sqlite3.Connection) -> list[tuple[int, str]]:
+        if "users" not in tables(conn):
+            return []
+        rows = conn.execute("SELECT pid, host FROM users").fetchall()
+        return [(int(pid), str(host)) for pid, host in rows if _alive(int(pid), str(host))]
+
+    return remove_sqlite_store(
+        path,
+        kind="records store",
+        header=_HEADER,
+        is_ours=is_ours,
+        live_users=live,
+        busy=lambda exc: "locked" in str(exc) or "busy" in str(exc),
+    )

@@ -119,7 +119,7 @@ import numpy as np
 from cyclewright.maps import Map, as_map
 
 from ..errors import Name, StoreError
-from ..files import data_dir
+from ..files import data_dir, remove_sqlite_store
 from ..limits import wait_seconds
 
 __all__ = [
@@ -1466,47 +1466,16 @@ def remove_store(path: str | os.PathLike) -> int:
     StoreError
         The file is not a scan store, or another process is using it.
     """
-    p = Path(path)
-    if not p.is_file():
-        raise StoreError(f"no store at {p}")
-    with open(p, "rb") as fh:
-        if fh.read(len(_HEADER)) != _HEADER:
-            raise StoreError(f"{p} is not a cyclewright scan store; nothing was removed")
-    try:
-        conn = sqlite3.connect(str(p), timeout=0.2, isolation_level=None)
-        try:
-            if conn.execute("PRAGMA application_id").fetchone()[0] != _APPLICATION_ID:
-                raise StoreError(f"{p} is not a cyclewright scan store; nothing was removed")
-            conn.execute("BEGIN EXCLUSIVE")  # nobody else may hold it while it goes
-            live = [
-                (pid, host)
-                for pid, host in conn.execute(
-                    "SELECT pid, host FROM runs WHERE status = 'running'"
-                ).fetchall()
-                if host != _host() or _pid_alive(int(pid))
-            ]
-            if live:
-                conn.execute("ROLLBACK")
-                who = ", ".join(f"process {pid} on {host}" for pid, host in live)
-                raise StoreError(f"store {p} is in use by {who}; nothing was removed")
-            freed = p.stat().st_size
-            p.unlink()
-            conn.execute("ROLLBACK")
-        finally:
-            conn.close()
-    except sqlite3.Error as exc:
-        if _kind(exc) == "busy":
-            raise StoreError(
-                f"store {p} is in use by another process; nothing was removed"
-            ) from None
-        # an unreadable or damaged file: it is still ours to remove
-        freed = p.stat().st_size
-        p.unlink()
-    for extra in ("-journal", "-wal", "-shm"):
-        side = p.with_name(p.name + extra)
-        try:
-            freed += side.stat().st_size
-            side.unlink()
-        except OSError:
-            pass
-    return freed
+
+    def live(conn: sqlite3.Connection) -> list[tuple[int, str]]:
+        rows = conn.execute("SELECT pid, host FROM runs WHERE status = 'running'").fetchall()
+        return [(pid, host) for pid, host in rows if host != _host() or _pid_alive(int(pid))]
+
+    return remove_sqlite_store(
+        path,
+        kind="scan store",
+        header=_HEADER,
+        is_ours=lambda conn: conn.execute("PRAGMA application_id").fetchone()[0] == _APPLICATION_ID,
+        live_users=live,
+        busy=lambda exc: _kind(exc) == "busy",
+    )
