@@ -10,6 +10,7 @@ tables), A006577 (steps to 1).
 from __future__ import annotations
 
 import pytest
+from records_reference import plain_records
 
 from cyclewright import maps
 from cyclewright.cycles.errors import InputError
@@ -302,44 +303,6 @@ def test_notebook_display():
     assert {"side", "kind", "start", "value"} <= set(rows[0])
 
 
-def _plain_side(m, lo: int, hi: int, cap: int) -> dict:
-    """Every figure of records() over lo..hi, from the plain definition start by start."""
-    out = {"delays": {}, "full_delays": {}, "glides": {}, "full_glides": {}, "basins": {}}
-    recs = {k: [] for k in ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")}
-    best = dict.fromkeys(recs, -1)
-    unres = []
-
-    def bump(d, k):
-        d[k] = d.get(k, 0) + 1
-
-    for s in range(lo, hi + 1):
-        f = start_figures(m, s, cap)
-        if f is None:
-            unres.append(s)
-            continue
-        vals = {
-            "delay": f["delay"],
-            "full_delay": f["delay"] + f["odd"],
-            "peak": f["peak"],
-            "full_peak": f["full_peak"],
-        }
-        bump(out["delays"], vals["delay"])
-        bump(out["full_delays"], vals["full_delay"])
-        bump(out["basins"], f["cycle_min"])
-        if f["glide"] is not None:
-            vals["glide"] = f["glide"]
-            vals["full_glide"] = f["glide"] + f["glide_odd"]
-            bump(out["glides"], vals["glide"])
-            bump(out["full_glides"], vals["full_glide"])
-        for k, v in vals.items():
-            if abs(v) > best[k]:
-                best[k] = abs(v)
-                recs[k].append((s, v))
-    out["records"] = recs
-    out["unresolved"] = unres
-    return out
-
-
 @pytest.mark.parametrize("name", ["3x+1", "3x-1", "3x+5", "3x+13", "5x+1"])
 @pytest.mark.parametrize("seed", [1, 2, 3])
 def test_fast_walk_matches_plain_definition_on_random_ranges(name, seed):
@@ -353,7 +316,7 @@ def test_fast_walk_matches_plain_definition_on_random_ranges(name, seed):
     lo = rnd.randrange(2**21, 2**44)
     hi = lo + rnd.randrange(60, 160)
     cap = 400
-    want = _plain_side(m, lo, hi, cap)
+    want = plain_records(m, lo, hi, cap)
     r = records(m, hi, start=lo, max_steps=cap, chunk_size=rnd.choice([7, 31, 1000]))
     sd = r.sides["positive"]
     assert sorted(sd.unresolved_first) == want["unresolved"]

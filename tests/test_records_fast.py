@@ -15,6 +15,7 @@ from __future__ import annotations
 import random
 
 import pytest
+from records_reference import plain_records
 
 from cyclewright import maps
 from cyclewright.cycles import records as rec
@@ -100,48 +101,9 @@ def test_jump_rows_glides_and_bounds_are_exact(name, side):
         assert (min(vals[1:]) >= n) == (g == 0)
 
 
-def _plain(m, lo: int, hi: int, cap: int, sign: int) -> dict:
-    """Every figure of one side of records() over lo..hi, start by start, plainly."""
-    out = {k: {} for k in ("delays", "full_delays", "glides", "full_glides", "basins")}
-    kinds = ("delay", "full_delay", "glide", "full_glide", "peak", "full_peak")
-    recs = {k: [] for k in kinds}
-    best = dict.fromkeys(kinds, -1)
-    unres = []
-
-    def bump(d, k):
-        d[k] = d.get(k, 0) + 1
-
-    for s in range(lo, hi + 1):
-        f = start_figures(m, sign * s, cap)
-        if f is None:
-            unres.append(sign * s)
-            continue
-        vals = {
-            "delay": f["delay"],
-            "full_delay": f["delay"] + f["odd"],
-            "peak": f["peak"],
-            "full_peak": f["full_peak"],
-        }
-        bump(out["delays"], vals["delay"])
-        bump(out["full_delays"], vals["full_delay"])
-        bump(out["basins"], f["cycle_min"])
-        if f["glide"] is not None:
-            vals["glide"] = f["glide"]
-            vals["full_glide"] = f["glide"] + f["glide_odd"]
-            bump(out["glides"], vals["glide"])
-            bump(out["full_glides"], vals["full_glide"])
-        for k, v in vals.items():
-            if abs(v) > best[k]:
-                best[k] = abs(v)
-                recs[k].append((sign * s, v))
-    out["records"] = recs
-    out["unresolved"] = unres
-    return out
-
-
 def _check(m, side, lo, hi, cap, chunk):
     sign = 1 if side == "positive" else -1
-    want = _plain(m, lo, hi, cap, sign)
+    want = plain_records(m, lo, hi, cap, sign)
     r = records(m, hi, start=lo, side=side, max_steps=cap, chunk_size=chunk, store=False)
     sd = r.sides[side]
     assert sorted(sd.unresolved_first) == sorted(want["unresolved"])

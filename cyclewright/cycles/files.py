@@ -12,6 +12,9 @@ Inside
   permissions any new file gets under the process's umask (``0644`` under the
   usual ``022``), so shared results come out shared.
 - :func:`file_mode` -- that mode.
+- :func:`open_store_readonly` -- the common start of a store's description:
+  path, size with journal files, time modified, and a read-only connection
+  (or the problem that kept it closed).
 - :func:`remove_sqlite_store` -- delete an SQLite results store (with its
   journal files) unless a live process uses it; one procedure for the scan
   stores and the records stores, which differ only in how they recognise
@@ -28,7 +31,14 @@ from pathlib import Path
 
 from .errors import StoreError
 
-__all__ = ["data_dir", "cache_dir", "atomic_write", "file_mode", "remove_sqlite_store"]
+__all__ = [
+    "data_dir",
+    "cache_dir",
+    "atomic_write",
+    "file_mode",
+    "open_store_readonly",
+    "remove_sqlite_store",
+]
 
 
 def data_dir() -> Path:
@@ -164,3 +174,26 @@ def remove_sqlite_store(
         except OSError:
             pass
     return freed
+
+
+def open_store_readonly(path: Path) -> tuple[dict, sqlite3.Connection | None]:
+    """Start a store's description and open it read-only.
+
+    Returns ``(info, conn)``: ``info`` holds ``path``, ``size`` (bytes, the
+    journal files included) and ``modified`` (POSIX time); ``conn`` is a
+    read-only connection decoding damaged text with replacement characters,
+    or None when the file cannot be opened (then ``info["problem"]`` says why).
+    """
+    st = path.stat()
+    info: dict = {"path": str(path), "size": st.st_size, "modified": st.st_mtime}
+    for extra in ("-journal", "-wal"):
+        side = path.with_name(path.name + extra)
+        if side.exists():
+            info["size"] += side.stat().st_size
+    try:
+        conn = sqlite3.connect(path.resolve().as_uri() + "?mode=ro", uri=True, timeout=0.5)
+    except sqlite3.Error as exc:
+        info["problem"] = f"cannot be opened ({exc})"
+        return info, None
+    conn.text_factory = lambda b: b.decode("utf-8", "replace")
+    return info, conn

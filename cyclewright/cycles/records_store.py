@@ -54,7 +54,7 @@ from cyclewright.maps import Map
 from cyclewright.maps.registry import as_map
 
 from .errors import Name, StoreError
-from .files import data_dir, remove_sqlite_store
+from .files import data_dir, open_store_readonly, remove_sqlite_store
 
 __all__ = [
     "RecordsStore",
@@ -366,18 +366,9 @@ def records_store_info(path: str | os.PathLike) -> dict:
     ('3x+1', 100, 0)
     """
     p = Path(path)
-    st = p.stat()
-    info: dict = {"path": str(p), "size": st.st_size, "modified": st.st_mtime}
-    for extra in ("-journal", "-wal"):
-        side = p.with_name(p.name + extra)
-        if side.exists():
-            info["size"] += side.stat().st_size
-    try:
-        conn = sqlite3.connect(p.resolve().as_uri() + "?mode=ro", uri=True, timeout=0.5)
-    except sqlite3.Error as exc:
-        info["problem"] = f"cannot be opened ({exc})"
+    info, conn = open_store_readonly(p)
+    if conn is None:
         return info
-    conn.text_factory = lambda b: b.decode("utf-8", "replace")
     try:
         tables = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")}
         if not {"meta", "chunks"} <= tables:

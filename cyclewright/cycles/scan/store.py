@@ -119,7 +119,7 @@ import numpy as np
 from cyclewright.maps import Map, as_map
 
 from ..errors import Name, StoreError
-from ..files import data_dir, remove_sqlite_store
+from ..files import data_dir, open_store_readonly, remove_sqlite_store
 from ..limits import wait_seconds
 
 __all__ = [
@@ -1401,18 +1401,9 @@ def store_info(path: str | os.PathLike) -> dict:
     starts done, lowest and highest start); otherwise ``problem``.
     """
     p = Path(path)
-    st = p.stat()
-    info: dict = {"path": str(p), "size": st.st_size, "modified": st.st_mtime}
-    for extra in ("-journal", "-wal"):
-        side = p.with_name(p.name + extra)
-        if side.exists():
-            info["size"] += side.stat().st_size
-    try:
-        conn = sqlite3.connect(p.resolve().as_uri() + "?mode=ro", uri=True, timeout=0.5)
-    except sqlite3.Error as exc:
-        info["problem"] = f"cannot be opened ({exc})"
+    info, conn = open_store_readonly(p)
+    if conn is None:
         return info
-    conn.text_factory = lambda b: b.decode("utf-8", "replace")
     try:
         if conn.execute("PRAGMA application_id").fetchone()[0] != _APPLICATION_ID:
             info["problem"] = "not a cyclewright scan store"
